@@ -1,0 +1,19 @@
+import { defineConfig } from 'vitest/config';
+import { fileURLToPath } from 'node:url';
+
+const src = (p: string): string => fileURLToPath(new URL(`./packages/${p}/src/index.ts`, import.meta.url));
+
+export default defineConfig({
+  resolve: {
+    alias: {
+      '@railcheck/devices': src('devices'),
+      '@railcheck/core': src('core'),
+      '@railcheck/cli': src('cli'),
+    },
+  },
+  test: {
+    include: ['test/**/*.test.ts'],
+    testTimeout: 60_000,
+    pool: 'threads',
+  },
+});
