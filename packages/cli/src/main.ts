@@ -1,0 +1,135 @@
+/**
+ * The `railcheck` command. Exit status (figures.md): 0 when every limit
+ * passes, 1 when a limit fails, 2 when the netlist has an error or an
+ * analysis fails (the message on standard error). A user never sees a
+ * stack trace.
+ */
+import { formatDiagnostic, runNetlistFile, type Diagnostic, type RunResult } from '@railcheck/core';
+import { fileURLToPath } from 'node:url';
+import { flagHelp, parseArgs, type FlagSpec } from './args.js';
+import { formatReport, formatWarnings } from './present/text.js';
+import { reportJson } from './present/json.js';
+
+/** Where output goes; tests pass their own. */
+export interface CliIo {
+  readonly out: (text: string) => void;
+  readonly err: (text: string) => void;
+}
+
+const defaultIo: CliIo = {
+  out: (t) => process.stdout.write(t.endsWith('\n') ? t : `${t}\n`),
+  err: (t) => process.stderr.write(t.endsWith('\n') ? t : `${t}\n`),
+};
+
+/** Exit statuses. */
+export const EXIT_OK = 0;
+export const EXIT_LIMIT_FAILED = 1;
+export const EXIT_ERROR = 2;
+
+const RUN_FLAGS: readonly FlagSpec[] = [
+  { name: 'json', takesValue: false, help: 'print the result as one JSON object on standard output' },
+  { name: 'allow-outside-includes', takesValue: false, help: 'let .include reach files outside the netlist\'s folder tree' },
+  { name: 'help', takesValue: false, help: 'show this help' },
+];
+
+const DEMO_FLAGS: readonly FlagSpec[] = [
+  { name: 'json', takesValue: false, help: 'print the result as JSON' },
+  { name: 'help', takesValue: false, help: 'show this help' },
+];
+
+const USAGE = `railcheck: checks a discrete linear supply stage from its netlist before you solder.
+
+usage:
+  railcheck run FILE [--json]     simulate a netlist and report its operating point, sweeps and figures
+  railcheck demo [--json]         run the built-in example stage
+  railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
+
+exit status: 0 all limits pass, 1 a limit failed, 2 the netlist has an error or an analysis failed.
+The netlist language is described in docs/netlist.md.`;
+
+const RUN_HELP = `usage: railcheck run FILE [options]
+
+Reads FILE, simulates every analysis it asks for at every .temp temperature,
+and prints the operating point (node voltages, element currents, dissipation),
+DC sweeps and the notes found on the way.
+
+options:
+${flagHelp(RUN_FLAGS)}`;
+
+const DEMO_HELP = `usage: railcheck demo [options]
+
+Runs the built-in example: a Zener-referenced follower regulator for a
+weather-station sensor rail (examples/sensor-rail-follower.cir).
+
+options:
+${flagHelp(DEMO_FLAGS)}`;
+
+/** Path of the built-in demo netlist (shipped in examples/). */
+export function demoPath(): string {
+  return fileURLToPath(new URL('../../../examples/sensor-rail-follower.cir', import.meta.url));
+}
+
+function printErrors(io: CliIo, errors: readonly Diagnostic[], warnings: readonly Diagnostic[]): void {
+  for (const e of errors) io.err(formatDiagnostic(e));
+  const notes = formatWarnings(warnings);
+  if (notes) io.err(notes);
+  io.err(`railcheck: ${errors.length} error${errors.length === 1 ? '' : 's'}; nothing was run to completion`);
+}
+
+function present(io: CliIo, result: RunResult, json: boolean): number {
+  if (!result.ok) {
+    printErrors(io, result.errors, result.warnings);
+    return EXIT_ERROR;
+  }
+  if (json) io.out(JSON.stringify(reportJson(result.report), null, 2));
+  else io.out(formatReport(result.report));
+  return EXIT_OK;
+}
+
+function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
+  const parsed = parseArgs(argv, demo ? DEMO_FLAGS : RUN_FLAGS);
+  if (!parsed.ok) {
+    io.err(`railcheck ${demo ? 'demo' : 'run'}: ${parsed.message}`);
+    return EXIT_ERROR;
+  }
+  const { positionals, flags } = parsed.args;
+  if (flags.has('help')) {
+    io.out(demo ? DEMO_HELP : RUN_HELP);
+    return EXIT_OK;
+  }
+  const expected = demo ? 0 : 1;
+  if (positionals.length !== expected) {
+    io.err(demo ? `railcheck demo: takes no file (got ${positionals.join(' ')})` : `railcheck run: expected one netlist FILE${positionals.length ? `, got ${positionals.length}` : ''}\n\n${RUN_HELP}`);
+    return EXIT_ERROR;
+  }
+  const file = demo ? demoPath() : positionals[0]!;
+  const result = runNetlistFile(file, { allowOutsideIncludes: flags.has('allow-outside-includes') });
+  return present(io, result, flags.has('json'));
+}
+
+/** Runs the command line `argv` (without `node` and the script); resolves to the exit status. */
+export async function main(argv: readonly string[], io: CliIo = defaultIo): Promise<number> {
+  try {
+    const [command, ...rest] = argv;
+    switch (command) {
+      case 'run':
+        return runCommand(rest, io, false);
+      case 'demo':
+        return runCommand(rest, io, true);
+      case undefined:
+      case 'help':
+      case '--help':
+      case '-h': {
+        const topic = rest[0];
+        io.out(topic === 'run' ? RUN_HELP : topic === 'demo' ? DEMO_HELP : USAGE);
+        return EXIT_OK;
+      }
+      default:
+        io.err(`railcheck: unknown command '${command}'\n\n${USAGE}`);
+        return EXIT_ERROR;
+    }
+  } catch (e) {
+    io.err(`railcheck: internal error: ${e instanceof Error ? e.message : String(e)} (please report this with the netlist)`);
+    return EXIT_ERROR;
+  }
+}

@@ -1,0 +1,25 @@
+/**
+ * The machine-readable result (figures.md, "Results"): `title`, `op`,
+ * `figures`, `limits`, `warnings`, plus railcheck's own additions:
+ * `file`, `temperature` (°C of `op`), `method`, `operating_points` (one per
+ * `.temp` temperature) and `sweeps` (DC sweeps as columns).
+ */
+import { formatDiagnostic, type RunReport } from '@railcheck/core';
+
+/** Builds the JSON object for a run. */
+export function reportJson(report: RunReport): Record<string, unknown> {
+  const nominal = report.operatingPoints[0];
+  const op = (p: NonNullable<typeof nominal>) => ({ nodes: p.nodes, currents: p.currents, power: p.power });
+  return {
+    title: report.title,
+    file: report.file,
+    temperature: nominal?.temperature ?? 27,
+    method: nominal?.method,
+    op: nominal ? op(nominal) : { nodes: {}, currents: {}, power: {} },
+    figures: {},
+    limits: [],
+    warnings: report.warnings.map((w) => formatDiagnostic({ ...w, severity: 'warning' }).split('\n')[0]!),
+    operating_points: report.operatingPoints.map((p) => ({ temperature: p.temperature, method: p.method, iterations: p.iterations, ...op(p) })),
+    sweeps: report.sweeps.map((s) => ({ source: s.source, temperature: s.temperature, values: s.values, nodes: s.nodes, currents: s.currents })),
+  };
+}

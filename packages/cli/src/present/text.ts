@@ -1,0 +1,69 @@
+/**
+ * The report a person reads: the operating point (node voltages, element
+ * currents and dissipation) and DC sweeps, with engineering prefixes.
+ */
+import { formatDiagnostic, formatSI, type DcSweep, type Diagnostic, type OperatingPoint, type RunReport } from '@railcheck/core';
+import { heading, table } from './table.js';
+
+const METHOD_WORDS: Readonly<Record<OperatingPoint['method'], string>> = {
+  newton: 'Newton from a cold start',
+  'gmin-stepping': 'gmin stepping (plain Newton did not converge)',
+  'source-stepping': 'source stepping (plain Newton and gmin stepping did not converge)',
+};
+
+/** Node voltages and the per-element current and power table for one operating point. */
+export function formatOperatingPoint(op: OperatingPoint, report: RunReport): string {
+  const parts: string[] = [];
+  parts.push(heading(`Operating point at ${op.temperature} °C`));
+  parts.push(`  found by ${METHOD_WORDS[op.method]}, ${op.iterations} iterations`);
+  parts.push('');
+  parts.push(table([['node', 'voltage'], ...Object.entries(op.nodes).map(([n, v]) => [n, formatSI(v, 'V')])]));
+  parts.push('');
+  const rows: string[][] = [['element', 'current', 'power', 'rating']];
+  for (const el of report.circuit.elements) {
+    const p = op.power[el.name] ?? 0;
+    const rating = el.pmax === undefined ? '' : `${formatSI(el.pmax, 'W')}${p > el.pmax ? '  OVER' : ''}`;
+    if (el.kind === 'bjt') {
+      const c = op.currents[`${el.name}.c`] ?? 0;
+      const b = op.currents[`${el.name}.b`] ?? 0;
+      const e = op.currents[`${el.name}.e`] ?? 0;
+      rows.push([el.name, `c ${formatSI(c, 'A')}  b ${formatSI(b, 'A')}  e ${formatSI(e, 'A')}`, formatSI(p, 'W'), rating]);
+    } else {
+      rows.push([el.name, formatSI(op.currents[el.name] ?? 0, 'A'), formatSI(p, 'W'), rating]);
+    }
+  }
+  parts.push(table(rows));
+  parts.push('  (currents enter an element at its first node; a source delivering power shows negative current and power)');
+  return parts.join('\n');
+}
+
+/** Largest number of node columns printed for a sweep in text (all are in --json). */
+const SWEEP_COLUMNS = 6;
+
+/** A DC sweep as a table of the swept value against node voltages. */
+export function formatSweep(s: DcSweep): string {
+  const names = Object.keys(s.nodes).slice(0, SWEEP_COLUMNS);
+  const unit = s.source.toLowerCase().startsWith('i') ? 'A' : 'V';
+  const rows = [[s.source, ...names], ...s.values.map((v, k) => [formatSI(v, unit), ...names.map((n) => formatSI(s.nodes[n]![k]!, 'V'))])];
+  const more = Object.keys(s.nodes).length - names.length;
+  const lines = [heading(`DC sweep of ${s.source} at ${s.temperature} °C`), table(rows)];
+  if (more > 0) lines.push(`  (${more} more node${more > 1 ? 's' : ''} in --json output)`);
+  if (s.assisted.length) lines.push(`  note: ${s.assisted.length} point(s) needed gmin or source stepping`);
+  return lines.join('\n');
+}
+
+/** Warnings, each with its place in the netlist. */
+export function formatWarnings(warnings: readonly Diagnostic[]): string {
+  if (warnings.length === 0) return '';
+  return [heading('Notes'), ...warnings.map((w) => formatDiagnostic(w).replace(/^/gm, '  '))].join('\n');
+}
+
+/** The whole text report of a run. */
+export function formatReport(report: RunReport): string {
+  const parts = [`railcheck — ${report.title || '(untitled)'}`, `  netlist ${report.file}`, ''];
+  for (const op of report.operatingPoints) parts.push(formatOperatingPoint(op, report), '');
+  for (const s of report.sweeps) parts.push(formatSweep(s), '');
+  const notes = formatWarnings(report.warnings);
+  if (notes) parts.push(notes, '');
+  return parts.join('\n');
+}

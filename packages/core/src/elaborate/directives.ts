@@ -1,0 +1,131 @@
+/**
+ * Resolves analysis and power-supply directives against the flat circuit:
+ * numbers evaluated, element and node names checked.
+ */
+import { match } from 'ts-pattern';
+import type { AnalysisCard, SupplyCard, Value } from '../netlist/ast.js';
+import type { FlatAnalysis, FlatElement, FlatFigure, FlatLimit, FlatNode, FlatSpread, FlatSupply } from './flat.js';
+import { GROUND_KEY } from './flat.js';
+import type { Evaluator } from './evaluate.js';
+import type { Scope } from './scope.js';
+
+/** The directive part of a flat circuit. */
+export interface ResolvedDirectives {
+  readonly analyses: readonly FlatAnalysis[];
+  readonly temperatures: readonly number[];
+  readonly supply: FlatSupply | undefined;
+  readonly figures: readonly FlatFigure[];
+  readonly limits: readonly FlatLimit[];
+  readonly spreads: readonly FlatSpread[];
+}
+
+/** Figure keys whose values are words rather than numbers. */
+const WORD_KEYS = new Set(['method']);
+
+/** Lowest temperature accepted, °C (absolute zero is not a place to simulate a junction). */
+const MIN_CELSIUS = -273;
+
+/** Resolves directives; problems are recorded on `ev`. Values are evaluated in the top-level scope `top`. */
+export function resolveDirectives(
+  ev: Evaluator,
+  analyses: readonly AnalysisCard[],
+  directives: readonly SupplyCard[],
+  names: ReadonlyMap<string, FlatElement>,
+  nodes: ReadonlyMap<string, FlatNode>,
+  top: Scope,
+): ResolvedDirectives {
+  const num = (v: Value): number => ev.num(v, top);
+  const flat: FlatAnalysis[] = [];
+  const temperatures: number[] = [];
+  for (const a of analyses) {
+    ev.at(a);
+    match(a)
+      .with({ kind: 'op' }, (c) => flat.push({ kind: 'op', origin: c }))
+      .with({ kind: 'dc' }, (c) => {
+        const src = names.get(c.source.toLowerCase());
+        if (!src || (src.kind !== 'vsource' && src.kind !== 'isource')) {
+          ev.fail(c, 'unknown-sweep-source', `.dc sweeps '${c.source}', which is not an independent source`, 'the name of a V or I element');
+          return;
+        }
+        const step = num(c.step);
+        const start = num(c.start);
+        const stop = num(c.stop);
+        if (!(step !== 0) || !Number.isFinite(step) || (stop - start) / step < 0) {
+          ev.fail(c, 'bad-sweep', `.dc step ${step} does not lead from ${start} to ${stop}`, 'a non-zero step with the sign of (stop − start)');
+          return;
+        }
+        if (Math.abs((stop - start) / step) > 1e6) {
+          ev.fail(c, 'bad-sweep', `.dc sweep has more than a million points`, 'a larger step');
+          return;
+        }
+        flat.push({ kind: 'dc', origin: c, source: src.key, start, stop, step });
+      })
+      .with({ kind: 'tran' }, (c) => {
+        const tstep = num(c.tstep);
+        const tstop = num(c.tstop);
+        if (!(tstep > 0) || !(tstop > 0)) ev.fail(c, 'bad-tran', `.tran needs a positive step and stop time (got ${tstep} and ${tstop})`, 'tstep > 0 and tstop > 0');
+        flat.push({ kind: 'tran', origin: c, tstep, tstop, tstart: c.tstart ? num(c.tstart) : 0, tmax: c.tmax ? num(c.tmax) : undefined, flags: c.flags.map((f) => f.toLowerCase()) });
+      })
+      .with({ kind: 'ac' }, (c) => {
+        const points = num(c.points);
+        const fstart = num(c.fstart);
+        const fstop = num(c.fstop);
+        if (!(points >= 1) || !(fstart > 0) || !(fstop >= fstart)) ev.fail(c, 'bad-ac', `.ac needs points ≥ 1 and 0 < fstart ≤ fstop`, 'e.g. .ac dec 20 1 100k');
+        flat.push({ kind: 'ac', origin: c, variation: c.variation, points: Math.round(points), fstart, fstop });
+      })
+      .with({ kind: 'temp' }, (c) => {
+        for (const t of c.temps) {
+          const celsius = num(t);
+          if (!(celsius > MIN_CELSIUS)) ev.fail(c, 'bad-temperature', `temperature ${celsius} °C is below absolute zero`, `a temperature above ${MIN_CELSIUS} °C`);
+          temperatures.push(celsius);
+        }
+      })
+      .exhaustive();
+  }
+
+  let supply: FlatSupply | undefined;
+  const figures: FlatFigure[] = [];
+  const limits: FlatLimit[] = [];
+  const spreads: FlatSpread[] = [];
+  const nodeKey = (card: SupplyCard, written: string, role: string): string => {
+    const key = written.toLowerCase();
+    if (key === '0' || key === 'gnd') return GROUND_KEY;
+    if (!nodes.has(key)) ev.fail(card, 'unknown-node', `.supply ${role}=${written} names no node of the circuit`, 'a node name used by some element');
+    return key;
+  };
+  for (const d of directives) {
+    ev.at(d);
+    match(d)
+      .with({ kind: 'supply' }, (c) => {
+        if (supply) ev.fail(c, 'duplicate-supply', 'a second .supply line', 'one .supply line per netlist');
+        const input = names.get(c.input.toLowerCase());
+        if (!input || input.kind !== 'vsource') ev.fail(c, 'bad-supply-input', `.supply in=${c.input} is not an independent voltage source`, 'the name of the V element that feeds the stage');
+        const load = c.load === undefined ? undefined : names.get(c.load.toLowerCase());
+        if (c.load !== undefined && (!load || (load.kind !== 'isource' && load.kind !== 'resistor'))) {
+          ev.fail(c, 'bad-supply-load', `.supply load=${c.load} is not a current source or resistor`, 'the name of the I or R element that is the load');
+        }
+        supply = {
+          origin: c,
+          input: c.input.toLowerCase(),
+          out: nodeKey(c, c.out, 'out'),
+          ref: c.ref === undefined ? GROUND_KEY : nodeKey(c, c.ref, 'ref'),
+          load: c.load?.toLowerCase(),
+          feed: c.feed === undefined ? undefined : nodeKey(c, c.feed, 'feed'),
+        };
+      })
+      .with({ kind: 'figure' }, (c) => {
+        const keys = new Map<string, number | string>();
+        for (const k of c.keys) keys.set(k.name.toLowerCase(), WORD_KEYS.has(k.name.toLowerCase()) ? k.value.text.toLowerCase() : num(k.value));
+        figures.push({ origin: c, figure: c.figure, keys });
+      })
+      .with({ kind: 'limit' }, (c) => limits.push({ origin: c, figure: c.figure.toLowerCase(), op: c.op, value: num(c.value) }))
+      .with({ kind: 'spread' }, (c) => spreads.push({ origin: c, target: c.target.toLowerCase(), ratio: num(c.ratio), distribution: c.distribution }))
+      .exhaustive();
+  }
+  if ((figures.length > 0 || limits.length > 0) && !supply) {
+    const first = figures[0]?.origin ?? limits[0]!.origin;
+    ev.at(first);
+    ev.fail(first, 'no-supply', 'figures and limits need a .supply line naming the stage', '.supply in=<V source> out=<node> [ref=<node>] [load=<element>]');
+  }
+  return { analyses: flat, temperatures: temperatures.length ? temperatures : [27], supply, figures, limits, spreads };
+}

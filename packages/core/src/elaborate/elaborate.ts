@@ -1,0 +1,168 @@
+/**
+ * Elaboration: a parsed netlist becomes a flat circuit. Subcircuit
+ * instances are expanded (ports mapped, local nodes and element names
+ * prefixed by the instance path), parameters evaluated, models bound, and
+ * every cross-reference (controlling sources, `.dc` and `.supply` names)
+ * checked. Errors are collected, not thrown.
+ */
+import { match } from 'ts-pattern';
+import { warningAt, type Diagnostic } from '../errors.js';
+import type { AnalysisCard, Card, InstanceCard, SupplyCard } from '../netlist/ast.js';
+import type { FlatCircuit, FlatElement, FlatNode } from './flat.js';
+import { GROUND_KEY } from './flat.js';
+import { createEvaluator, type Evaluator } from './evaluate.js';
+import { flattenElement } from './elements.js';
+import { lookupSubckt, resolveNode, topScope, type Scope } from './scope.js';
+import type { Netlist } from '../netlist/ast.js';
+import { resolveDirectives } from './directives.js';
+
+/** Result of elaboration. */
+export type ElaborateResult =
+  | { readonly ok: true; readonly circuit: FlatCircuit; readonly warnings: readonly Diagnostic[] }
+  | { readonly ok: false; readonly errors: readonly Diagnostic[]; readonly warnings: readonly Diagnostic[] };
+
+/** Deepest subcircuit nesting accepted (a guard; real stages nest a few levels). */
+const MAX_INSTANCE_DEPTH = 64;
+
+interface Walk {
+  readonly ev: Evaluator;
+  readonly elements: FlatElement[];
+  readonly nodes: Map<string, FlatNode>;
+  readonly analyses: AnalysisCard[];
+  readonly directives: SupplyCard[];
+  readonly names: Map<string, FlatElement>;
+}
+
+/** Registers the definitions of one level (models, subcircuits), then its parameters in order. */
+function enterLevel(w: Walk, scope: Scope, cards: readonly Card[]): void {
+  for (const card of cards) {
+    if (card.kind === 'model') {
+      if (scope.models.has(card.name.toLowerCase())) w.ev.fail(card, 'duplicate-model', `model '${card.name}' is defined twice`, 'one .model line per name');
+      scope.models.set(card.name.toLowerCase(), card);
+    } else if (card.kind === 'subckt') {
+      if (scope.subckts.has(card.name.toLowerCase())) w.ev.fail(card, 'duplicate-subckt', `subcircuit '${card.name}' is defined twice`, 'one .subckt definition per name');
+      scope.subckts.set(card.name.toLowerCase(), card);
+    }
+  }
+  for (const card of cards) {
+    if (card.kind !== 'param') continue;
+    w.ev.at(card);
+    for (const a of card.assignments) scope.params.set(a.name.toLowerCase(), w.ev.num(a.value, scope));
+  }
+}
+
+function walkLevel(w: Walk, scope: Scope, cards: readonly Card[]): void {
+  enterLevel(w, scope, cards);
+  const noteNode = (key: string, name: string): void => {
+    if (key !== GROUND_KEY && !w.nodes.has(key)) w.nodes.set(key, { key, name });
+  };
+  for (const card of cards) {
+    w.ev.at(card);
+    match(card)
+      .with({ kind: 'model' }, { kind: 'subckt' }, { kind: 'param' }, () => undefined)
+      .with({ kind: 'op' }, { kind: 'dc' }, { kind: 'tran' }, { kind: 'ac' }, { kind: 'temp' }, (c) => {
+        if (scope.parent) w.ev.fail(c, 'directive-in-subckt', `.${c.kind} inside a subcircuit definition`, 'analysis directives at the top level');
+        else w.analyses.push(c);
+      })
+      .with({ kind: 'supply' }, { kind: 'figure' }, { kind: 'limit' }, { kind: 'spread' }, (c) => {
+        if (scope.parent) w.ev.fail(c, 'directive-in-subckt', `.${c.kind} inside a subcircuit definition`, 'power-supply directives at the top level');
+        else w.directives.push(c);
+      })
+      .with({ kind: 'X' }, (c) => instantiate(w, scope, c))
+      .with({ kind: 'R' }, { kind: 'C' }, { kind: 'L' }, { kind: 'V' }, { kind: 'I' }, { kind: 'D' }, { kind: 'Q' }, { kind: 'E' }, { kind: 'G' }, { kind: 'F' }, { kind: 'H' }, (c) => {
+        const el = flattenElement({ scope, ev: w.ev, noteNode }, c);
+        if (!el) return;
+        const clash = w.names.get(el.key);
+        if (clash) {
+          w.ev.fail(c, 'duplicate-element', `element '${el.name}' is defined twice (first at line ${clash.origin.pos.line})`, 'a unique name per element');
+          return;
+        }
+        w.names.set(el.key, el);
+        w.elements.push(el);
+      })
+      .exhaustive();
+  }
+}
+
+function instantiate(w: Walk, scope: Scope, card: InstanceCard): void {
+  const defName = card.subckt.toLowerCase();
+  const def = lookupSubckt(scope, defName);
+  if (!def) {
+    w.ev.fail(card, 'unknown-subckt', `subcircuit '${card.subckt}' of ${card.name} is not defined`, `a .subckt ${card.subckt} ... .ends definition`);
+    return;
+  }
+  if (scope.path.includes(defName)) {
+    const cycle = [...scope.path.slice(scope.path.indexOf(defName)), defName].join(' → ');
+    w.ev.fail(card, 'subckt-recursion', `subcircuit instantiates itself: ${cycle}`, 'a subcircuit that does not contain itself, directly or through others');
+    return;
+  }
+  if (scope.path.length >= MAX_INSTANCE_DEPTH) {
+    w.ev.fail(card, 'subckt-depth', `subcircuits nest deeper than ${MAX_INSTANCE_DEPTH} levels`, 'shallower nesting');
+    return;
+  }
+  if (card.nodes.length !== def.ports.length) {
+    w.ev.fail(card, 'port-count', `${card.name} connects ${card.nodes.length} nodes but '${def.name}' has ${def.ports.length} ports (${def.ports.join(' ')})`, `${def.ports.length} nodes`);
+    return;
+  }
+  const inner: Scope = {
+    params: new Map(),
+    models: new Map(),
+    subckts: new Map(),
+    ports: new Map(def.ports.map((p, i) => [p.toLowerCase(), resolveNode(scope, card.nodes[i]!)])),
+    parent: scope,
+    prefixName: `${scope.prefixName}${card.name}.`,
+    prefixKey: `${scope.prefixKey}${card.name.toLowerCase()}.`,
+    path: [...scope.path, defName],
+  };
+  for (const port of inner.ports.values()) if (port.key !== GROUND_KEY && !w.nodes.has(port.key)) w.nodes.set(port.key, port);
+  // Defaults are evaluated where the definition stands (the caller's chain); instance values in the caller's scope.
+  w.ev.at(def);
+  for (const d of def.defaults) inner.params.set(d.name.toLowerCase(), w.ev.num(d.value, scope));
+  w.ev.at(card);
+  const known = new Set(def.defaults.map((d) => d.name.toLowerCase()));
+  for (const a of card.params) {
+    if (!known.has(a.name.toLowerCase())) w.ev.fail(card, 'unknown-instance-param', `'${a.name}' is not a parameter of subcircuit '${def.name}'`, known.size ? `one of: ${[...known].join(', ')}` : 'no parameters (the definition declares none)');
+    inner.params.set(a.name.toLowerCase(), w.ev.num(a.value, scope));
+  }
+  walkLevel(w, inner, def.body);
+}
+
+/** Resolves controlling-source names of F and H elements (instance-local first, then global). */
+function resolveControls(w: Walk): FlatElement[] {
+  return w.elements.map((el) => {
+    if (el.kind !== 'cccs' && el.kind !== 'ccvs') return el;
+    const dot = el.key.lastIndexOf('.');
+    const local = dot >= 0 ? el.key.slice(0, dot + 1) + el.control : el.control;
+    const target = w.names.get(local) ?? w.names.get(el.control);
+    if (!target || target.kind !== 'vsource') {
+      w.ev.at(el.origin);
+      w.ev.fail(el.origin, 'unknown-control', `${el.name} is controlled by '${el.control}', which is not a voltage source`, 'the name of an independent voltage source (V line) whose current controls it');
+      return el;
+    }
+    return { ...el, control: target.key };
+  });
+}
+
+/**
+ * Flattens a parsed netlist. Every problem is returned as a diagnostic; a
+ * netlist with errors yields `ok: false`.
+ */
+export function elaborate(netlist: Netlist): ElaborateResult {
+  const w: Walk = { ev: createEvaluator(), elements: [], nodes: new Map(), analyses: [], directives: [], names: new Map() };
+  const top = topScope();
+  walkLevel(w, top, netlist.cards);
+  const elements = resolveControls(w);
+  const resolved = resolveDirectives(w.ev, w.analyses, w.directives, w.names, w.nodes, top);
+  const errors = w.ev.diagnostics.filter((d) => d.severity === 'error');
+  const warnings = w.ev.diagnostics.filter((d) => d.severity === 'warning');
+  if (elements.length === 0 && errors.length === 0) warnings.push(warningAt('empty-circuit', 'the netlist has no elements'));
+  if (errors.length > 0) return { ok: false, errors, warnings };
+  const circuit: FlatCircuit = {
+    title: netlist.title,
+    file: netlist.file,
+    nodes: [...w.nodes.values()],
+    elements,
+    ...resolved,
+  };
+  return { ok: true, circuit, warnings };
+}

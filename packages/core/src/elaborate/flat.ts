@@ -1,0 +1,102 @@
+/**
+ * The elaborated circuit: subcircuits flattened, parameters evaluated,
+ * models bound. Names are flat (`X1.R2`, `X1.mid`) and keep their first
+ * spelling; `key`s are the lower-case forms used for look-up.
+ */
+import type { BjtModel, DiodeModel, SourceSpec } from '@railcheck/devices';
+import type { CardOrigin, FigureKind, LimitOp } from '../netlist/ast.js';
+
+/** Key of the ground node. */
+export const GROUND_KEY = '0';
+
+/** A circuit node: its look-up key and the name as first written. */
+export interface FlatNode {
+  readonly key: string;
+  readonly name: string;
+}
+
+interface FlatBase {
+  /** Flat name as first written, e.g. `X1.R2`. */
+  readonly name: string;
+  /** Lower-case flat name. */
+  readonly key: string;
+  /** The card that produced this element. */
+  readonly origin: CardOrigin;
+  /** Power rating in watts from `pmax=` (or the model's PMAX). */
+  readonly pmax: number | undefined;
+}
+
+/** One element of the flat circuit, discriminated by `kind`; node fields hold node keys. */
+export type FlatElement =
+  | (FlatBase & { readonly kind: 'resistor'; readonly nodes: readonly [string, string]; readonly ohms: number })
+  | (FlatBase & { readonly kind: 'capacitor'; readonly nodes: readonly [string, string]; readonly farads: number; readonly ic: number | undefined })
+  | (FlatBase & { readonly kind: 'inductor'; readonly nodes: readonly [string, string]; readonly henries: number; readonly ic: number | undefined })
+  | (FlatBase & { readonly kind: 'vsource' | 'isource'; readonly nodes: readonly [string, string]; readonly spec: SourceSpec })
+  | (FlatBase & { readonly kind: 'vcvs' | 'vccs'; readonly nodes: readonly [string, string, string, string]; readonly gain: number })
+  | (FlatBase & { readonly kind: 'cccs' | 'ccvs'; readonly nodes: readonly [string, string]; readonly control: string; readonly gain: number })
+  | (FlatBase & { readonly kind: 'diode'; readonly nodes: readonly [string, string]; readonly model: DiodeModel; readonly modelName: string; readonly area: number })
+  | (FlatBase & { readonly kind: 'bjt'; readonly nodes: readonly [string, string, string]; readonly model: BjtModel; readonly modelName: string; readonly area: number });
+
+/** An analysis request with evaluated numbers (seconds, hertz, volts or amps). */
+export type FlatAnalysis =
+  | { readonly kind: 'op'; readonly origin: CardOrigin }
+  | { readonly kind: 'dc'; readonly origin: CardOrigin; readonly source: string; readonly start: number; readonly stop: number; readonly step: number }
+  | { readonly kind: 'tran'; readonly origin: CardOrigin; readonly tstep: number; readonly tstop: number; readonly tstart: number; readonly tmax: number | undefined; readonly flags: readonly string[] }
+  | { readonly kind: 'ac'; readonly origin: CardOrigin; readonly variation: 'dec' | 'lin'; readonly points: number; readonly fstart: number; readonly fstop: number };
+
+/** The `.supply` description, with names resolved to keys. */
+export interface FlatSupply {
+  readonly origin: CardOrigin;
+  /** Key of the independent voltage source feeding the stage. */
+  readonly input: string;
+  /** Key of the output node. */
+  readonly out: string;
+  /** Key of the reference node (ground when not given). */
+  readonly ref: string;
+  /** Key of the load element (a current source or a resistor), if named. */
+  readonly load: string | undefined;
+  /** Key of the regulator's own input node (reservoir), if named. */
+  readonly feed: string | undefined;
+}
+
+/** A `.figure` request; key values evaluated (ratios as plain numbers). */
+export interface FlatFigure {
+  readonly origin: CardOrigin;
+  readonly figure: FigureKind;
+  /** Keys lower-case; numeric values evaluated, word values (e.g. `method=ac`) as strings. */
+  readonly keys: ReadonlyMap<string, number | string>;
+}
+
+/** A `.limit` check. */
+export interface FlatLimit {
+  readonly origin: CardOrigin;
+  /** Dotted figure name, e.g. `line.delta`. */
+  readonly figure: string;
+  readonly op: LimitOp;
+  readonly value: number;
+}
+
+/** A `.spread` tolerance. */
+export interface FlatSpread {
+  readonly origin: CardOrigin;
+  /** Element key, or `model.PARAM`. */
+  readonly target: string;
+  readonly ratio: number;
+  readonly distribution: 'uniform' | 'gauss';
+}
+
+/** The whole elaborated circuit, ready to compile. */
+export interface FlatCircuit {
+  readonly title: string;
+  readonly file: string;
+  /** Every node except ground, in order of first appearance. */
+  readonly nodes: readonly FlatNode[];
+  readonly elements: readonly FlatElement[];
+  readonly analyses: readonly FlatAnalysis[];
+  /** Temperatures in °C at which everything runs (default [27]). */
+  readonly temperatures: readonly number[];
+  readonly supply: FlatSupply | undefined;
+  readonly figures: readonly FlatFigure[];
+  readonly limits: readonly FlatLimit[];
+  readonly spreads: readonly FlatSpread[];
+}

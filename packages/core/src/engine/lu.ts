@@ -1,0 +1,116 @@
+/**
+ * Dense LU factorisation in place, with partial (row) pivoting and a relative
+ * pivot tolerance, and the matching forward/back substitution. Storage is the
+ * engine's: row-major, stride `size`, unknowns 1..size-1 (row and column 0
+ * belong to ground and are skipped). Nothing is allocated per call.
+ *
+ * Algorithm: Doolittle elimination with partial pivoting (Golub and Van Loan,
+ * Matrix Computations, 4th ed., §3.4, algorithm 3.4.1).
+ */
+
+/**
+ * A pivot smaller than this fraction of the largest entry its column had
+ * before elimination is taken as zero: the matrix is singular to working
+ * precision. 1e-13 leaves about three decimal digits above double rounding
+ * (common practice, no source; the same order as the absolute pivot floor
+ * customary in circuit simulators).
+ */
+export const PIVOT_RELATIVE_TOLERANCE = 1e-13;
+
+/** Reusable storage for one factorisation. */
+export interface LuWorkspace {
+  /** Matrix storage, row-major with stride `size`; overwritten by L and U. */
+  readonly matrix: Float64Array;
+  /** Row permutation: after factoring, row k of the factors holds original row perm[k]. */
+  readonly perm: Int32Array;
+  /** Scratch: the largest magnitude each column had before elimination. */
+  readonly columnScale: Float64Array;
+  /** Matrix dimension including the ground row (unknowns + 1). */
+  readonly size: number;
+}
+
+/** Allocates a workspace for `unknowns` unknowns (plus the ground row). */
+export function createLuWorkspace(unknowns: number, matrix?: Float64Array): LuWorkspace {
+  const size = unknowns + 1;
+  return {
+    matrix: matrix ?? new Float64Array(size * size),
+    perm: new Int32Array(size),
+    columnScale: new Float64Array(size),
+    size,
+  };
+}
+
+/**
+ * Factors the matrix in place. Returns 0 on success, or the 1-based unknown
+ * (column) at which no acceptable pivot was found (the matrix is singular).
+ */
+export function luFactor(ws: LuWorkspace): number {
+  const { matrix: a, perm, columnScale, size: s } = ws;
+  const n = s - 1;
+  for (let k = 1; k <= n; k++) perm[k] = k;
+  columnScale.fill(0);
+  for (let i = 1; i <= n; i++) {
+    const row = i * s;
+    for (let j = 1; j <= n; j++) {
+      const m = Math.abs(a[row + j]!);
+      if (m > columnScale[j]!) columnScale[j] = m;
+    }
+  }
+  for (let k = 1; k <= n; k++) {
+    let p = k;
+    let best = Math.abs(a[k * s + k]!);
+    for (let i = k + 1; i <= n; i++) {
+      const m = Math.abs(a[i * s + k]!);
+      if (m > best) {
+        best = m;
+        p = i;
+      }
+    }
+    if (!(best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]!) || best < 1e-300) return k;
+    if (p !== k) {
+      const rk = k * s;
+      const rp = p * s;
+      for (let j = 1; j <= n; j++) {
+        const t = a[rk + j]!;
+        a[rk + j] = a[rp + j]!;
+        a[rp + j] = t;
+      }
+      const t = perm[k]!;
+      perm[k] = perm[p]!;
+      perm[p] = t;
+    }
+    const rk = k * s;
+    const pivot = a[rk + k]!;
+    for (let i = k + 1; i <= n; i++) {
+      const ri = i * s;
+      const lik = a[ri + k]! / pivot;
+      if (lik === 0) continue;
+      a[ri + k] = lik;
+      for (let j = k + 1; j <= n; j++) a[ri + j]! -= lik * a[rk + j]!;
+    }
+  }
+  return 0;
+}
+
+/**
+ * Solves A·x = b with the factors from {@link luFactor}. `b` (indexed by
+ * unknown, entry 0 ignored) is read; the solution is written to `x`
+ * (x[0] = 0). `b` and `x` must be different arrays.
+ */
+export function luSolve(ws: LuWorkspace, b: Float64Array, x: Float64Array): void {
+  const { matrix: a, perm, size: s } = ws;
+  const n = s - 1;
+  x[0] = 0;
+  for (let i = 1; i <= n; i++) {
+    const ri = i * s;
+    let sum = b[perm[i]!]!;
+    for (let j = 1; j < i; j++) sum -= a[ri + j]! * x[j]!;
+    x[i] = sum;
+  }
+  for (let i = n; i >= 1; i--) {
+    const ri = i * s;
+    let sum = x[i]!;
+    for (let j = i + 1; j <= n; j++) sum -= a[ri + j]! * x[j]!;
+    x[i] = sum / a[ri + i]!;
+  }
+}

@@ -1,0 +1,77 @@
+/**
+ * The engine's flat storage and the load context devices write into. One
+ * workspace per compiled circuit, reused by every analysis.
+ */
+import type { LoadContext, LoadMode } from '@railcheck/devices';
+import { createLuWorkspace, type LuWorkspace } from './lu.js';
+
+/**
+ * Integration coefficients for charge-storage companion models. The present
+ * charge's current is `i = a0·(q − qPrev) + a1·iPrev`; backward Euler has
+ * a0 = 1/h, a1 = 0; the trapezoidal rule a0 = 2/h, a1 = −1.
+ */
+export interface IntegrationCoefficients {
+  a0: number;
+  a1: number;
+}
+
+/** The engine's implementation of {@link LoadContext}. */
+class EngineLoadContext implements LoadContext {
+  mode: LoadMode = 'dc';
+  sourceScale = 1;
+  gmin = 0;
+  time = 0;
+  initJunctions = false;
+  limited = false;
+  chargeCurrent = 0;
+  chargeConductance = 0;
+  readonly coefficients: IntegrationCoefficients = { a0: 0, a1: 0 };
+
+  constructor(
+    readonly matrix: Float64Array,
+    readonly rhs: Float64Array,
+    readonly x: Float64Array,
+    public state: Float64Array,
+    public statePrev: Float64Array,
+  ) {}
+
+  integrate(offset: number, capacitance: number): void {
+    const { a0, a1 } = this.coefficients;
+    const i = a0 * (this.state[offset]! - this.statePrev[offset]!) + a1 * this.statePrev[offset + 1]!;
+    this.state[offset + 1] = i;
+    this.chargeCurrent = i;
+    this.chargeConductance = a0 * capacitance;
+  }
+}
+
+/** Preallocated storage for one circuit. */
+export interface Workspace {
+  /** Unknowns + 1 (the ground row). */
+  readonly size: number;
+  /** Number of unknowns. */
+  readonly unknowns: number;
+  readonly lu: LuWorkspace;
+  /** Right-hand side loaded by devices. */
+  readonly rhs: Float64Array;
+  /** Present iterate (what devices read). */
+  readonly x: Float64Array;
+  /** Next iterate (solution of the linearised system). */
+  readonly xNext: Float64Array;
+  /** Device state at the time point being solved, and at the last accepted ones. */
+  readonly states: Float64Array[];
+  readonly ctx: EngineLoadContext;
+}
+
+/** Allocates a workspace. */
+export function createWorkspace(unknowns: number, stateSize: number): Workspace {
+  const lu = createLuWorkspace(unknowns);
+  const size = lu.size;
+  const rhs = new Float64Array(size);
+  const x = new Float64Array(size);
+  // Each state slot pair is (charge, current); a few histories serve higher-order methods later.
+  const states = [0, 1, 2, 3].map(() => new Float64Array(Math.max(stateSize, 1)));
+  const ctx = new EngineLoadContext(lu.matrix, rhs, x, states[0]!, states[1]!);
+  return { size, unknowns, lu, rhs, x, xNext: new Float64Array(size), states, ctx };
+}
+
+export type { EngineLoadContext };
