@@ -1,2 +1,62 @@
-export { knownParams, DIODE_PARAMS, BJT_PARAMS, diodeModel, bjtModel } from './models.js';
-export type { ParamSpec, DiodeModel, BjtModel } from './models.js';
+/**
+ * railcheck device models: linear elements, independent and controlled
+ * sources, the Shockley diode with breakdown and the Ebers-Moll transistor,
+ * with the engine contract they implement.
+ */
+
+export { BOLTZMANN, CHARGE, TNOM, ZERO_CELSIUS, thermalVoltage } from './constants.js';
+export { GROUND } from './device.js';
+export type {
+  Device,
+  DeviceKind,
+  DeviceReport,
+  LoadContext,
+  LoadMode,
+  ReactiveContext,
+  SlotBinder,
+  Topology,
+  UnknownAllocator,
+} from './device.js';
+export { BJT_PARAMS, DIODE_PARAMS, bjtModel, diodeModel, knownParams } from './models.js';
+export type { BjtModel, DiodeModel, ParamSpec } from './models.js';
+export type { SourceSpec, WaveformSpec } from './sources.js';
+
+export { isKind } from './types.js';
+export type {
+  AnyDevice,
+  Bjt,
+  Capacitor,
+  Ccvs,
+  Cccs,
+  CurrentSource,
+  DeviceByKind,
+  Diode,
+  IndependentSource,
+  Inductor,
+  ReactiveElement,
+  Resistor,
+  Vccs,
+  Vcvs,
+  VoltageSource,
+} from './types.js';
+
+export { createCapacitor, createInductor, createResistor } from './passive.js';
+export { createCurrentSource, createVoltageSource } from './independent.js';
+export { createCccs, createCcvs, createVccs, createVcvs } from './controlled.js';
+export { createDiode, diodeCharge, diodeCurrent, evalDiode, evalDiodeCharge, scaleDiodeModel } from './diode.js';
+export type { CurrentOut } from './diode.js';
+export { createBjt } from './bjt.js';
+export { bjtCharges, bjtCurrents, evalBjtCharges, evalBjtNpn, newBjtCurrents, polaritySign, scaleBjtModel } from './bjt-model.js';
+export type { BjtCurrents } from './bjt-model.js';
+export {
+  DEPLETION_FC,
+  EXP_LINEAR_LIMIT,
+  criticalVoltage,
+  depletion,
+  pnjlim,
+  safeExp,
+  safeExpSlope,
+  safeExpm1,
+} from './junction.js';
+export type { ChargeOut } from './junction.js';
+export { pulseValue, pwlValue, sinValue, waveformBreakpoints, waveformValue } from './waveform.js';

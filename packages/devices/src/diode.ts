@@ -1,0 +1,214 @@
+/**
+ * Junction diode of models.md: Shockley's law (Shockley 1949) with an
+ * exponential reverse-breakdown term, series resistance, depletion and
+ * transit-time charge, and the temperature scaling of IS and BV.
+ */
+
+import { TNOM, thermalVoltage } from './constants.js';
+import type { DeviceReport, LoadContext, ReactiveContext, SlotBinder, Topology, UnknownAllocator } from './device.js';
+import { type ChargeOut, criticalVoltage, depletion, pnjlim, safeExpSlope, safeExpm1, safeExp } from './junction.js';
+import type { DiodeModel } from './models.js';
+import { PairSlots, at, injectPair } from './stamp.js';
+import type { Diode } from './types.js';
+
+/** Output slot of the current evaluation: current in amps, conductance dI/dV in siemens. */
+export interface CurrentOut {
+  i: number;
+  g: number;
+}
+
+/**
+ * The model at `kelvin` and `area` (models.md): IS(T) = IS·(T/Tnom)^(XTI/N)·
+ * exp((EG/(N·Vt(T)))·(T/Tnom − 1)), BV(T) = BV·(1 + TBV·(T − Tnom)); area
+ * multiplies IS, IBV and CJO and divides RS. Every other field is copied.
+ * @param kelvin device temperature, K
+ * @param area area factor (dimensionless), default 1
+ */
+export function scaleDiodeModel(model: DiodeModel, kelvin: number, area = 1): DiodeModel {
+  const ratio = kelvin / TNOM;
+  const vtN = model.N * thermalVoltage(kelvin);
+  const is = model.IS * Math.pow(ratio, model.XTI / model.N) * Math.exp((model.EG / vtN) * (ratio - 1));
+  const bv = model.BV === undefined ? undefined : model.BV * (1 + model.TBV * (kelvin - TNOM));
+  return { ...model, IS: is * area, IBV: model.IBV * area, CJO: model.CJO * area, RS: model.RS / area, BV: bv };
+}
+
+/**
+ * Junction current and conductance of models.md at junction voltage v (V)
+ * for a model already scaled by {@link scaleDiodeModel}, at thermal voltage
+ * vt (V): I = IS·(exp(V/(N·Vt)) − 1) − IBV·exp(−(V + BV)/(NBV·Vt)), the
+ * second term only when BV is given. Exponentials beyond argument 80 are
+ * continued linearly ({@link safeExp}). Writes i (A) and g = dI/dV (S).
+ */
+export function evalDiode(v: number, s: DiodeModel, vt: number, out: CurrentOut): void {
+  const nvt = s.N * vt;
+  const x = v / nvt;
+  let i = s.IS * safeExpm1(x);
+  let g = (s.IS * safeExpSlope(x)) / nvt;
+  if (s.BV !== undefined) {
+    const nbv = s.NBV * vt;
+    const xb = -(v + s.BV) / nbv;
+    i -= s.IBV * safeExp(xb);
+    g += (s.IBV * safeExpSlope(xb)) / nbv;
+  }
+  out.i = i;
+  out.g = g;
+}
+
+/**
+ * Junction charge of models.md for a scaled model: Q = TT·I(V) plus the
+ * depletion charge with CJO, VJ, M (linear-in-capacitance above VJ/2).
+ * Writes q (C) and c = dQ/dV (F); `cur` must hold {@link evalDiode} at v.
+ */
+export function evalDiodeCharge(v: number, s: DiodeModel, cur: CurrentOut, out: ChargeOut): void {
+  depletion(v, s.CJO, s.VJ, s.M, out);
+  out.q += s.TT * cur.i;
+  out.c += s.TT * cur.g;
+}
+
+/**
+ * Diode current I (A) and conductance dI/dV (S) at junction voltage v (V,
+ * anode minus cathode after RS), temperature `kelvin` (K) and `area`
+ * (models.md; no gmin).
+ */
+export function diodeCurrent(v: number, model: DiodeModel, kelvin: number, area: number): CurrentOut {
+  const out = { i: 0, g: 0 };
+  evalDiode(v, scaleDiodeModel(model, kelvin, area), thermalVoltage(kelvin), out);
+  return out;
+}
+
+/** Diode junction charge q (C) and capacitance dq/dv (F) at junction voltage v (V) (models.md). */
+export function diodeCharge(v: number, model: DiodeModel, kelvin: number, area: number): ChargeOut {
+  const s = scaleDiodeModel(model, kelvin, area);
+  const cur = { i: 0, g: 0 };
+  evalDiode(v, s, thermalVoltage(kelvin), cur);
+  const out = { q: 0, c: 0 };
+  evalDiodeCharge(v, s, cur, out);
+  return out;
+}
+
+class DiodeImpl implements Diode {
+  readonly kind = 'diode' as const;
+  readonly nodes: readonly [number, number];
+  private scaled: DiodeModel;
+  private vt = 0;
+  private vcrit = 0;
+  private vcritBv = 0;
+  /** Junction anode: the internal node behind RS, else the anode itself. */
+  private ja: number;
+  private chargeOff = -1;
+  private vOff = -1;
+  private readonly hasCharge: boolean;
+  private readonly junction = new PairSlots();
+  private readonly series = new PairSlots();
+  private readonly cur: CurrentOut = { i: 0, g: 0 };
+  private readonly chg: ChargeOut = { q: 0, c: 0 };
+  private topo: Topology = { dcPaths: [], voltageDefined: [] };
+
+  constructor(
+    readonly name: string,
+    anode: number,
+    cathode: number,
+    readonly model: DiodeModel,
+    readonly area: number,
+  ) {
+    this.nodes = [anode, cathode];
+    this.ja = anode;
+    this.hasCharge = model.CJO !== 0 || model.TT !== 0;
+    this.scaled = model;
+    this.setTemperature(TNOM);
+  }
+
+  allocate(unknowns: UnknownAllocator): void {
+    const [a, k] = this.nodes;
+    if (this.scaled.RS > 0) this.ja = unknowns.internalNode(`${this.name}:anode`);
+    this.chargeOff = unknowns.state(2);
+    this.vOff = unknowns.state(1);
+    this.topo = {
+      dcPaths: this.ja === a ? [[a, k]] : [[a, this.ja], [this.ja, k]],
+      voltageDefined: [],
+    };
+  }
+
+  bind(slots: SlotBinder): void {
+    this.junction.bind(slots, this.ja, this.nodes[1]);
+    if (this.ja !== this.nodes[0]) this.series.bind(slots, this.nodes[0], this.ja);
+  }
+
+  setTemperature(kelvin: number): void {
+    this.scaled = scaleDiodeModel(this.model, kelvin, this.area);
+    this.vt = thermalVoltage(kelvin);
+    const s = this.scaled;
+    this.vcrit = criticalVoltage(s.N * this.vt, s.IS);
+    this.vcritBv = criticalVoltage(s.NBV * this.vt, s.IBV);
+  }
+
+  /** Nagel limiting of the junction voltage; the breakdown side is mirrored about −BV. */
+  private limit(vd: number, vold: number): number {
+    const s = this.scaled;
+    if (s.BV !== undefined) {
+      const nbv = s.NBV * this.vt;
+      if (vd < Math.min(0, -s.BV + 10 * nbv)) {
+        return -(pnjlim(-(vd + s.BV), -(vold + s.BV), nbv, this.vcritBv) + s.BV);
+      }
+    }
+    return pnjlim(vd, vold, s.N * this.vt, this.vcrit);
+  }
+
+  load(ctx: LoadContext): void {
+    const k = this.nodes[1];
+    const vraw = at(ctx.x, this.ja) - at(ctx.x, k);
+    const vd = ctx.initJunctions ? this.vcrit : this.limit(vraw, ctx.state[this.vOff] ?? 0);
+    if (vd !== vraw) ctx.limited = true;
+    ctx.state[this.vOff] = vd;
+    const cur = this.cur;
+    evalDiode(vd, this.scaled, this.vt, cur);
+    // gmin is linear in vd, so it adds to G and cancels out of Ieq.
+    this.junction.add(ctx.matrix, cur.g + ctx.gmin);
+    injectPair(ctx.rhs, this.ja, k, cur.i - cur.g * vd);
+    if (this.ja !== this.nodes[0]) this.series.add(ctx.matrix, 1 / this.scaled.RS);
+    if (this.hasCharge) this.loadCharge(ctx, vd);
+  }
+
+  private loadCharge(ctx: LoadContext, vd: number): void {
+    const off = this.chargeOff;
+    evalDiodeCharge(vd, this.scaled, this.cur, this.chg);
+    ctx.state[off] = this.chg.q;
+    if (ctx.mode === 'dc') {
+      ctx.state[off + 1] = 0;
+      return;
+    }
+    ctx.integrate(off, this.chg.c);
+    const g = ctx.chargeConductance;
+    this.junction.add(ctx.matrix, g);
+    injectPair(ctx.rhs, this.ja, this.nodes[1], ctx.chargeCurrent - g * vd);
+  }
+
+  loadReactive(ctx: ReactiveContext): void {
+    if (!this.hasCharge) return;
+    const vd = at(ctx.x, this.ja) - at(ctx.x, this.nodes[1]);
+    evalDiode(vd, this.scaled, this.vt, this.cur);
+    evalDiodeCharge(vd, this.scaled, this.cur, this.chg);
+    this.junction.add(ctx.capacitance, this.chg.c);
+  }
+
+  topology(): Topology {
+    return this.topo;
+  }
+
+  report(x: Float64Array, state: Float64Array): DeviceReport {
+    const [a, k] = this.nodes;
+    const cur = { i: 0, g: 0 };
+    evalDiode(at(x, this.ja) - at(x, k), this.scaled, this.vt, cur);
+    const i = cur.i + (this.hasCharge ? (state[this.chargeOff + 1] ?? 0) : 0);
+    return { currents: [['', i]], power: (at(x, a) - at(x, k)) * i };
+  }
+}
+
+/**
+ * Creates a diode from unknown `anode` to `cathode` with `model` (at Tnom,
+ * unscaled) and `area`. RS > 0 (after area) adds an internal node. State:
+ * charge and its current (2 slots), then the last junction voltage (1 slot).
+ */
+export function createDiode(name: string, anode: number, cathode: number, model: DiodeModel, area: number): Diode {
+  return new DiodeImpl(name, anode, cathode, model, area);
+}
