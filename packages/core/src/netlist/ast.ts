@@ -29,7 +29,14 @@ export type ExprFunction = 'sqrt' | 'exp' | 'ln' | 'log10' | 'abs' | 'min' | 'ma
  * `{expr}` to be evaluated at elaboration, where parameters are known.
  */
 export type Value =
-  | { readonly kind: 'number'; readonly value: number; readonly pos: SourcePos; readonly text: string }
+  | {
+      readonly kind: 'number';
+      readonly value: number;
+      readonly pos: SourcePos;
+      readonly text: string;
+      /** Written as a percentage (`5%`, value 0.05) where a ratio is accepted; tells a ratio `fall` from one in volts. */
+      readonly percent?: true;
+    }
   | { readonly kind: 'expr'; readonly expr: Expr; readonly pos: SourcePos; readonly text: string };
 
 /** `name=value` pairs in source order; keys lower-cased. */
@@ -145,7 +152,13 @@ export type LimitOp = '<' | '<=' | '>' | '>=';
 /** The project's own power-supply directives. */
 export type SupplyCard =
   | (CardOrigin & { readonly kind: 'supply'; readonly input: string; readonly out: string; readonly ref?: string; readonly load?: string; readonly feed?: string })
-  | (CardOrigin & { readonly kind: 'figure'; readonly figure: FigureKind; readonly keys: Assignments })
+  | (CardOrigin & {
+      readonly kind: 'figure';
+      readonly figure: FigureKind;
+      readonly keys: Assignments;
+      /** `method=ac|tran|both` of a ripple figure: a word, so it cannot live among the numeric keys. */
+      readonly method?: 'ac' | 'tran' | 'both';
+    })
   | (CardOrigin & { readonly kind: 'limit'; readonly figure: string; readonly op: LimitOp; readonly value: Value })
   | (CardOrigin & { readonly kind: 'spread'; readonly target: string; readonly ratio: Value; readonly distribution: 'uniform' | 'gauss' });
 

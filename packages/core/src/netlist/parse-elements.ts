@@ -1,0 +1,270 @@
+/**
+ * Element lines (netlist.md, Elements): the first letter of the name gives
+ * the kind; nodes, values and `key=value` options follow.
+ */
+import type {
+  Assignments,
+  ElementCard,
+  InstanceCard,
+  SourceCard,
+  Value,
+  Waveform,
+} from './ast.js';
+import type { Cursor } from './cursor.js';
+import { show } from './cursor.js';
+import type { Token } from './lexer.js';
+
+/** Element letters the reader knows. */
+export const ELEMENT_LETTERS = 'RCLVIDQEGFHX';
+
+/** The written form of each element line, quoted in messages. */
+const FORMS: Readonly<Record<string, string>> = {
+  R: 'Rname n+ n- value [pmax=W]',
+  C: 'Cname n+ n- value [ic=V] [pmax=W]',
+  L: 'Lname n+ n- value [ic=A] [pmax=W]',
+  V: 'Vname n+ n- [[dc] value] [ac mag [phase]] [sin(...)|pulse(...)|pwl(...)] [pmax=W]',
+  I: 'Iname n+ n- [[dc] value] [ac mag [phase]] [sin(...)|pulse(...)|pwl(...)] [pmax=W]',
+  D: 'Dname anode cathode model [area] [pmax=W]',
+  Q: 'Qname collector base emitter model [area] [pmax=W]',
+  E: 'Ename n+ n- nc+ nc- gain [pmax=W]',
+  G: 'Gname n+ n- nc+ nc- transconductance [pmax=W]',
+  F: 'Fname n+ n- vname gain [pmax=W]',
+  H: 'Hname n+ n- vname transresistance [pmax=W]',
+  X: 'Xname node... subckt [name=value ...]',
+};
+
+/** Identifier form of parameter names (`.param`, subcircuit parameters). */
+export const IDENTIFIER = /^[A-Za-z_][A-Za-z0-9_]*$/;
+
+/** Number of fields after the name before the first `key=value`. */
+function positionalCount(c: Cursor): number {
+  let n = 0;
+  while (c.peek(n) && !(c.peek(n)?.kind === 'word' && c.peek(n + 1)?.kind === 'eq')) n++;
+  return n;
+}
+
+/** Checks the field count of a fixed-form element against [min, max]. */
+function checkFields(c: Cursor, name: Token, min: number, max: number, needs: string): void {
+  const n = positionalCount(c);
+  const form = FORMS[name.text[0]?.toUpperCase() ?? ''] ?? '';
+  if (n < min) {
+    c.fail('wrong-node-count', `${name.text} needs ${needs}, but only ${n} field${n === 1 ? '' : 's'} follow${n === 1 ? 's' : ''} the name`, undefined, form);
+  }
+  if (n > max) c.fail('too-many-fields', `${name.text} has ${n} fields after the name; at most ${max} are accepted (${needs})`, c.peek(max), form);
+}
+
+function nodes(c: Cursor, count: number, form: string): string[] {
+  const out: string[] = [];
+  for (let k = 0; k < count; k++) out.push(c.name('a node name', form).text);
+  return out;
+}
+
+/** Reads trailing `key=value` options, each key at most once, from the allowed list. */
+function options(c: Cursor, name: Token, allowed: readonly string[]): Map<string, Value> {
+  const form = FORMS[name.text[0]?.toUpperCase() ?? ''] ?? '';
+  const out = new Map<string, Value>();
+  while (!c.done) {
+    if (!c.atAssignment()) c.fail('syntax', `unexpected ${show(c.peek())}`, c.peek(), form);
+    const { key, value } = c.rawAssignment();
+    const k = key.text.toLowerCase();
+    if (!allowed.includes(k)) {
+      c.fail('unknown-key', `"${key.text}=" is not accepted on ${name.text}`, key, allowed.map((a) => `${a}=`).join(', ') || 'no options');
+    }
+    if (out.has(k)) c.fail('duplicate-key', `"${key.text}" is given twice`, key, 'each option at most once');
+    out.set(k, c.toValue(value, `a value for ${key.text}`, `${key.text}=<number or {expression}>`));
+  }
+  return out;
+}
+
+/** Spreads optional fields so that absent ones stay absent (exactOptionalPropertyTypes). */
+function opt<K extends string, V>(key: K, v: V | undefined): { [P in K]?: V } {
+  return (v === undefined ? {} : { [key]: v }) as { [P in K]?: V };
+}
+
+/** Parses an element line; the cursor stands at its name. */
+export function parseElement(c: Cursor): ElementCard {
+  const origin = c.origin();
+  const name = c.next() as Token;
+  const kind = (name.text[0] ?? '').toUpperCase();
+  const form = FORMS[kind] ?? '';
+  if (FORMS[kind] !== undefined && name.text.includes('.')) {
+    c.fail('bad-name', `"${name.text}": element names may not contain "." (it joins instance paths such as X1.Q2)`, name, 'a name of letters, digits and _');
+  }
+  switch (kind) {
+    case 'R':
+    case 'C':
+    case 'L': {
+      const what = kind === 'R' ? 'resistance' : kind === 'C' ? 'capacitance' : 'inductance';
+      checkFields(c, name, 3, 3, `2 nodes and a ${what}`);
+      const ns = nodes(c, 2, form);
+      const valueTok = c.peek();
+      const value = c.value(`the ${what}`, form);
+      if (kind === 'R' && value.kind === 'number' && value.value === 0) {
+        c.note('zero-resistance', `${name.text}: value must be non-zero`, valueTok, 'a non-zero resistance (use a V source of 0 V for a short)');
+      }
+      const o = options(c, name, kind === 'R' ? ['pmax'] : ['ic', 'pmax']);
+      return { ...origin, kind, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], value, ...opt('ic', o.get('ic')), ...opt('pmax', o.get('pmax')) };
+    }
+    case 'D':
+    case 'Q': {
+      const n = kind === 'D' ? 2 : 3;
+      checkFields(c, name, n + 1, n + 2, kind === 'D' ? '2 nodes (anode cathode) and a model name' : '3 nodes (collector base emitter) and a model name');
+      const ns = nodes(c, n, form);
+      const model = c.name('a model name', form).text;
+      const area = c.isValue(c.peek()) && !c.atAssignment() ? c.value('the area', form) : undefined;
+      const o = options(c, name, area === undefined ? ['area', 'pmax'] : ['pmax']);
+      const common = { ...origin, name: name.text, model, ...opt('area', area ?? o.get('area')), ...opt('pmax', o.get('pmax')) };
+      if (kind === 'D') return { ...common, kind, nodes: [ns[0] ?? '', ns[1] ?? ''] };
+      return { ...common, kind, nodes: [ns[0] ?? '', ns[1] ?? '', ns[2] ?? ''] };
+    }
+    case 'E':
+    case 'G': {
+      checkFields(c, name, 5, 5, `4 nodes (n+ n- nc+ nc-) and a ${kind === 'E' ? 'gain' : 'transconductance'}`);
+      const ns = nodes(c, 4, form);
+      const gain = c.value(kind === 'E' ? 'the gain' : 'the transconductance', form);
+      const o = options(c, name, ['pmax']);
+      return { ...origin, kind, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? '', ns[2] ?? '', ns[3] ?? ''], gain, ...opt('pmax', o.get('pmax')) };
+    }
+    case 'F':
+    case 'H': {
+      checkFields(c, name, 4, 4, `2 nodes, the controlling voltage source and a ${kind === 'F' ? 'gain' : 'transresistance'}`);
+      const ns = nodes(c, 2, form);
+      const control = c.name('the name of the controlling voltage source', form);
+      if (!/^v/i.test(control.text)) c.fail('bad-control', `"${control.text}" is not a voltage source name; the controlling current is the one through a V element`, control, 'a V element name such as Vsense');
+      const gain = c.value(kind === 'F' ? 'the gain' : 'the transresistance', form);
+      const o = options(c, name, ['pmax']);
+      return { ...origin, kind, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], control: control.text, gain, ...opt('pmax', o.get('pmax')) };
+    }
+    case 'V':
+    case 'I':
+      return parseSource(c, name, kind, origin);
+    case 'X':
+      return parseInstance(c, name, origin);
+    default:
+      return c.fail('unknown-element', `"${name.text}" does not name an element: no element kind starts with "${name.text[0] ?? ''}"`, name, `an element line (${ELEMENT_LETTERS.split('').join(' ')}) or a directive (.model, .param, ...)`);
+  }
+}
+
+const WAVE_ARGS: Readonly<Record<string, readonly string[]>> = {
+  sin: ['vo', 'va', 'freq', 'td', 'theta', 'phase'],
+  pulse: ['v1', 'v2', 'td', 'tr', 'tf', 'pw', 'per'],
+};
+const WAVE_FORMS: Readonly<Record<string, string>> = {
+  sin: 'sin(vo va freq [td [theta [phase]]])',
+  pulse: 'pulse(v1 v2 [td [tr [tf [pw [per]]]]])',
+  pwl: 'pwl(t1 v1 [t2 v2 ...])',
+};
+
+function parseSource(c: Cursor, name: Token, kind: 'V' | 'I', origin: ReturnType<Cursor['origin']>): SourceCard {
+  const form = FORMS[kind] ?? '';
+  checkFields(c, name, 2, Infinity, '2 nodes');
+  const ns = nodes(c, 2, form);
+  let dc: Value | undefined;
+  let ac: SourceCard['ac'];
+  let waveform: Waveform | undefined;
+  let pmax: Value | undefined;
+  const once = (t: Token, taken: boolean, what: string): void => {
+    if (taken) c.fail('duplicate-key', `${name.text} has ${what} twice`, t, form);
+  };
+  while (!c.done) {
+    const t = c.peek() as Token;
+    const word = t.kind === 'word' ? t.text.toLowerCase() : '';
+    if (c.atAssignment()) {
+      const { key, value } = c.rawAssignment();
+      if (key.text.toLowerCase() !== 'pmax') c.fail('unknown-key', `"${key.text}=" is not accepted on ${name.text}`, key, 'pmax=W');
+      once(key, pmax !== undefined, 'pmax=');
+      pmax = c.toValue(value, 'the power rating', 'pmax=W');
+    } else if (word === 'dc') {
+      once(t, dc !== undefined, 'a dc value');
+      c.next();
+      dc = c.value('the dc value', form);
+    } else if (word === 'ac') {
+      once(t, ac !== undefined, 'an ac value');
+      c.next();
+      const mag = c.value('the ac magnitude', 'ac mag [phase]');
+      ac = c.isValue(c.peek()) ? { mag, phase: c.value('the ac phase', 'ac mag [phase]') } : { mag };
+    } else if (word === 'sin' || word === 'pulse' || word === 'pwl') {
+      once(t, waveform !== undefined, 'a waveform');
+      c.next();
+      waveform = parseWaveform(c, t, word);
+    } else if (c.isValue(t) && dc === undefined && ac === undefined && waveform === undefined) {
+      dc = c.value('the dc value', form);
+    } else {
+      c.fail('syntax', `unexpected ${show(t)}`, t, form);
+    }
+  }
+  return { ...origin, kind, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], ...opt('dc', dc), ...opt('ac', ac), ...opt('waveform', waveform), ...opt('pmax', pmax) };
+}
+
+/** Reads a waveform's arguments; parentheses and commas are optional. */
+function parseWaveform(c: Cursor, kw: Token, kind: 'sin' | 'pulse' | 'pwl'): Waveform {
+  const form = WAVE_FORMS[kind] ?? '';
+  const names = WAVE_ARGS[kind];
+  const args: Value[] = [];
+  const argTokens: Token[] = [];
+  const label = (k: number): string => (names ? `the ${kind} argument ${names[k] ?? `#${k + 1}`}` : `the pwl ${k % 2 === 0 ? 'time' : 'value'} #${Math.floor(k / 2) + 1}`);
+  if (c.peek()?.kind === 'lparen') {
+    c.next();
+    while (c.peek() && c.peek()?.kind !== 'rparen') {
+      argTokens.push(c.peek() as Token);
+      args.push(c.value(label(args.length), form));
+    }
+    if (!c.peek()) c.fail('syntax', `the ${kind}( argument list is never closed`, undefined, `a closing ")" (${form})`);
+    c.next();
+  } else {
+    while (c.isValue(c.peek())) {
+      argTokens.push(c.peek() as Token);
+      args.push(c.value(label(args.length), form));
+    }
+  }
+  const a = (k: number): Value | undefined => args[k];
+  if (kind === 'pwl') {
+    if (args.length < 2 || args.length % 2 !== 0) {
+      c.fail('waveform-args', `pwl needs time-value pairs, but ${args.length} value${args.length === 1 ? '' : 's'} ${args.length === 1 ? 'was' : 'were'} given`, kw, form);
+    }
+    const points: Array<{ t: Value; v: Value }> = [];
+    for (let k = 0; k + 1 < args.length; k += 2) points.push({ t: args[k] as Value, v: args[k + 1] as Value });
+    checkPwlTimes(c, points, argTokens);
+    return { kind, points };
+  }
+  const [lo, hi] = kind === 'sin' ? [3, 6] : [2, 7];
+  if (args.length < lo) c.fail('waveform-args', `${kind} needs at least ${lo} arguments, but ${args.length} ${args.length === 1 ? 'was' : 'were'} given`, kw, form);
+  if (args.length > hi) c.fail('waveform-args', `${kind} takes at most ${hi} arguments, but ${args.length} were given`, argTokens[hi], form);
+  if (kind === 'sin') {
+    return { kind, vo: a(0) as Value, va: a(1) as Value, freq: a(2) as Value, ...opt('td', a(3)), ...opt('theta', a(4)), ...opt('phase', a(5)) };
+  }
+  return { kind, v1: a(0) as Value, v2: a(1) as Value, ...opt('td', a(2)), ...opt('tr', a(3)), ...opt('tf', a(4)), ...opt('pw', a(5)), ...opt('per', a(6)) };
+}
+
+/** pwl times written as plain numbers must increase strictly (a transient cannot step back in time). */
+function checkPwlTimes(c: Cursor, points: ReadonlyArray<{ t: Value }>, toks: readonly Token[]): void {
+  let last = -Infinity;
+  points.forEach((p, k) => {
+    if (p.t.kind !== 'number') return;
+    if (p.t.value <= last) c.note('pwl-order', `pwl time ${p.t.text} does not come after the time before it`, toks[2 * k], 'pwl times in increasing order');
+    last = p.t.value;
+  });
+}
+
+function parseInstance(c: Cursor, name: Token, origin: ReturnType<Cursor['origin']>): InstanceCard {
+  const form = FORMS.X ?? '';
+  const words: Token[] = [];
+  while (!c.done && !c.atAssignment()) words.push(c.name('a node or the subcircuit name', form));
+  const subckt = words.pop();
+  if (!subckt) c.fail('wrong-node-count', `${name.text} needs its nodes and the subcircuit name`, undefined, form);
+  const params: Array<Assignments[number]> = [];
+  let pmax: Value | undefined;
+  const seen = new Set<string>();
+  while (!c.done) {
+    if (!c.atAssignment()) c.fail('syntax', `unexpected ${show(c.peek())}`, c.peek(), form);
+    const { key, value } = c.rawAssignment();
+    const k = key.text.toLowerCase();
+    if (!IDENTIFIER.test(key.text)) c.fail('bad-name', `"${key.text}" is not a parameter name`, key, 'a name of letters, digits and _ starting with a letter or _');
+    if (seen.has(k)) c.fail('duplicate-key', `"${key.text}" is given twice`, key, 'each parameter at most once');
+    seen.add(k);
+    const v = c.toValue(value, `a value for ${key.text}`, `${key.text}=<number or {expression}>`);
+    if (k === 'pmax') pmax = v;
+    else params.push({ name: k, value: v, pos: key.pos });
+  }
+  return { ...origin, kind: 'X', name: name.text, nodes: words.map((w) => w.text), subckt: subckt.text, params, ...opt('pmax', pmax) };
+}

@@ -1,0 +1,129 @@
+/**
+ * Netlist → text that reads back to an equivalent netlist (same cards and
+ * values; positions differ). Includes are already expanded, so the output
+ * is one self-contained file.
+ */
+import type { Assignments, Card, ElementCard, Netlist, SupplyCard, AnalysisCard, Value, Waveform } from './ast.js';
+import { printExpr } from './expr.js';
+import { formatNumber, formatPercent, readNumberWord } from './numbers.js';
+
+/** A value as text: its own spelling when that still reads as its value, else a canonical form. */
+export function printValue(v: Value): string {
+  if (v.kind === 'expr') return `{${printExpr(v.expr)}}`;
+  const percent = v.percent === true;
+  const r = readNumberWord(v.text, percent);
+  if (r.ok && Object.is(r.value, v.value) && r.percent === percent) return v.text;
+  if (!Number.isFinite(v.value)) return `{${printExpr({ kind: 'num', value: v.value })}}`;
+  return percent ? formatPercent(v.value) : formatNumber(v.value);
+}
+
+function pairs(a: Assignments): string[] {
+  return a.map((p) => `${p.name}=${printValue(p.value)}`);
+}
+
+function optional(key: string, v: Value | undefined): string[] {
+  return v === undefined ? [] : [`${key}=${printValue(v)}`];
+}
+
+function waveform(w: Waveform): string {
+  const vals = (list: ReadonlyArray<Value | undefined>): string => {
+    const out: string[] = [];
+    for (const v of list) {
+      if (v === undefined) break; // later optional arguments cannot be given without the earlier ones
+      out.push(printValue(v));
+    }
+    return out.join(' ');
+  };
+  switch (w.kind) {
+    case 'sin': return `sin(${vals([w.vo, w.va, w.freq, w.td, w.theta, w.phase])})`;
+    case 'pulse': return `pulse(${vals([w.v1, w.v2, w.td, w.tr, w.tf, w.pw, w.per])})`;
+    case 'pwl': return `pwl(${w.points.map((p) => `${printValue(p.t)} ${printValue(p.v)}`).join(' ')})`;
+  }
+}
+
+function element(e: ElementCard): string {
+  const head = [e.name, ...e.nodes];
+  const pmax = optional('pmax', e.pmax);
+  switch (e.kind) {
+    case 'R': case 'C': case 'L':
+      return [...head, printValue(e.value), ...optional('ic', e.ic), ...pmax].join(' ');
+    case 'V': case 'I': {
+      const parts = [...head];
+      if (e.dc) parts.push('dc', printValue(e.dc));
+      if (e.ac) parts.push('ac', printValue(e.ac.mag), ...(e.ac.phase ? [printValue(e.ac.phase)] : []));
+      if (e.waveform) parts.push(waveform(e.waveform));
+      return [...parts, ...pmax].join(' ');
+    }
+    case 'D': case 'Q':
+      return [...head, e.model, ...optional('area', e.area), ...pmax].join(' ');
+    case 'E': case 'G':
+      return [...head, printValue(e.gain), ...pmax].join(' ');
+    case 'F': case 'H':
+      return [...head, e.control, printValue(e.gain), ...pmax].join(' ');
+    case 'X':
+      return [...head, e.subckt, ...pairs(e.params), ...pmax].join(' ');
+  }
+}
+
+function analysis(a: AnalysisCard): string {
+  switch (a.kind) {
+    case 'op': return '.op';
+    case 'dc': return `.dc ${a.source} ${printValue(a.start)} ${printValue(a.stop)} ${printValue(a.step)}`;
+    case 'tran': {
+      const times = [a.tstep, a.tstop, ...(a.tstart ? [a.tstart] : []), ...(a.tstart && a.tmax ? [a.tmax] : [])];
+      // A tmax without a tstart needs tstart = 0 written before it.
+      if (!a.tstart && a.tmax) times.push({ kind: 'number', value: 0, pos: a.pos, text: '0' }, a.tmax);
+      return ['.tran', ...times.map(printValue), ...a.flags].join(' ');
+    }
+    case 'ac': return `.ac ${a.variation} ${printValue(a.points)} ${printValue(a.fstart)} ${printValue(a.fstop)}`;
+    case 'temp': return ['.temp', ...a.temps.map(printValue)].join(' ');
+  }
+}
+
+function supply(s: SupplyCard): string {
+  switch (s.kind) {
+    case 'supply': {
+      const keys: Array<[string, string | undefined]> = [['in', s.input], ['out', s.out], ['ref', s.ref], ['load', s.load], ['feed', s.feed]];
+      return ['.supply', ...keys.filter(([, v]) => v !== undefined).map(([k, v]) => `${k}=${v}`)].join(' ');
+    }
+    case 'figure': return ['.figure', s.figure, ...pairs(s.keys), ...(s.method ? [`method=${s.method}`] : [])].join(' ');
+    case 'limit': return `.limit ${s.figure} ${s.op} ${printValue(s.value)}`;
+    case 'spread': return `.spread ${s.target} ${printValue(s.ratio)} ${s.distribution}`;
+  }
+}
+
+function card(c: Card, out: string[], indent: string): void {
+  switch (c.kind) {
+    case 'model':
+      out.push(`${indent}.model ${c.name} ${c.type} (${pairs(c.params).join(' ')})`);
+      return;
+    case 'param':
+      out.push(`${indent}.param ${pairs(c.assignments).join(' ')}`);
+      return;
+    case 'subckt':
+      out.push(`${indent}${['.subckt', c.name, ...c.ports, ...pairs(c.defaults)].join(' ')}`);
+      for (const inner of c.body) card(inner, out, `${indent}  `);
+      out.push(`${indent}.ends ${c.name}`);
+      return;
+    case 'op': case 'dc': case 'tran': case 'ac': case 'temp':
+      out.push(indent + analysis(c));
+      return;
+    case 'supply': case 'figure': case 'limit': case 'spread':
+      out.push(indent + supply(c));
+      return;
+    default:
+      out.push(indent + element(c));
+  }
+}
+
+/**
+ * Renders a netlist as text: the title on line 1, one card per line
+ * (subcircuit bodies indented), `.end` last. Reading the text back gives
+ * the same cards and values.
+ */
+export function printNetlist(netlist: Netlist): string {
+  const out: string[] = [netlist.title.replace(/[\r\n]+/g, ' ')];
+  for (const c of netlist.cards) card(c, out, '');
+  out.push('.end', '');
+  return out.join('\n');
+}
