@@ -121,7 +121,8 @@ export class Cursor {
     if (r.reason === 'percent') {
       this.fail('bad-number', rules.percentMessage ?? `"${t.text}": a % sign is only allowed where a ratio is expected`, t, `${what} without %`);
     }
-    this.fail('bad-number', `expected ${what} but found "${t.text}", which is not a number`, t, `${expected} (a number such as 4.7k or 10u, or a {expression})`);
+    const hint = /^[+-]?\d+[a-z\u00b5\u03bc]+\d+$/i.test(t.text) ? ' (a suffix ends a number: write 4.7k, not 4k7)' : '';
+    this.fail('bad-number', `expected ${what} but found "${t.text}", which is not a number${hint}`, t, `${expected} (a number such as 4.7k or 10u, or a {expression})`);
   }
 
   private expression(t: Token): Value {
