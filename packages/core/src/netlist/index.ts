@@ -15,7 +15,7 @@ import { Cursor } from './cursor.js';
 import { defaultReadFile, topFrame } from './include.js';
 import { tokenize } from './lexer.js';
 import { ELEMENT_LETTERS, parseElement } from './parse-elements.js';
-import { DIRECTIVES, checkSize, readCards } from './reader.js';
+import { DIRECTIVES, addError, checkSize, readCards } from './reader.js';
 import type { ReadContext } from './reader.js';
 
 export type * from './ast.js';
@@ -83,7 +83,7 @@ function parseInner(text: string, options: ParseOptions): ParseResult {
   if (title !== undefined && looksLikeCard(title, file)) {
     ctx.warnings.push(warningAt('title-looks-like-card', 'line 1 is always the title; this one looks like an element or directive and was read as the title only', { file, line: 1, column: 1 }, title));
   }
-  if (!ctx.stopped) for (const d of checkNetlist(cards)) ctx.errors.push(d);
+  if (!ctx.stopped) for (const d of checkNetlist(cards)) addError(ctx, d);
   if (ctx.errors.length > 0) return { ok: false, errors: ctx.errors, warnings: ctx.warnings };
   return { ok: true, netlist: { title: title ?? '', file, cards }, warnings: ctx.warnings };
 }

@@ -35,11 +35,15 @@ export interface Located {
 
 /** Maps an offset of a logical line back to file, line and column. */
 export function locate(ll: LogicalLine, offset: number): Located {
-  let seg = ll.segments[0];
-  for (const s of ll.segments) {
-    if (s.start <= offset) seg = s;
-    else break;
+  // Binary search: a card may gather thousands of continuation lines.
+  let lo = 0;
+  let hi = ll.segments.length - 1;
+  while (lo < hi) {
+    const mid = (lo + hi + 1) >> 1;
+    if ((ll.segments[mid]?.start ?? 0) <= offset) lo = mid;
+    else hi = mid - 1;
   }
+  const seg = ll.segments[lo];
   if (!seg) return { pos: { file: ll.file, line: 1, column: 1 }, lineText: '' };
   return { pos: { file: ll.file, line: seg.line, column: seg.column + offset - seg.start }, lineText: seg.lineText };
 }
@@ -164,9 +168,17 @@ export interface Token {
 
 const PUNCT: Readonly<Record<string, TokenKind>> = { '(': 'lparen', ')': 'rparen', '=': 'eq' };
 
+/** True for white space, as JavaScript's `\s` defines it (one test per character, so kept cheap). */
+function isSpace(c: string): boolean {
+  const k = c.charCodeAt(0);
+  return k === 32 || (k >= 9 && k <= 13) || (k > 127 && /\s/.test(c));
+}
+
+const BREAKS = new Set([',', '(', ')', '{', '}', '=', '"', '<', '>', ';']);
+
 /** True for characters that end a word. */
 function isBreak(c: string): boolean {
-  return /[\s,(){}="<>;]/.test(c);
+  return BREAKS.has(c) || isSpace(c);
 }
 
 /**
@@ -187,7 +199,7 @@ export function tokenize(ll: LogicalLine): { tokens: Token[]; error?: Diagnostic
   let i = 0;
   while (i < s.length) {
     const c = s[i] ?? '';
-    if (/\s/.test(c) || c === ',') {
+    if (isSpace(c) || c === ',') {
       i++;
     } else if (PUNCT[c] !== undefined) {
       push(PUNCT[c], i, i + 1);
