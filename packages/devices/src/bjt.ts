@@ -110,7 +110,8 @@ class BjtImpl implements Bjt {
   }
 
   load(ctx: LoadContext): void {
-    const { x, state } = ctx;
+    const x = ctx.x;
+    const state = ctx.state;
     const sg = this.sign;
     const vbeRaw = sg * (at(x, this.bi) - at(x, this.ei));
     const vbcRaw = sg * (at(x, this.bi) - at(x, this.ci));
@@ -166,11 +167,10 @@ class BjtImpl implements Bjt {
   }
 
   private loadResistors(m: Float64Array): void {
-    const [c, b, e] = this.nodes;
     const s = this.scaled;
-    if (this.ci !== c) this.rc.add(m, 1 / s.RC);
-    if (this.bi !== b) this.rb.add(m, 1 / s.RB);
-    if (this.ei !== e) this.re.add(m, 1 / s.RE);
+    if (this.ci !== this.nodes[0]) this.rc.add(m, 1 / s.RC);
+    if (this.bi !== this.nodes[1]) this.rb.add(m, 1 / s.RB);
+    if (this.ei !== this.nodes[2]) this.re.add(m, 1 / s.RE);
   }
 
   private loadCharges(ctx: LoadContext, vbe: number, vbc: number): void {

@@ -138,9 +138,8 @@ class CurrentSourceImpl extends SourceBase implements CurrentSource {
   load(ctx: LoadContext): void {
     const i = this.present(ctx);
     this.last = i;
-    const [p, n] = this.nodes;
-    addAt(ctx.rhs, p, -i);
-    addAt(ctx.rhs, n, i);
+    addAt(ctx.rhs, this.nodes[0], -i);
+    addAt(ctx.rhs, this.nodes[1], i);
   }
 
   loadReactive(ctx: ReactiveContext): void {

@@ -103,7 +103,8 @@ class CapacitorImpl implements Capacitor {
   }
 
   load(ctx: LoadContext): void {
-    const [a, b] = this.nodes;
+    const a = this.nodes[0];
+    const b = this.nodes[1];
     const v = at(ctx.x, a) - at(ctx.x, b);
     const off = this.offset;
     ctx.state[off] = this.capacitance * v;
