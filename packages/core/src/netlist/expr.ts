@@ -13,6 +13,10 @@
  * power   := primary ('^' unary)?
  * primary := number | name | name '(' sum (',' sum)* ')' | '(' sum ')'
  * ```
+ * One function per precedence level is the textbook recursive-descent
+ * technique (Aho, Lam, Sethi and Ullman, Compilers: Principles, Techniques,
+ * and Tools, 2nd ed., §2.4 and §4.4; cited from memory). Evaluation is plain
+ * IEEE 754 double arithmetic, with `^` and `pow` as `Math.pow`.
  */
 import type { SourcePos } from '../errors.js';
 import type { Expr, ExprFunction } from './ast.js';

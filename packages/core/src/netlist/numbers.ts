@@ -1,6 +1,9 @@
 /**
  * Numbers as netlists write them (netlist.md, Numbers): a decimal mantissa,
- * an optional scale suffix, and unit letters that are ignored.
+ * an optional scale suffix, and unit letters that are ignored. The suffixes
+ * are the SI prefixes (BIPM, The International System of Units, 9th ed.,
+ * 2019, table 7) in the trade's spelling: `u`/`µ` micro, and `meg` for mega
+ * because `m` (any case) is milli.
  */
 
 /** Scale suffixes (netlist.md, Numbers) as powers of ten; `meg` is handled apart because `m` is milli. */

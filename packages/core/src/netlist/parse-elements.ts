@@ -48,7 +48,7 @@ function checkFields(c: Cursor, name: Token, min: number, max: number, needs: st
   const n = positionalCount(c);
   const form = FORMS[name.text[0]?.toUpperCase() ?? ''] ?? '';
   if (n < min) {
-    c.fail('wrong-node-count', `${name.text} needs ${needs}, but only ${n} field${n === 1 ? '' : 's'} follow${n === 1 ? 's' : ''} the name`, undefined, form);
+    c.fail('wrong-node-count', `${name.text} needs ${needs}${min > 2 ? ` (${min} fields after the name)` : ''}, but ${n === 0 ? 'none follow' : `only ${n} follow${n === 1 ? 's' : ''}`}`, undefined, form);
   }
   if (n > max) c.fail('too-many-fields', `${name.text} has ${n} fields after the name; at most ${max} are accepted (${needs})`, c.peek(max), form);
 }
