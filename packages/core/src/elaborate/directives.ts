@@ -19,9 +19,6 @@ export interface ResolvedDirectives {
   readonly spreads: readonly FlatSpread[];
 }
 
-/** Figure keys whose values are words rather than numbers. */
-const WORD_KEYS = new Set(['method']);
-
 /** Lowest temperature accepted, °C (absolute zero is not a place to simulate a junction). */
 const MIN_CELSIUS = -273;
 
@@ -114,9 +111,13 @@ export function resolveDirectives(
         };
       })
       .with({ kind: 'figure' }, (c) => {
-        const keys = new Map<string, number | string>();
-        for (const k of c.keys) keys.set(k.name.toLowerCase(), WORD_KEYS.has(k.name.toLowerCase()) ? k.value.text.toLowerCase() : num(k.value));
-        figures.push({ origin: c, figure: c.figure, keys });
+        const keys = new Map<string, number>();
+        const percentKeys = new Set<string>();
+        for (const k of c.keys) {
+          keys.set(k.name.toLowerCase(), num(k.value));
+          if (k.value.kind === 'number' && k.value.percent) percentKeys.add(k.name.toLowerCase());
+        }
+        figures.push({ origin: c, figure: c.figure, keys, percentKeys, method: c.method });
       })
       .with({ kind: 'limit' }, (c) => limits.push({ origin: c, figure: c.figure.toLowerCase(), op: c.op, value: num(c.value) }))
       .with({ kind: 'spread' }, (c) => spreads.push({ origin: c, target: c.target.toLowerCase(), ratio: num(c.ratio), distribution: c.distribution }))

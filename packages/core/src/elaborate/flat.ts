@@ -63,8 +63,12 @@ export interface FlatSupply {
 export interface FlatFigure {
   readonly origin: CardOrigin;
   readonly figure: FigureKind;
-  /** Keys lower-case; numeric values evaluated, word values (e.g. `method=ac`) as strings. */
-  readonly keys: ReadonlyMap<string, number | string>;
+  /** Keys lower-case, values evaluated (a `5%` is 0.05). */
+  readonly keys: ReadonlyMap<string, number>;
+  /** Keys whose value was written as a percentage (a ratio, e.g. `fall=5%` of the nominal output). */
+  readonly percentKeys: ReadonlySet<string>;
+  /** `method=` of a ripple figure. */
+  readonly method: 'ac' | 'tran' | 'both' | undefined;
 }
 
 /** A `.limit` check. */

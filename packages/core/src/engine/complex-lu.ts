@@ -1,0 +1,121 @@
+/**
+ * Complex dense LU in place (real and imaginary parts in separate
+ * Float64Arrays, same layout as {@link LuWorkspace}), with partial pivoting
+ * on the modulus and the same relative pivot tolerance as the real solver.
+ * For small-signal analysis: nothing is allocated per frequency point.
+ * Algorithm: Golub and Van Loan, Matrix Computations, 4th ed., alg. 3.4.1,
+ * in complex arithmetic.
+ */
+import { PIVOT_RELATIVE_TOLERANCE } from './lu.js';
+
+/** Storage for one complex factorisation. */
+export interface ComplexLuWorkspace {
+  readonly re: Float64Array;
+  readonly im: Float64Array;
+  readonly perm: Int32Array;
+  readonly columnScale: Float64Array;
+  /** Unknowns + 1. */
+  readonly size: number;
+}
+
+/** Allocates a complex workspace for `unknowns` unknowns. */
+export function createComplexLuWorkspace(unknowns: number): ComplexLuWorkspace {
+  const size = unknowns + 1;
+  return { re: new Float64Array(size * size), im: new Float64Array(size * size), perm: new Int32Array(size), columnScale: new Float64Array(size), size };
+}
+
+/** Factors in place; 0 on success, else the 1-based column without a pivot. */
+export function complexLuFactor(ws: ComplexLuWorkspace): number {
+  const { re, im, perm, columnScale, size: s } = ws;
+  const n = s - 1;
+  for (let k = 1; k <= n; k++) perm[k] = k;
+  columnScale.fill(0);
+  for (let i = 1; i <= n; i++) {
+    for (let j = 1; j <= n; j++) {
+      const m = Math.hypot(re[i * s + j]!, im[i * s + j]!);
+      if (m > columnScale[j]!) columnScale[j] = m;
+    }
+  }
+  for (let k = 1; k <= n; k++) {
+    let p = k;
+    let best = Math.hypot(re[k * s + k]!, im[k * s + k]!);
+    for (let i = k + 1; i <= n; i++) {
+      const m = Math.hypot(re[i * s + k]!, im[i * s + k]!);
+      if (m > best) {
+        best = m;
+        p = i;
+      }
+    }
+    if (!(best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]!) || best < 1e-300) return k;
+    if (p !== k) {
+      for (let j = 1; j <= n; j++) {
+        const a = k * s + j;
+        const b = p * s + j;
+        let t = re[a]!;
+        re[a] = re[b]!;
+        re[b] = t;
+        t = im[a]!;
+        im[a] = im[b]!;
+        im[b] = t;
+      }
+      const t = perm[k]!;
+      perm[k] = perm[p]!;
+      perm[p] = t;
+    }
+    const pr = re[k * s + k]!;
+    const pi = im[k * s + k]!;
+    const pd = pr * pr + pi * pi;
+    for (let i = k + 1; i <= n; i++) {
+      const ik = i * s + k;
+      const ar = re[ik]!;
+      const ai = im[ik]!;
+      if (ar === 0 && ai === 0) continue;
+      const lr = (ar * pr + ai * pi) / pd;
+      const li = (ai * pr - ar * pi) / pd;
+      re[ik] = lr;
+      im[ik] = li;
+      for (let j = k + 1; j <= n; j++) {
+        const kj = k * s + j;
+        const ij = i * s + j;
+        re[ij] = re[ij]! - (lr * re[kj]! - li * im[kj]!);
+        im[ij] = im[ij]! - (lr * im[kj]! + li * re[kj]!);
+      }
+    }
+  }
+  return 0;
+}
+
+/** Solves with the factors: b (re, im) in, x (re, im) out; x[0] = 0. */
+export function complexLuSolve(ws: ComplexLuWorkspace, bRe: Float64Array, bIm: Float64Array, xRe: Float64Array, xIm: Float64Array): void {
+  const { re, im, perm, size: s } = ws;
+  const n = s - 1;
+  xRe[0] = 0;
+  xIm[0] = 0;
+  for (let i = 1; i <= n; i++) {
+    let sr = bRe[perm[i]!]!;
+    let si = bIm[perm[i]!]!;
+    for (let j = 1; j < i; j++) {
+      const lr = re[i * s + j]!;
+      const li = im[i * s + j]!;
+      sr -= lr * xRe[j]! - li * xIm[j]!;
+      si -= lr * xIm[j]! + li * xRe[j]!;
+    }
+    xRe[i] = sr;
+    xIm[i] = si;
+  }
+  for (let i = n; i >= 1; i--) {
+    let sr = xRe[i]!;
+    let si = xIm[i]!;
+    for (let j = i + 1; j <= n; j++) {
+      const ur = re[i * s + j]!;
+      const ui = im[i * s + j]!;
+      sr -= ur * xRe[j]! - ui * xIm[j]!;
+      si -= ur * xIm[j]! + ui * xRe[j]!;
+    }
+    const dr = re[i * s + i]!;
+    const di = im[i * s + i]!;
+    const d = dr * dr + di * di;
+    xRe[i] = (sr * dr + si * di) / d;
+    xIm[i] = (si * dr - sr * di) / d;
+  }
+}

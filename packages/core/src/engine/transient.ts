@@ -1,0 +1,228 @@
+/**
+ * Transient analysis: implicit integration of the circuit's charges and
+ * fluxes with Newton at every time point, warm-started from the last
+ * accepted point. Backward Euler (order 1, L-stable) or the trapezoidal
+ * rule (order 2, A-stable); after every breakpoint the trapezoidal rule
+ * takes one backward-Euler step, the usual cure for its ringing at
+ * discontinuities (Nagel 1975). Step size from a local truncation error
+ * estimate ({@link SolutionHistory}); every pulse/pwl corner is landed on.
+ * Nothing is allocated per step except the stored output point.
+ */
+import { isKind, type IndependentSource } from '@railcheck/devices';
+import type { CompiledCircuit } from './compile.js';
+import { DEFAULT_NEWTON, newtonSolve, type NewtonOptions } from './newton.js';
+import { SolutionHistory } from './history.js';
+import { FINAL_GMIN, solveOperatingPoint, stragglers, type Straggler } from './dcop.js';
+
+/** Integration method. */
+export type IntegrationMethod = 'be' | 'trap';
+
+/** Options of one transient run. */
+export interface TransientOptions {
+  /** Output interval, s. Also the default pulse edge. */
+  readonly tstep: number;
+  /** End time, s. */
+  readonly tstop: number;
+  /** Largest internal step, s (default (tstop)/50). */
+  readonly tmax?: number | undefined;
+  /** Integration method (default 'trap'; see docs/transient.md for the measurement behind it). */
+  readonly method?: IntegrationMethod;
+  /** Start from the elements' ic= values (0 where absent) instead of the operating point. */
+  readonly fromIc?: boolean;
+  /** Relative LTE tolerance (default 1e-3). */
+  readonly lteReltol?: number;
+  /** Absolute LTE tolerance on voltages, V (default 1e-6). */
+  readonly lteVntol?: number;
+  /** Least number of steps per period of any sine source (default 50 for trap, 400 for be). */
+  readonly stepsPerCycle?: number;
+  /** Newton options per time point. */
+  readonly newton?: NewtonOptions;
+}
+
+/** Counters of one run. */
+export interface TransientStats {
+  accepted: number;
+  /** Steps rejected for truncation error. */
+  rejectedLte: number;
+  /** Steps rejected because Newton did not converge. */
+  rejectedNewton: number;
+  newtonIterations: number;
+  minStep: number;
+  maxStep: number;
+}
+
+/** Every accepted time point: times and the full solution vector at each. */
+export interface TransientTrace {
+  /** Unknowns + 1 (index 0 is ground, always 0). */
+  readonly size: number;
+  /** Number of accepted points (including t = 0). */
+  count: number;
+  /** Times, s (first `count` entries valid). */
+  times: Float64Array;
+  /** Solutions, row-major `count × size`. */
+  values: Float64Array;
+}
+
+/** Outcome of a transient run. */
+export type TransientOutcome =
+  | { readonly ok: true; readonly trace: TransientTrace; readonly stats: TransientStats }
+  | { readonly ok: false; readonly reason: 'initial-point' | 'step-too-small'; readonly time: number; readonly stragglers: readonly Straggler[]; readonly stats: TransientStats };
+
+/** Newton iterations allowed per time point before the step is cut. */
+const TRAN_ITERATIONS = 50;
+/** Step floor as a fraction of tstop (a common practice value, no source). */
+const MIN_STEP_FRACTION = 1e-13;
+/** Step-size change limits per step (common practice, no source). */
+const GROW_LIMIT = 2;
+const SHRINK_LIMIT = 0.2;
+const SAFETY = 0.9;
+
+function pushPoint(trace: TransientTrace, t: number, x: Float64Array): void {
+  if (trace.count === trace.times.length) {
+    const times = new Float64Array(trace.times.length * 2);
+    times.set(trace.times);
+    const values = new Float64Array(trace.values.length * 2);
+    values.set(trace.values);
+    trace.times = times;
+    trace.values = values;
+  }
+  trace.times[trace.count] = t;
+  trace.values.set(x, trace.count * trace.size);
+  trace.count++;
+}
+
+function collectBreakpoints(sources: Iterable<IndependentSource>, tstop: number): Float64Array {
+  const all: number[] = [];
+  for (const s of sources) s.breakpoints(0, tstop, all);
+  all.push(tstop);
+  all.sort((a, b) => a - b);
+  const out: number[] = [];
+  for (const t of all) if (t > 0 && t <= tstop && (out.length === 0 || t - out[out.length - 1]! > tstop * 1e-12)) out.push(t);
+  return Float64Array.from(out);
+}
+
+function smallestSinePeriod(sources: Iterable<IndependentSource>): number {
+  let period = Infinity;
+  for (const s of sources) if (s.waveform?.kind === 'sin' && s.waveform.freq > 0) period = Math.min(period, 1 / s.waveform.freq);
+  return period;
+}
+
+/**
+ * Runs a transient from 0 to `tstop`. The circuit's temperature and source
+ * values are taken as they are set. Returns every accepted point.
+ */
+export function runTransient(c: CompiledCircuit, opts: TransientOptions): TransientOutcome {
+  const method = opts.method ?? 'trap';
+  const newton = { ...(opts.newton ?? DEFAULT_NEWTON), maxIterations: TRAN_ITERATIONS };
+  const reltol = opts.lteReltol ?? 1e-3;
+  const vntol = opts.lteVntol ?? 1e-6;
+  const stepsPerCycle = opts.stepsPerCycle ?? (method === 'trap' ? 50 : 400);
+  const { ws } = c;
+  const { ctx, x } = ws;
+  const [state, statePrev] = [ws.states[0]!, ws.states[1]!];
+  ctx.state = state;
+  ctx.statePrev = statePrev;
+  const stats: TransientStats = { accepted: 0, rejectedLte: 0, rejectedNewton: 0, newtonIterations: 0, minStep: Infinity, maxStep: 0 };
+  const sources = [...c.sources.values()];
+  const savedEdges = sources.map((s) => s.defaultEdge);
+  for (const s of sources) s.defaultEdge = opts.tstep;
+  try {
+    const tstop = opts.tstop;
+    const hMax = Math.min(opts.tmax ?? tstop / 50, smallestSinePeriod(sources) / stepsPerCycle);
+    const hMin = tstop * MIN_STEP_FRACTION;
+    const isVoltage = Uint8Array.from(c.unknowns, (u) => (u.kind === 'branch' ? 0 : 1));
+    const trace: TransientTrace = { size: ws.size, count: 0, times: new Float64Array(1024), values: new Float64Array(1024 * ws.size) };
+    const fail = (reason: 'initial-point' | 'step-too-small', time: number): TransientOutcome => ({ ok: false, reason, time, stragglers: stragglers(c), stats });
+
+    // Initial point.
+    ctx.gmin = FINAL_GMIN;
+    ctx.sourceScale = 1;
+    if (opts.fromIc) {
+      // A backward-Euler step of vanishing length from the ic= state: capacitors act as
+      // voltage sources at their ic (0 if absent), inductors as current sources.
+      x.fill(0);
+      state.fill(0);
+      for (const d of c.devices) if (isKind(d, 'capacitor') || isKind(d, 'inductor')) d.seedInitialCondition(state);
+      statePrev.set(state);
+      ctx.mode = 'tran';
+      ctx.time = 0;
+      ctx.coefficients.a0 = 1 / (hMin * 1e-3);
+      ctx.coefficients.a1 = 0;
+      ctx.initJunctions = true;
+      const r = newtonSolve(c, { ...newton, maxIterations: DEFAULT_NEWTON.maxIterations });
+      stats.newtonIterations += r.iterations;
+      if (!r.converged) return fail('initial-point', 0);
+      state.set(statePrev);
+    } else {
+      const op = solveOperatingPoint(c);
+      if (!op.ok) return fail('initial-point', 0);
+      stats.newtonIterations += op.iterations;
+      statePrev.set(state);
+    }
+    ctx.mode = 'tran';
+    pushPoint(trace, 0, x);
+    const history = new SolutionHistory(ws.size, 3);
+    history.reset(0, x);
+    const breakpoints = collectBreakpoints(sources, tstop);
+    let nextBreak = 0;
+    let t = 0;
+    let h = Math.min(hMax, opts.tstep, (breakpoints[0] ?? tstop)) / 100;
+    let firstAfterBreak = true;
+    while (t < tstop) {
+      const target = breakpoints[nextBreak]!;
+      let tNew = t + h;
+      let landing = false;
+      if (tNew >= target - hMin) {
+        tNew = target;
+        landing = true;
+      }
+      const hStep = tNew - t;
+      const order: 1 | 2 = method === 'be' || firstAfterBreak ? 1 : 2;
+      ctx.coefficients.a0 = order === 1 ? 1 / hStep : 2 / hStep;
+      ctx.coefficients.a1 = order === 1 ? 0 : -1;
+      ctx.time = tNew;
+      ctx.initJunctions = false;
+      const r = newtonSolve(c, newton);
+      stats.newtonIterations += r.iterations;
+      if (!r.converged) {
+        stats.rejectedNewton++;
+        x.set(history.last);
+        state.set(statePrev);
+        h = hStep / 8;
+        if (h < hMin) return fail('step-too-small', tNew);
+        continue;
+      }
+      const ratio = history.errorRatio(tNew, x, order, isVoltage, reltol, vntol);
+      if (ratio > 1 && hStep > hMin * 16) {
+        stats.rejectedLte++;
+        x.set(history.last);
+        state.set(statePrev);
+        h = hStep * Math.max(SHRINK_LIMIT, SAFETY * Math.pow(ratio, -1 / (order + 1)));
+        continue;
+      }
+      // Accept.
+      t = tNew;
+      stats.accepted++;
+      stats.minStep = Math.min(stats.minStep, hStep);
+      stats.maxStep = Math.max(stats.maxStep, hStep);
+      statePrev.set(state);
+      pushPoint(trace, t, x);
+      const grow = ratio === 0 ? GROW_LIMIT : Math.min(GROW_LIMIT, SAFETY * Math.pow(ratio, -1 / (order + 1)));
+      h = Math.min(hMax, hStep * grow);
+      if (landing) {
+        nextBreak++;
+        history.reset(t, x);
+        firstAfterBreak = true;
+        h = Math.min(h, opts.tstep / 10, hMax);
+      } else {
+        history.accept(t, x);
+        firstAfterBreak = false;
+      }
+    }
+    return { ok: true, trace, stats };
+  } finally {
+    sources.forEach((s, i) => (s.defaultEdge = savedEdges[i]!));
+    ctx.mode = 'dc';
+    ctx.time = 0;
+  }
+}
