@@ -5,7 +5,8 @@
  * stack trace.
  */
 import { formatDiagnostic, runNetlistFile, type Diagnostic, type RunResult } from '@railcheck/core';
-import { fileURLToPath } from 'node:url';
+import { realpathSync } from 'node:fs';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 import { flagHelp, parseArgs, type FlagSpec } from './args.js';
 import { formatReport, formatWarnings } from './present/text.js';
 import { reportJson } from './present/json.js';
@@ -132,4 +133,22 @@ export async function main(argv: readonly string[], io: CliIo = defaultIo): Prom
     io.err(`railcheck: internal error: ${e instanceof Error ? e.message : String(e)} (please report this with the netlist)`);
     return EXIT_ERROR;
   }
+}
+
+/** True when this module is the script node was started with (the bundled `railcheck` command), not an import. */
+function startedAsCommand(): boolean {
+  const script = process.argv[1];
+  if (script === undefined) return false;
+  try {
+    // realpath: an installed bin is usually a symlink to the bundle.
+    return pathToFileURL(realpathSync(script)).href === import.meta.url;
+  } catch {
+    return false;
+  }
+}
+
+if (startedAsCommand()) {
+  void main(process.argv.slice(2)).then((status) => {
+    process.exitCode = status;
+  });
 }
