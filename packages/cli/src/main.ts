@@ -122,6 +122,10 @@ export async function main(argv: readonly string[], io: CliIo = defaultIo): Prom
       case '--help':
       case '-h': {
         const topic = rest[0];
+        if (topic !== undefined && topic !== 'run' && topic !== 'demo' && topic !== 'help') {
+          io.err(`railcheck help: no command '${topic}'; expected run, demo or help\n\n${USAGE}`);
+          return EXIT_ERROR;
+        }
         io.out(topic === 'run' ? RUN_HELP : topic === 'demo' ? DEMO_HELP : USAGE);
         return EXIT_OK;
       }
