@@ -42,7 +42,14 @@ export function createEvaluator(): Evaluator {
     },
     num(v, scope) {
       if (v.kind === 'number') return v.value;
-      const r = evaluateExpr(v.expr, (name) => lookupParam(scope, name));
+      // A parameter whose own definition failed holds NaN; its error is already reported once.
+      let usesFailed = false;
+      const r = evaluateExpr(v.expr, (name) => {
+        const p = lookupParam(scope, name);
+        if (p !== undefined && Number.isNaN(p)) usesFailed = true;
+        return p;
+      });
+      if (r.ok && usesFailed) return Number.NaN;
       if (!r.ok) {
         push(errorAt('undefined-parameter', `parameter '${r.name}' is not defined`, r.pos, lineOf(r.pos.file, r.pos.line), 'a name defined by .param, a subcircuit default or an instance parameter'));
         return Number.NaN;
