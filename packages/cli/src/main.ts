@@ -4,7 +4,9 @@
  * analysis fails (the message on standard error). A user never sees a
  * stack trace.
  */
-import { formatDiagnostic, runNetlistFile, type Diagnostic, type RunResult } from '@railcheck/core';
+import { formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type RunReport, type RunResult } from '@railcheck/core';
+import { writeFileSync } from 'node:fs';
+import { transientCsv } from './present/waves.js';
 import { realpathSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { flagHelp, parseArgs, type FlagSpec } from './args.js';
@@ -29,6 +31,8 @@ export const EXIT_ERROR = 2;
 
 const RUN_FLAGS: readonly FlagSpec[] = [
   { name: 'json', takesValue: false, help: 'print the result as one JSON object on standard output' },
+  { name: 'csv', takesValue: true, valueName: 'OUT.csv', help: 'write the transient waveforms (time and every node) to OUT.csv' },
+  { name: 'steps', takesValue: false, help: 'with --json or --csv: every accepted time step instead of the tstep grid' },
   { name: 'allow-outside-includes', takesValue: false, help: 'let .include reach files outside the netlist\'s folder tree' },
   { name: 'help', takesValue: false, help: 'show this help' },
 ];
@@ -41,7 +45,8 @@ const DEMO_FLAGS: readonly FlagSpec[] = [
 const USAGE = `railcheck: checks a discrete linear supply stage from its netlist before you solder.
 
 usage:
-  railcheck run FILE [--json]     simulate a netlist and report its operating point, sweeps and figures
+  railcheck run FILE [--json] [--csv OUT.csv]
+                                  simulate a netlist and report its operating point, sweeps, waveforms and figures
   railcheck demo [--json]         run the built-in example stage
   railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
 
@@ -77,13 +82,39 @@ function printErrors(io: CliIo, errors: readonly Diagnostic[], warnings: readonl
   io.err(`railcheck: ${errors.length} error${errors.length === 1 ? '' : 's'}; nothing was run to completion`);
 }
 
-function present(io: CliIo, result: RunResult, json: boolean): number {
+function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string | true>): number {
   if (!result.ok) {
     printErrors(io, result.errors, result.warnings);
     return EXIT_ERROR;
   }
-  if (json) io.out(JSON.stringify(reportJson(result.report), null, 2));
+  const steps = flags.has('steps');
+  const csv = flags.get('csv');
+  if (typeof csv === 'string') {
+    const written = writeCsv(io, result.report, csv, steps);
+    if (written !== EXIT_OK) return written;
+  }
+  if (flags.has('json')) io.out(JSON.stringify(reportJson(result.report, steps), null, 2));
   else io.out(formatReport(result.report));
+  return EXIT_OK;
+}
+
+/** Writes the first transient to `path` and any further ones (other temperatures, other .tran lines) beside it. */
+function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean): number {
+  if (report.transients.length === 0) {
+    io.err('railcheck run: --csv needs a .tran analysis in the netlist; none was run');
+    return EXIT_ERROR;
+  }
+  try {
+    report.transients.forEach((t, k) => {
+      const times = steps ? Array.from(t.trace.times.subarray(0, t.trace.count)) : t.times;
+      const nodes = steps ? sampleTrace(report.compiled, t.trace, times).nodes : t.nodes;
+      const file = k === 0 ? path : path.replace(/(\.csv)?$/i, `-${k + 1}$1`);
+      writeFileSync(file, transientCsv(times, nodes));
+    });
+  } catch (e) {
+    io.err(`railcheck run: cannot write ${path}: ${e instanceof Error ? e.message : String(e)}`);
+    return EXIT_ERROR;
+  }
   return EXIT_OK;
 }
 
@@ -105,7 +136,7 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
   }
   const file = demo ? demoPath() : positionals[0]!;
   const result = runNetlistFile(file, { allowOutsideIncludes: flags.has('allow-outside-includes') });
-  return present(io, result, flags.has('json'));
+  return present(io, result, flags);
 }
 
 /** Runs the command line `argv` (without `node` and the script); resolves to the exit status. */

@@ -10,18 +10,17 @@ const PREFIXES: ReadonlyArray<readonly [number, string]> = [
 
 /**
  * Formats `value` in `unit` with an SI prefix and `digits` significant
- * digits (default 4), trailing zeros dropped. Zero, non-finite values and
- * values below a femto-unit print plainly.
+ * digits (default 4), trailing zeros dropped. Values below 1e-18 print as
+ * 0; non-finite values print plainly.
  */
 export function formatSI(value: number, unit: string, digits = 4): string {
   const sep = unit ? ' ' : '';
-  if (value === 0) return `0${sep}${unit}`;
+  // Below an atto-unit a value is numerical dust (gmin currents, rounding): show it as zero.
+  if (value === 0 || Math.abs(value) < 1e-18) return `0${sep}${unit}`;
   if (!Number.isFinite(value)) return `${value}${sep}${unit}`;
-  const mag = Math.abs(value);
   for (const [scale, prefix] of PREFIXES) {
     const m = value / scale;
     if (Math.abs(m) >= 1 || scale === 1e-15) {
-      if (mag < 1e-18) return `${value.toExponential(digits - 1)}${sep}${unit}`;
       let text = Number(m.toPrecision(digits)).toString();
       // Rounding can carry a mantissa to 1000: step up one prefix.
       if (Math.abs(Number(text)) >= 1000 && scale < 1e12) {

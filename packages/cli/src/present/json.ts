@@ -2,12 +2,14 @@
  * The machine-readable result (figures.md, "Results"): `title`, `op`,
  * `figures`, `limits`, `warnings`, plus railcheck's own additions:
  * `file`, `temperature` (°C of `op`), `method`, `operating_points` (one per
- * `.temp` temperature) and `sweeps` (DC sweeps as columns).
+ * `.temp` temperature), `sweeps` (DC sweeps as columns), `transients` and
+ * `ac` (see docs/output.md).
  */
 import { formatDiagnostic, type RunReport } from '@railcheck/core';
+import { acJson, transientJson } from './waves.js';
 
 /** Builds the JSON object for a run. */
-export function reportJson(report: RunReport): Record<string, unknown> {
+export function reportJson(report: RunReport, steps = false): Record<string, unknown> {
   const nominal = report.operatingPoints[0];
   const op = (p: NonNullable<typeof nominal>) => ({ nodes: p.nodes, currents: p.currents, power: p.power });
   return {
@@ -21,5 +23,7 @@ export function reportJson(report: RunReport): Record<string, unknown> {
     warnings: report.warnings.map((w) => formatDiagnostic({ ...w, severity: 'warning' }).split('\n')[0]!),
     operating_points: report.operatingPoints.map((p) => ({ temperature: p.temperature, method: p.method, iterations: p.iterations, ...op(p) })),
     sweeps: report.sweeps.map((s) => ({ source: s.source, temperature: s.temperature, values: s.values, nodes: s.nodes, currents: s.currents })),
+    transients: report.transients.map((t) => transientJson(t, report.compiled, steps)),
+    ac: report.ac.map(acJson),
   };
 }

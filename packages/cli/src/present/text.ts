@@ -4,6 +4,7 @@
  */
 import { formatDiagnostic, formatSI, type DcSweep, type Diagnostic, type OperatingPoint, type RunReport } from '@railcheck/core';
 import { heading, table } from './table.js';
+import { formatAc, formatTransient } from './waves.js';
 
 const METHOD_WORDS: Readonly<Record<OperatingPoint['method'], string>> = {
   newton: 'Newton from a cold start',
@@ -63,6 +64,8 @@ export function formatReport(report: RunReport): string {
   const parts = [`railcheck — ${report.title || '(untitled)'}`, `  netlist ${report.file}`, ''];
   for (const op of report.operatingPoints) parts.push(formatOperatingPoint(op, report), '');
   for (const s of report.sweeps) parts.push(formatSweep(s), '');
+  for (const t of report.transients) parts.push(formatTransient(t), '');
+  for (const a of report.ac) parts.push(formatAc(a), '');
   const notes = formatWarnings(report.warnings);
   if (notes) parts.push(notes, '');
   return parts.join('\n');

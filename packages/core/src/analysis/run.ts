@@ -11,6 +11,8 @@ import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
 import { dcSweep, operatingPoint, type DcSweep, type OperatingPoint } from './dc.js';
 import { safetyWarnings } from './safety.js';
+import { transient, type TransientResult } from './tran.js';
+import { acFrequencies, acSweep, type AcResult } from './ac.js';
 
 /** Everything a run produced. */
 export interface RunReport {
@@ -18,10 +20,16 @@ export interface RunReport {
   readonly file: string;
   /** The flat circuit that was simulated. */
   readonly circuit: FlatCircuit;
+  /** The compiled circuit (devices and workspaces), for further analyses by library callers. */
+  readonly compiled: CompiledCircuit;
   /** Operating point at each temperature, in `.temp` order (the first is the nominal one). */
   readonly operatingPoints: readonly OperatingPoint[];
   /** DC sweeps, one per `.dc` and temperature. */
   readonly sweeps: readonly DcSweep[];
+  /** Transient runs, one per `.tran` and temperature. */
+  readonly transients: readonly TransientResult[];
+  /** Small-signal sweeps, one per `.ac` and temperature. */
+  readonly ac: readonly AcResult[];
   /** Warnings from every stage. */
   readonly warnings: readonly Diagnostic[];
 }
@@ -45,8 +53,9 @@ export function prepare(parsed: ParseResult): { ok: true; compiled: CompiledCirc
 
 function pendingWarnings(flat: FlatCircuit): Diagnostic[] {
   const out: Diagnostic[] = [];
+  const driven = flat.elements.some((el) => (el.kind === 'vsource' || el.kind === 'isource') && el.spec.acMag !== 0);
   for (const a of flat.analyses) {
-    if (a.kind === 'tran' || a.kind === 'ac') out.push(warningAt('not-available', `.${a.kind} is not available in this version of railcheck; it was skipped`, a.origin.pos, a.origin.lineText));
+    if (a.kind === 'ac' && !driven) out.push(warningAt('no-ac-drive', 'no source has an ac value, so every small-signal response is zero (add e.g. "ac 1" to the input source)', a.origin.pos, a.origin.lineText));
   }
   for (const f of flat.figures) out.push(warningAt('not-available', `figure '${f.figure}' is not available in this version of railcheck; it was skipped`, f.origin.pos, f.origin.lineText));
   for (const l of flat.limits) out.push(warningAt('not-available', `limit on '${l.figure}' was not checked: its figure is not available in this version`, l.origin.pos, l.origin.lineText));
@@ -54,20 +63,27 @@ function pendingWarnings(flat: FlatCircuit): Diagnostic[] {
 }
 
 /** Runs every analysis of a compiled circuit. Throws only RailcheckError (an analysis that fails). */
-export function analyse(c: CompiledCircuit): { operatingPoints: OperatingPoint[]; sweeps: DcSweep[] } {
+export function analyse(c: CompiledCircuit): { operatingPoints: OperatingPoint[]; sweeps: DcSweep[]; transients: TransientResult[]; ac: AcResult[] } {
   const flat = c.flat;
   const operatingPoints: OperatingPoint[] = [];
   const sweeps: DcSweep[] = [];
+  const transients: TransientResult[] = [];
+  const ac: AcResult[] = [];
   const opCard = flat.analyses.find((a) => a.kind === 'op')?.origin;
   for (const celsius of flat.temperatures) {
     setCircuitTemperature(c, celsius);
     operatingPoints.push(operatingPoint(c, celsius, opCard));
     for (const a of flat.analyses) {
       if (a.kind === 'dc') sweeps.push(dcSweep(c, celsius, a.source, a.start, a.stop, a.step, a.origin));
+      else if (a.kind === 'ac') ac.push(acSweep(c, celsius, acFrequencies(a.variation, a.points, a.fstart, a.fstop), a.origin));
+      else if (a.kind === 'tran') {
+        const method = a.flags.includes('be') ? 'be' : 'trap';
+        transients.push(transient(c, celsius, { tstep: a.tstep, tstop: a.tstop, tstart: a.tstart, tmax: a.tmax, method, fromIc: a.flags.includes('fromic') }, a.origin));
+      }
     }
   }
   setCircuitTemperature(c, flat.temperatures[0] ?? 27);
-  return { operatingPoints, sweeps };
+  return { operatingPoints, sweeps, transients, ac };
 }
 
 /** Runs netlist text. */
@@ -86,8 +102,8 @@ function runParsed(parsed: ParseResult): RunResult {
   const c = prepared.compiled;
   const warnings = [...prepared.warnings, ...safetyWarnings(c.flat), ...pendingWarnings(c.flat)];
   try {
-    const { operatingPoints, sweeps } = analyse(c);
-    return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, operatingPoints, sweeps, warnings } };
+    const results = analyse(c);
+    return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, compiled: c, ...results, warnings } };
   } catch (e) {
     if (e instanceof RailcheckError) return { ok: false, errors: e.diagnostics, warnings };
     return { ok: false, errors: [errorAt('internal', `internal error: ${e instanceof Error ? e.message : String(e)}`)], warnings };

@@ -11,8 +11,8 @@ import { isExprFunction } from './expr.js';
 import type { Token } from './lexer.js';
 import { IDENTIFIER } from './parse-elements.js';
 
-/** Flags a `.tran` line may end with. `fromic`: start from the `ic=` values without an operating point. */
-export const TRAN_FLAGS: readonly string[] = ['fromic'];
+/** Flags a `.tran` line may end with. `fromic`: start from the `ic=` values without an operating point; `be` / `trap`: integration method (backward Euler / trapezoidal, the default). */
+export const TRAN_FLAGS: readonly string[] = ['fromic', 'be', 'trap'];
 
 const MODEL_TYPES: readonly ModelType[] = ['D', 'NPN', 'PNP'];
 

@@ -1,0 +1,71 @@
+/**
+ * Transient and small-signal results for people (summary tables) and for
+ * tools (CSV per figures.md: `time,<node>,...`, one row per output point).
+ */
+import { formatSI, phasorDb, phasorDeg, sampleTrace, type AcResult, type CompiledCircuit, type TransientResult } from '@railcheck/core';
+import { heading, table } from './table.js';
+
+/** Largest number of node columns in text tables (everything is in --json and --csv). */
+const COLUMNS = 6;
+
+/** Per-node minimum, maximum, peak-to-peak and final value over a transient. */
+export function formatTransient(r: TransientResult): string {
+  const rows = [['node', 'min', 'max', 'peak-peak', 'at end']];
+  for (const [name, v] of Object.entries(r.nodes)) {
+    const lo = Math.min(...v);
+    const hi = Math.max(...v);
+    rows.push([name, formatSI(lo, 'V'), formatSI(hi, 'V'), formatSI(hi - lo, 'V'), formatSI(v[v.length - 1] ?? 0, 'V')]);
+  }
+  const s = r.stats;
+  const end = r.times[r.times.length - 1] ?? 0;
+  return [
+    heading(`Transient to ${formatSI(end, 's')} at ${r.temperature} °C`),
+    `  ${r.method === 'trap' ? 'trapezoidal rule' : 'backward Euler'}, from ${r.fromIc ? 'the ic= values' : 'the operating point'}; ` +
+      `${s.accepted} steps (${formatSI(s.minStep, 's')} to ${formatSI(s.maxStep, 's')}), ${s.rejectedLte + s.rejectedNewton} rejected, ${s.newtonIterations} Newton iterations`,
+    table(rows),
+  ].join('\n');
+}
+
+/** Magnitude and phase per node at up to about a dozen of the sweep's frequencies. */
+export function formatAc(r: AcResult): string {
+  const names = Object.keys(r.nodes).slice(0, COLUMNS);
+  const stride = Math.max(1, Math.ceil(r.frequencies.length / 12));
+  const rows = [['frequency', ...names.map((n) => `${n} dB / °`)]];
+  for (let k = 0; k < r.frequencies.length; k += stride) {
+    rows.push([
+      formatSI(r.frequencies[k]!, 'Hz'),
+      ...names.map((n) => {
+        const p = r.nodes[n]!;
+        return `${phasorDb(p.re[k]!, p.im[k]!).toFixed(2)} / ${phasorDeg(p.re[k]!, p.im[k]!).toFixed(1)}`;
+      }),
+    ]);
+  }
+  const more = Object.keys(r.nodes).length - names.length;
+  return [heading(`Small-signal sweep at ${r.temperature} °C`), table(rows), ...(more > 0 ? [`  (${more} more node(s) in --json output)`] : [])].join('\n');
+}
+
+/** JSON form of a transient: the output grid, or with `steps` every accepted point. */
+export function transientJson(r: TransientResult, c: CompiledCircuit, steps: boolean): Record<string, unknown> {
+  const base = { temperature: r.temperature, method: r.method, from_ic: r.fromIc, stats: r.stats };
+  if (!steps) return { ...base, points: 'grid', times: r.times, nodes: r.nodes, branches: r.branches };
+  const times = Array.from(r.trace.times.subarray(0, r.trace.count));
+  return { ...base, points: 'accepted', times, ...sampleTrace(c, r.trace, times) };
+}
+
+/** JSON form of a small-signal sweep: magnitude (dB) and phase (degrees) per node. */
+export function acJson(r: AcResult): Record<string, unknown> {
+  const nodes: Record<string, { db: number[]; phase_deg: number[]; re: readonly number[]; im: readonly number[] }> = {};
+  for (const [name, p] of Object.entries(r.nodes)) {
+    nodes[name] = { db: p.re.map((re, k) => phasorDb(re, p.im[k]!)), phase_deg: p.re.map((re, k) => phasorDeg(re, p.im[k]!)), re: p.re, im: p.im };
+  }
+  return { temperature: r.temperature, frequencies: r.frequencies, nodes };
+}
+
+/** CSV text per figures.md: header `time,<node>,...`, then one row per point, SI units. */
+export function transientCsv(times: readonly number[], nodes: Readonly<Record<string, readonly number[]>>): string {
+  const names = Object.keys(nodes);
+  const quote = (s: string): string => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
+  const lines = [['time', ...names].map(quote).join(',')];
+  times.forEach((t, k) => lines.push([t, ...names.map((n) => nodes[n]![k]!)].map((v) => String(v)).join(',')));
+  return `${lines.join('\n')}\n`;
+}

@@ -1,0 +1,87 @@
+/**
+ * The `.tran` analysis in the user's terms: node voltages and branch
+ * currents on the output grid (every `tstep` from `tstart` to `tstop`, by
+ * linear interpolation between accepted points), the accepted points
+ * themselves, and the stepper's counters.
+ */
+import { errorAt, RailcheckError } from '../errors.js';
+import type { CardOrigin } from '../netlist/ast.js';
+import type { CompiledCircuit } from '../engine/compile.js';
+import { runTransient, type IntegrationMethod, type TransientStats, type TransientTrace } from '../engine/transient.js';
+import { formatSI } from '../units.js';
+
+/** Waveforms of one transient run. */
+export interface TransientResult {
+  /** °C. */
+  readonly temperature: number;
+  readonly method: IntegrationMethod;
+  /** True when the run started from ic= values instead of the operating point. */
+  readonly fromIc: boolean;
+  readonly stats: TransientStats;
+  /** Output grid, s. */
+  readonly times: readonly number[];
+  /** Node name → volts on the grid. */
+  readonly nodes: Readonly<Record<string, readonly number[]>>;
+  /** Branch-current name (voltage sources, inductors, E and H) → amps on the grid. */
+  readonly branches: Readonly<Record<string, readonly number[]>>;
+  /** Every accepted point (times and full solution vectors). */
+  readonly trace: TransientTrace;
+}
+
+/** What a `.tran` card asks for. */
+export interface TransientRequest {
+  readonly tstep: number;
+  readonly tstop: number;
+  readonly tstart: number;
+  readonly tmax: number | undefined;
+  readonly method: IntegrationMethod;
+  readonly fromIc: boolean;
+}
+
+/** Linear interpolation of unknown `index` of the trace at the grid times. */
+function sample(trace: TransientTrace, index: number, grid: readonly number[]): number[] {
+  const out: number[] = [];
+  let k = 0;
+  const { times, values, size, count } = trace;
+  for (const t of grid) {
+    while (k < count - 2 && times[k + 1]! < t) k++;
+    const t0 = times[k]!;
+    const t1 = times[Math.min(k + 1, count - 1)]!;
+    const v0 = values[k * size + index]!;
+    const v1 = values[Math.min(k + 1, count - 1) * size + index]!;
+    out.push(t1 > t0 ? v0 + ((v1 - v0) * (t - t0)) / (t1 - t0) : v0);
+  }
+  return out;
+}
+
+/** The output grid: tstart, tstart + tstep, ..., tstop. */
+export function outputGrid(tstep: number, tstart: number, tstop: number): number[] {
+  const n = Math.floor((tstop - tstart) / tstep + 1e-9);
+  const grid = Array.from({ length: n + 1 }, (_, k) => tstart + k * tstep);
+  if (tstop - grid[grid.length - 1]! > tstep * 1e-9) grid.push(tstop);
+  return grid;
+}
+
+/** Samples every node and branch current of a trace on a grid. */
+export function sampleTrace(c: CompiledCircuit, trace: TransientTrace, grid: readonly number[]): { nodes: Record<string, number[]>; branches: Record<string, number[]> } {
+  const nodes: Record<string, number[]> = {};
+  for (const node of c.flat.nodes) nodes[node.name] = sample(trace, c.nodeIndex.get(node.key)!, grid);
+  const branches: Record<string, number[]> = {};
+  c.unknowns.forEach((u, i) => {
+    if (u.kind === 'branch') branches[u.name] = sample(trace, i, grid);
+  });
+  return { nodes, branches };
+}
+
+/** Runs a transient at the present temperature; throws RailcheckError when it cannot complete. */
+export function transient(c: CompiledCircuit, temperature: number, req: TransientRequest, origin?: CardOrigin): TransientResult {
+  const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc });
+  if (!outcome.ok) {
+    const where = outcome.reason === 'initial-point' ? 'at its initial point' : `at t = ${formatSI(outcome.time, 's')}: the time step fell below its floor`;
+    const worst = outcome.stragglers.map((s) => `${s.name} = ${formatSI(s.value, '')} (last update ${formatSI(s.update, '')})`).join('; ');
+    throw new RailcheckError([errorAt('transient-failed', `transient at ${temperature} °C failed ${where}${worst ? `. Least settled: ${worst}` : ''}`, origin?.pos, origin?.lineText, 'a circuit whose waveforms stay finite; look for switching with no series resistance, or a source edge of zero duration')]);
+  }
+  const grid = outputGrid(req.tstep, req.tstart, req.tstop);
+  const { nodes, branches } = sampleTrace(c, outcome.trace, grid);
+  return { temperature, method: req.method, fromIc: req.fromIc, stats: outcome.stats, times: grid, nodes, branches, trace: outcome.trace };
+}
