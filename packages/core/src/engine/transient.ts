@@ -8,7 +8,7 @@
  * estimate ({@link SolutionHistory}); every pulse/pwl corner is landed on.
  * Nothing is allocated per step except the stored output point.
  */
-import { isKind, type IndependentSource } from '@railcheck/devices';
+import { isKind, type IndependentSource, type LoadContext } from '@railcheck/devices';
 import type { CompiledCircuit } from './compile.js';
 import { DEFAULT_NEWTON, newtonSolve, type NewtonOptions } from './newton.js';
 import { SolutionHistory } from './history.js';
@@ -43,6 +43,16 @@ export interface TransientOptions {
    * integration methods themselves; not offered in netlists.
    */
   readonly fixedStep?: number;
+  /** More times the stepper must land on, s (e.g. whole cycles of a mains-fed stage). */
+  readonly extraBreakpoints?: readonly number[];
+  /**
+   * Called at every accepted point with its time (s) and the load context
+   * (solution in `ctx.x`, charges in `ctx.state`); returning true ends the
+   * run there, successfully. For measurements that accumulate as they go.
+   */
+  readonly onAccept?: (timeSeconds: number, ctx: LoadContext) => boolean | void;
+  /** When false, accepted points are not stored (only t = 0 and the last); default true. */
+  readonly keepTrace?: boolean;
 }
 
 /** Counters of one run. */
@@ -97,8 +107,8 @@ function pushPoint(trace: TransientTrace, t: number, x: Float64Array): void {
   trace.count++;
 }
 
-function collectBreakpoints(sources: Iterable<IndependentSource>, tstop: number): Float64Array {
-  const all: number[] = [];
+function collectBreakpoints(sources: Iterable<IndependentSource>, tstop: number, extra: readonly number[]): Float64Array {
+  const all: number[] = [...extra];
   for (const s of sources) s.breakpoints(0, tstop, all);
   all.push(tstop);
   all.sort((a, b) => a - b);
@@ -167,9 +177,11 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     }
     ctx.mode = 'tran';
     pushPoint(trace, 0, x);
+    opts.onAccept?.(0, ctx);
     const history = new SolutionHistory(ws.size, 3);
     history.reset(0, x);
-    const breakpoints = collectBreakpoints(sources, tstop);
+    const breakpoints = collectBreakpoints(sources, tstop, opts.extraBreakpoints ?? []);
+    const keep = opts.keepTrace ?? true;
     let nextBreak = 0;
     let t = 0;
     const fixed = opts.fixedStep;
@@ -213,7 +225,11 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       stats.minStep = Math.min(stats.minStep, hStep);
       stats.maxStep = Math.max(stats.maxStep, hStep);
       statePrev.set(state);
-      pushPoint(trace, t, x);
+      if (keep || t >= tstop) pushPoint(trace, t, x);
+      if (opts.onAccept?.(t, ctx) === true) {
+        if (!keep && t < tstop) pushPoint(trace, t, x);
+        break;
+      }
       const grow = ratio === 0 ? GROW_LIMIT : Math.min(GROW_LIMIT, SAFETY * Math.pow(ratio, -1 / (order + 1)));
       h = fixed ?? Math.min(hMax, hStep * grow);
       if (landing && fixed === undefined) {
