@@ -28,6 +28,24 @@ export type WaveformSpec =
       readonly kind: 'pwl';
       /** Times in s, strictly increasing. */ readonly times: readonly number[];
       /** Values at those times. */ readonly values: readonly number[];
+    }
+  | {
+      /** The sum of several waveforms (built by measurements, e.g. a dip with ripple on it; not netlist syntax). */
+      readonly kind: 'sum';
+      readonly parts: readonly WaveformSpec[];
+    }
+  | {
+      /**
+       * A sine whose amplitude follows a piecewise-linear envelope:
+       * vo + envelope(t)·sin(2π·freq·t + phase°). Built by measurements on
+       * stages fed from a transformer secondary; not netlist syntax.
+       */
+      readonly kind: 'modulated';
+      readonly vo: number;
+      /** Hz. */ readonly freq: number;
+      readonly phaseDeg: number;
+      /** Envelope corner times, s, increasing. */ readonly times: readonly number[];
+      /** Peak amplitudes at those times. */ readonly amplitudes: readonly number[];
     };
 
 /** Everything an independent source is given by the elaborator. */

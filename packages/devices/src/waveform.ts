@@ -53,8 +53,10 @@ export function pulseValue(w: Pulse, t: number, defaultEdge: number): number {
 
 /** Piecewise linear through (times[i], values[i]), held at the end values outside the points. */
 export function pwlValue(w: Pwl, t: number): number {
-  const ts = w.times;
-  const vs = w.values;
+  return piecewiseLinear(w.times, w.values, t);
+}
+
+function piecewiseLinear(ts: readonly number[], vs: readonly number[], t: number): number {
   const n = ts.length;
   if (n === 0) return 0;
   if (t <= (ts[0] as number)) return vs[0] as number;
@@ -83,6 +85,15 @@ export function waveformValue(w: WaveformSpec, t: number, defaultEdge: number): 
       return pulseValue(w, t, defaultEdge);
     case 'pwl':
       return pwlValue(w, t);
+    case 'sum': {
+      let v = 0;
+      for (let k = 0; k < w.parts.length; k++) v += waveformValue(w.parts[k]!, t, defaultEdge);
+      return v;
+    }
+    case 'modulated': {
+      const env = piecewiseLinear(w.times, w.amplitudes, t);
+      return w.vo + env * Math.sin(2 * Math.PI * w.freq * t + w.phaseDeg * DEG);
+    }
   }
 }
 
@@ -129,9 +140,15 @@ export function waveformBreakpoints(w: WaveformSpec, from: number, to: number, d
     case 'pulse':
       pulseBreakpoints(w, from, to, defaultEdge, out);
       return;
-    case 'pwl': {
+    case 'pwl':
+    case 'modulated': {
       let last = -Infinity;
       for (const t of w.times) last = pushCorner(out, t, from, to, last);
+      return;
+    }
+    case 'sum': {
+      for (const part of w.parts) waveformBreakpoints(part, from, to, defaultEdge, out);
+      out.sort((a, b) => a - b);
       return;
     }
   }

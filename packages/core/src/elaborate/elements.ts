@@ -49,6 +49,7 @@ function valueAtZero(w: WaveformSpec): number {
     .with({ kind: 'sin' }, (s) => s.vo + (s.td > 0 ? 0 : s.va * Math.sin((s.phaseDeg * Math.PI) / 180)))
     .with({ kind: 'pulse' }, (p) => p.v1)
     .with({ kind: 'pwl' }, (p) => p.values[0] ?? 0)
+    .with({ kind: 'sum' }, { kind: 'modulated' }, () => 0) // built by measurements only, never read from a netlist
     .exhaustive();
 }
 

@@ -8,7 +8,7 @@
  * estimate ({@link SolutionHistory}); every pulse/pwl corner is landed on.
  * Nothing is allocated per step except the stored output point.
  */
-import { isKind, type IndependentSource, type LoadContext } from '@railcheck/devices';
+import { isKind, type IndependentSource, type LoadContext, type WaveformSpec } from '@railcheck/devices';
 import type { CompiledCircuit } from './compile.js';
 import { DEFAULT_NEWTON, newtonSolve, type NewtonOptions } from './newton.js';
 import { SolutionHistory } from './history.js';
@@ -117,9 +117,16 @@ function collectBreakpoints(sources: Iterable<IndependentSource>, tstop: number,
   return Float64Array.from(out);
 }
 
+function sinePeriod(w: WaveformSpec | undefined): number {
+  if (!w) return Infinity;
+  if ((w.kind === 'sin' || w.kind === 'modulated') && w.freq > 0) return 1 / w.freq;
+  if (w.kind === 'sum') return Math.min(...w.parts.map(sinePeriod));
+  return Infinity;
+}
+
 function smallestSinePeriod(sources: Iterable<IndependentSource>): number {
   let period = Infinity;
-  for (const s of sources) if (s.waveform?.kind === 'sin' && s.waveform.freq > 0) period = Math.min(period, 1 / s.waveform.freq);
+  for (const s of sources) period = Math.min(period, sinePeriod(s.waveform));
   return period;
 }
 
