@@ -4,7 +4,8 @@
  * on the modulus and the same relative pivot tolerance as the real solver.
  * For small-signal analysis: nothing is allocated per frequency point.
  * Algorithm: Golub and Van Loan, Matrix Computations, 4th ed., alg. 3.4.1,
- * in complex arithmetic.
+ * in complex arithmetic; complex division by Smith's method (R. L. Smith,
+ * Algorithm 116: Complex division, Commun. ACM 5(8), 1962).
  */
 import { PIVOT_RELATIVE_TOLERANCE } from './lu.js';
 
@@ -64,14 +65,28 @@ export function complexLuFactor(ws: ComplexLuWorkspace): number {
     }
     const pr = re[k * s + k]!;
     const pi = im[k * s + k]!;
-    const pd = pr * pr + pi * pi;
+    // Reciprocal by Smith's method: dividing by |pivot|² would under- or overflow
+    // for pivot moduli beyond about 1e±154, which the pivot floor lets through.
+    let ir: number;
+    let ii: number;
+    if (Math.abs(pr) >= Math.abs(pi)) {
+      const r = pi / pr;
+      const d = pr + pi * r;
+      ir = 1 / d;
+      ii = -r / d;
+    } else {
+      const r = pr / pi;
+      const d = pr * r + pi;
+      ir = r / d;
+      ii = -1 / d;
+    }
     for (let i = k + 1; i <= n; i++) {
       const ik = i * s + k;
       const ar = re[ik]!;
       const ai = im[ik]!;
       if (ar === 0 && ai === 0) continue;
-      const lr = (ar * pr + ai * pi) / pd;
-      const li = (ai * pr - ar * pi) / pd;
+      const lr = ar * ir - ai * ii;
+      const li = ar * ii + ai * ir;
       re[ik] = lr;
       im[ik] = li;
       for (let j = k + 1; j <= n; j++) {
@@ -112,10 +127,19 @@ export function complexLuSolve(ws: ComplexLuWorkspace, bRe: Float64Array, bIm: F
       sr -= ur * xRe[j]! - ui * xIm[j]!;
       si -= ur * xIm[j]! + ui * xRe[j]!;
     }
+    // Smith's division, as in the factorisation.
     const dr = re[i * s + i]!;
     const di = im[i * s + i]!;
-    const d = dr * dr + di * di;
-    xRe[i] = (sr * dr + si * di) / d;
-    xIm[i] = (si * dr - sr * di) / d;
+    if (Math.abs(dr) >= Math.abs(di)) {
+      const r = di / dr;
+      const d = dr + di * r;
+      xRe[i] = (sr + si * r) / d;
+      xIm[i] = (si - sr * r) / d;
+    } else {
+      const r = dr / di;
+      const d = dr * r + di;
+      xRe[i] = (sr * r + si) / d;
+      xIm[i] = (si * r - sr) / d;
+    }
   }
 }
