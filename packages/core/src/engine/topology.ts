@@ -38,6 +38,8 @@ export function checkTopology(flat: FlatCircuit, devices: readonly Device[], unk
   const dc = makeSets(n);
   const loops = makeSets(n);
   const touching = new Map<number, string[]>();
+  // Unknown index of each node key (nodes come first, after ground): one look-up per terminal, not a scan.
+  const indexOf = new Map(flat.nodes.map((node, i) => [node.key, i + 1] as const));
   devices.forEach((d, i) => {
     const topo = d.topology();
     for (const [a, b] of topo.dcPaths) dc.union(a, b);
@@ -49,22 +51,28 @@ export function checkTopology(flat: FlatCircuit, devices: readonly Device[], unk
         errors.push(errorAt('voltage-loop', `${el.name} closes a loop of voltage sources and inductors between ${na} and ${nb}`, el.origin.pos, el.origin.lineText, 'no loop made only of V, E, H and L elements (add a series resistance)'));
       }
     }
-    flat.elements[i]!.nodes.forEach((key) => {
-      const idx = flat.nodes.findIndex((node) => node.key === key) + 1;
-      if (idx > 0) touching.set(idx, [...(touching.get(idx) ?? []), flat.elements[i]!.name]);
-    });
+    for (const key of flat.elements[i]!.nodes) {
+      const idx = indexOf.get(key);
+      if (idx === undefined) continue;
+      const list = touching.get(idx);
+      if (list) list.push(flat.elements[i]!.name);
+      else touching.set(idx, [flat.elements[i]!.name]);
+    }
   });
   const ground = dc.find(0);
   const floating = new Map<number, number[]>();
   for (let i = 1; i < n; i++) {
     if (unknowns[i]!.kind !== 'node' || dc.find(i) === ground) continue;
     const root = dc.find(i);
-    floating.set(root, [...(floating.get(root) ?? []), i]);
+    const group = floating.get(root);
+    if (group) group.push(i);
+    else floating.set(root, [i]);
   }
   for (const group of floating.values()) {
     const names = group.map((i) => unknowns[i]!.name);
     const elements = [...new Set(group.flatMap((i) => touching.get(i) ?? []))];
-    const first = flat.elements.find((el) => elements.includes(el.name));
+    const attached = new Set(elements);
+    const first = flat.elements.find((el) => attached.has(el.name));
     errors.push(errorAt(
       'no-dc-path',
       `node${names.length > 1 ? 's' : ''} ${names.join(', ')} ha${names.length > 1 ? 've' : 's'} no DC path to ground (connected only through ${elements.join(', ') || 'nothing'})`,
