@@ -24,6 +24,13 @@ export type ElaborateResult =
 /** Deepest subcircuit nesting accepted (a guard; real stages nest a few levels). */
 const MAX_INSTANCE_DEPTH = 64;
 
+/**
+ * Most elements a flattened circuit may have (a guard: supply stages have tens). Subcircuits
+ * that instantiate others several times multiply, so a short file could otherwise expand
+ * into millions of elements and exhaust memory.
+ */
+export const MAX_FLAT_ELEMENTS = 100_000;
+
 interface Walk {
   readonly ev: Evaluator;
   readonly elements: FlatElement[];
@@ -31,6 +38,8 @@ interface Walk {
   readonly analyses: AnalysisCard[];
   readonly directives: SupplyCard[];
   readonly names: Map<string, FlatElement>;
+  /** Set once {@link MAX_FLAT_ELEMENTS} is reached; no further instance is expanded. */
+  full: boolean;
 }
 
 /** Registers the definitions of one level (models, subcircuits), then its parameters in order. */
@@ -85,6 +94,12 @@ function walkLevel(w: Walk, scope: Scope, cards: readonly Card[]): void {
 }
 
 function instantiate(w: Walk, scope: Scope, card: InstanceCard): void {
+  if (w.full) return;
+  if (w.elements.length >= MAX_FLAT_ELEMENTS) {
+    w.full = true;
+    w.ev.fail(card, 'too-many-elements', `the flattened circuit has more than ${MAX_FLAT_ELEMENTS} elements by the time ${scope.prefixName}${card.name} is expanded`, 'subcircuits that do not multiply into so many elements');
+    return;
+  }
   const defName = card.subckt.toLowerCase();
   const def = lookupSubckt(scope, defName);
   if (!def) {
@@ -148,7 +163,7 @@ function resolveControls(w: Walk): FlatElement[] {
  * netlist with errors yields `ok: false`.
  */
 export function elaborate(netlist: Netlist): ElaborateResult {
-  const w: Walk = { ev: createEvaluator(), elements: [], nodes: new Map(), analyses: [], directives: [], names: new Map() };
+  const w: Walk = { ev: createEvaluator(), elements: [], nodes: new Map(), analyses: [], directives: [], names: new Map(), full: false };
   const top = topScope();
   walkLevel(w, top, netlist.cards);
   const elements = resolveControls(w);
