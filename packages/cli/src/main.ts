@@ -95,7 +95,8 @@ function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string
   }
   if (flags.has('json')) io.out(JSON.stringify(reportJson(result.report, steps), null, 2));
   else io.out(formatReport(result.report));
-  return EXIT_OK;
+  const failed = result.report.figures?.limits.some((l) => !l.pass) ?? false;
+  return failed ? EXIT_LIMIT_FAILED : EXIT_OK;
 }
 
 /** Writes the first transient to `path` and any further ones (other temperatures, other .tran lines) beside it. */

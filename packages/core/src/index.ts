@@ -47,3 +47,24 @@ export type { RunReport, RunResult } from './analysis/run.js';
 export { safetyWarnings, MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/safety.js';
 
 export { formatSI } from './units.js';
+
+export { measureFigures, checkLimits, figureUnit } from './measure/figures.js';
+export type { FigureReport, MeasuredFigure, LimitResult } from './measure/figures.js';
+export { createDcBench, voutAt, backToNominal } from './measure/bench.js';
+export type { Bench } from './measure/bench.js';
+export { makeStage, vout, applySetting, solveSetting } from './measure/stage.js';
+export type { Stage, StageLoad, DcSetting } from './measure/stage.js';
+export { lineRegulation, loadRegulation } from './measure/regulation.js';
+export type { LineRegulation, LineOptions, LoadRegulation, LoadOptions } from './measure/regulation.js';
+export { dropout, DEFAULT_DROPOUT_FALL } from './measure/dropout.js';
+export type { Dropout } from './measure/dropout.js';
+export { rippleRejection, rippleTransfer, rippleTransient, RIPPLE_AGREEMENT_DB } from './measure/ripple.js';
+export type { RippleOptions, RippleRejection } from './measure/ripple.js';
+export { dissipation, ratingWarnings } from './measure/dissipation.js';
+export type { Dissipation, DissipationOptions } from './measure/dissipation.js';
+export { sagRideThrough } from './measure/sag.js';
+export type { SagOptions, SagRideThrough } from './measure/sag.js';
+export { runToPeriodicSteadyState, SETTLE_TOLERANCE } from './measure/periodic.js';
+export type { PeriodicOptions, PeriodicResult, CycleStats, Probe } from './measure/periodic.js';
+export { createAcBench, pssAt, measureAcFedFigure } from './measure/acfed.js';
+export type { AcBench, PssPoint } from './measure/acfed.js';

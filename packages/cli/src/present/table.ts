@@ -3,8 +3,8 @@
  * right-aligned value columns, two spaces between.
  */
 
-/** Lays out rows (first row is the header) with aligned columns. */
-export function table(rows: ReadonlyArray<readonly string[]>, indent = '  '): string {
+/** Lays out rows with aligned columns: the first left-aligned, the others right-aligned unless `leftAligned`. */
+export function table(rows: ReadonlyArray<readonly string[]>, indent = '  ', leftAligned = false): string {
   const widths: number[] = [];
   for (const row of rows) row.forEach((cell, i) => (widths[i] = Math.max(widths[i] ?? 0, [...cell].length)));
   return rows
@@ -13,7 +13,7 @@ export function table(rows: ReadonlyArray<readonly string[]>, indent = '  '): st
       row
         .map((cell, i) => {
           const pad = (widths[i] ?? 0) - [...cell].length;
-          return i === 0 ? cell + ' '.repeat(pad) : ' '.repeat(pad) + cell;
+          return i === 0 || leftAligned ? cell + ' '.repeat(pad) : ' '.repeat(pad) + cell;
         })
         .join('  ')
         .trimEnd(),

@@ -5,6 +5,7 @@
 import { formatDiagnostic, formatSI, type DcSweep, type Diagnostic, type OperatingPoint, type RunReport } from '@railcheck/core';
 import { heading, table } from './table.js';
 import { formatAc, formatTransient } from './waves.js';
+import { formatFigures, formatLimits, formatStage } from './figures.js';
 
 const METHOD_WORDS: Readonly<Record<OperatingPoint['method'], string>> = {
   newton: 'Newton from a cold start',
@@ -62,6 +63,11 @@ export function formatWarnings(warnings: readonly Diagnostic[]): string {
 /** The whole text report of a run. */
 export function formatReport(report: RunReport): string {
   const parts = [`railcheck — ${report.title || '(untitled)'}`, `  netlist ${report.file}`, ''];
+  const stage = formatStage(report);
+  if (stage) parts.push(stage, '');
+  if (report.figures && report.figures.figures.length > 0) parts.push(formatFigures(report.figures, report.circuit.temperatures[0] ?? 27), '');
+  const limits = report.figures ? formatLimits(report.figures.limits) : '';
+  if (limits) parts.push(limits, '');
   for (const op of report.operatingPoints) parts.push(formatOperatingPoint(op, report), '');
   for (const s of report.sweeps) parts.push(formatSweep(s), '');
   for (const t of report.transients) parts.push(formatTransient(t), '');

@@ -11,6 +11,7 @@ import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
 import { dcSweep, operatingPoint, type DcSweep, type OperatingPoint } from './dc.js';
 import { safetyWarnings } from './safety.js';
+import { measureFigures, type FigureReport } from '../measure/figures.js';
 import { transient, type TransientResult } from './tran.js';
 import { acFrequencies, acSweep, type AcResult } from './ac.js';
 
@@ -30,6 +31,8 @@ export interface RunReport {
   readonly transients: readonly TransientResult[];
   /** Small-signal sweeps, one per `.ac` and temperature. */
   readonly ac: readonly AcResult[];
+  /** Power-supply figures and limits (absent when the netlist asks for none). */
+  readonly figures: FigureReport | undefined;
   /** Warnings from every stage. */
   readonly warnings: readonly Diagnostic[];
 }
@@ -51,14 +54,12 @@ export function prepare(parsed: ParseResult): { ok: true; compiled: CompiledCirc
   return { ok: true, compiled: compiled.circuit, warnings };
 }
 
-function pendingWarnings(flat: FlatCircuit): Diagnostic[] {
+function acDriveWarnings(flat: FlatCircuit): Diagnostic[] {
   const out: Diagnostic[] = [];
   const driven = flat.elements.some((el) => (el.kind === 'vsource' || el.kind === 'isource') && el.spec.acMag !== 0);
   for (const a of flat.analyses) {
     if (a.kind === 'ac' && !driven) out.push(warningAt('no-ac-drive', 'no source has an ac value, so every small-signal response is zero (add e.g. "ac 1" to the input source)', a.origin.pos, a.origin.lineText));
   }
-  for (const f of flat.figures) out.push(warningAt('not-available', `figure '${f.figure}' is not available in this version of railcheck; it was skipped`, f.origin.pos, f.origin.lineText));
-  for (const l of flat.limits) out.push(warningAt('not-available', `limit on '${l.figure}' was not checked: its figure is not available in this version`, l.origin.pos, l.origin.lineText));
   return out;
 }
 
@@ -100,10 +101,13 @@ function runParsed(parsed: ParseResult): RunResult {
   const prepared = prepare(parsed);
   if (!prepared.ok) return prepared;
   const c = prepared.compiled;
-  const warnings = [...prepared.warnings, ...safetyWarnings(c.flat), ...pendingWarnings(c.flat)];
+  const warnings = [...prepared.warnings, ...safetyWarnings(c.flat), ...acDriveWarnings(c.flat)];
   try {
     const results = analyse(c);
-    return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, compiled: c, ...results, warnings } };
+    setCircuitTemperature(c, c.flat.temperatures[0] ?? 27);
+    const figures = c.flat.figures.length > 0 || c.flat.limits.length > 0 ? measureFigures(c) : undefined;
+    if (figures) warnings.push(...figures.warnings);
+    return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, compiled: c, ...results, figures, warnings } };
   } catch (e) {
     if (e instanceof RailcheckError) return { ok: false, errors: e.diagnostics, warnings };
     return { ok: false, errors: [errorAt('internal', `internal error: ${e instanceof Error ? e.message : String(e)}`)], warnings };

@@ -1,0 +1,141 @@
+/**
+ * Periodic steady state by brute-force integration (figures.md): run the
+ * transient whole cycle after whole cycle and stop when the mean and the
+ * peak-to-peak of the watched signals over two successive cycles agree
+ * within 1 %. Values of the last cycle are returned. Per-cycle statistics
+ * are gathered as the stepper goes (onAccept), so no trace is stored.
+ */
+import type { LoadContext } from '@railcheck/devices';
+import { errorAt, RailcheckError } from '../errors.js';
+import type { CardOrigin } from '../netlist/ast.js';
+import { runTransient, type TransientOptions } from '../engine/transient.js';
+import type { CompiledCircuit } from '../engine/compile.js';
+import { formatSI } from '../units.js';
+
+/** Statistics of one signal over one cycle (trapezoidal mean over accepted points). */
+export interface CycleStats {
+  min: number;
+  max: number;
+  mean: number;
+}
+
+/** Something to watch: a function of the solution vector (e.g. Vout = x[out] − x[ref]). */
+export type Probe = (x: Float64Array) => number;
+
+/** Settling rule: relative agreement of mean and peak-to-peak between successive cycles (figures.md: 1 %). */
+export const SETTLE_TOLERANCE = 0.01;
+
+/** Options of a periodic run. */
+export interface PeriodicOptions {
+  /** Cycle length, s. */
+  readonly period: number;
+  /** Signals whose cycle statistics decide settling; the first is the output. */
+  readonly probes: readonly Probe[];
+  /** Fewest cycles before settling is judged (default 3). */
+  readonly minCycles?: number;
+  /** Most cycles before giving up (default 400). */
+  readonly maxCycles?: number;
+  /** Least steps per cycle (default 200: peak-to-peak within about 0.01 % of a sine's). */
+  readonly stepsPerCycle?: number;
+  /** Called at every accepted point from `start` on, with the 0-based index of the cycle it falls in. */
+  readonly onPoint?: (timeSeconds: number, cycle: number, ctx: LoadContext) => void;
+  /** Absolute floor for the peak-to-peak comparison, V (default 1 µV). */
+  readonly ppFloor?: number;
+  /** Time origin of the cycles, s (default 0). */
+  readonly start?: number;
+}
+
+/** Result: the statistics of every probe over the last (settled) cycle, and how many cycles it took. */
+export interface PeriodicResult {
+  readonly last: readonly CycleStats[];
+  readonly previous: readonly CycleStats[];
+  readonly cycles: number;
+  /** Time at the end of the last cycle, s. */
+  readonly end: number;
+}
+
+class CycleAccumulator {
+  min = Infinity;
+  max = -Infinity;
+  integral = 0;
+  lastT = Number.NaN;
+  lastV = Number.NaN;
+
+  add(t: number, v: number): void {
+    if (!Number.isNaN(this.lastT)) this.integral += 0.5 * (v + this.lastV) * (t - this.lastT);
+    if (v < this.min) this.min = v;
+    if (v > this.max) this.max = v;
+    this.lastT = t;
+    this.lastV = v;
+  }
+
+  close(period: number): CycleStats {
+    const s = { min: this.min, max: this.max, mean: this.integral / period };
+    // The boundary point belongs to both cycles.
+    this.min = this.lastV;
+    this.max = this.lastV;
+    this.integral = 0;
+    return s;
+  }
+}
+
+function agrees(a: CycleStats, b: CycleStats, floor: number): boolean {
+  const ppA = a.max - a.min;
+  const ppB = b.max - b.min;
+  const meanOk = Math.abs(a.mean - b.mean) <= SETTLE_TOLERANCE * Math.max(Math.abs(a.mean), Math.abs(b.mean), floor);
+  const ppOk = Math.abs(ppA - ppB) <= SETTLE_TOLERANCE * Math.max(ppA, ppB) + floor;
+  return meanOk && ppOk;
+}
+
+/**
+ * Runs the circuit's transient (sources as they are set) cycle by cycle
+ * until periodic steady state. Throws RailcheckError if the transient
+ * fails or does not settle within maxCycles.
+ */
+export function runToPeriodicSteadyState(c: CompiledCircuit, opts: PeriodicOptions, what: string, origin: CardOrigin | undefined, base: Partial<TransientOptions> = {}): PeriodicResult {
+  const { period, probes } = opts;
+  const minCycles = opts.minCycles ?? 3;
+  const maxCycles = opts.maxCycles ?? 400;
+  const floor = opts.ppFloor ?? 1e-6;
+  const start = opts.start ?? 0;
+  const acc = probes.map(() => new CycleAccumulator());
+  let previous: CycleStats[] = [];
+  let last: CycleStats[] = [];
+  let cycle = 0;
+  let settled = false;
+  let end = 0;
+  const boundaries = Array.from({ length: maxCycles + 1 }, (_, k) => start + k * period).filter((t) => t > 0);
+  const outcome = runTransient(c, {
+    tstep: period / 50,
+    tstop: start + maxCycles * period,
+    stepsPerCycle: opts.stepsPerCycle ?? 200,
+    ...base,
+    extraBreakpoints: [...(base.extraBreakpoints ?? []), ...boundaries],
+    keepTrace: false,
+    onAccept: (t, ctx) => {
+      if (t < start - period * 1e-9) return false;
+      const x = ctx.x;
+      for (let k = 0; k < probes.length; k++) acc[k]!.add(t, probes[k]!(x));
+      opts.onPoint?.(t, cycle, ctx);
+      const boundary = start + (cycle + 1) * period;
+      if (Math.abs(t - boundary) <= period * 1e-9) {
+        previous = last;
+        last = acc.map((a) => a.close(period));
+        cycle++;
+        end = t;
+        if (cycle >= minCycles && previous.length > 0 && last.every((s, k) => agrees(s, previous[k]!, floor))) {
+          settled = true;
+          return true;
+        }
+      }
+      return false;
+    },
+  });
+  if (!outcome.ok) {
+    throw new RailcheckError([errorAt('transient-failed', `${what}: the transient failed at t = ${formatSI(outcome.time, 's')}`, origin?.pos, origin?.lineText)]);
+  }
+  if (!settled) {
+    throw new RailcheckError([errorAt('not-settled', `${what}: no periodic steady state within ${maxCycles} cycles (mean and peak-to-peak still changing by more than 1 % per cycle)`, origin?.pos, origin?.lineText, 'a stage whose time constants settle within a few hundred cycles')]);
+  }
+  return { last, previous, cycles: cycle, end };
+}
