@@ -49,7 +49,7 @@ export { safetyWarnings, MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/sa
 export { formatSI } from './units.js';
 
 export { measureFigures, checkLimits, figureUnit } from './measure/figures.js';
-export type { FigureReport, MeasuredFigure, LimitResult } from './measure/figures.js';
+export type { FigureReport, MeasuredFigure, MeasuredFigureWithUnits, LimitResult } from './measure/figures.js';
 export { createDcBench, voutAt, backToNominal } from './measure/bench.js';
 export type { Bench } from './measure/bench.js';
 export { makeStage, vout, applySetting, solveSetting } from './measure/stage.js';

@@ -16,8 +16,7 @@ const FIGURE_TITLES: Readonly<Record<string, string>> = {
 };
 
 /** A figure value with its unit: SI prefixes for V, A, W, Ω; fixed decimals for dB and percentages. */
-export function formatFigureValue(name: string, value: number): string {
-  const unit = figureUnit(name);
+export function formatFigureValue(name: string, value: number, unit = figureUnit(name)): string {
   if (unit === 'dB') return `${value.toFixed(2)} dB`;
   if (unit === '%' || unit === '%/V') return `${Number(value.toPrecision(4))} ${unit}`;
   if (name === 'sag.pass') return value === 1 ? '1 (holds)' : '0 (falls too far)';
@@ -54,15 +53,19 @@ export function formatFigures(figures: FigureReport, temperature: number): strin
   const lines = [heading(`Figures at ${temperature} °C`)];
   for (const f of figures.figures) {
     lines.push(`  ${FIGURE_TITLES[f.kind] ?? f.kind} — ${f.conditions}`);
-    lines.push(table(Object.entries(f.values).map(([n, v]) => [n, formatFigureValue(n, v)]), '      '));
+    lines.push(table(Object.entries(f.values).map(([n, v]) => [n, formatFigureValue(n, v, f.units[n])]), '      '));
   }
   return lines.join('\n');
 }
 
 /** The limits table and verdict. */
-export function formatLimits(limits: readonly LimitResult[]): string {
+export function formatLimits(limits: readonly LimitResult[], figures: FigureReport): string {
   if (limits.length === 0) return '';
-  const rows = [['limit', 'measured', 'result'], ...limits.map((l) => [`${l.figure} ${l.op} ${l.value}`, formatFigureValue(l.figure, l.actual), l.pass ? 'pass' : 'FAIL'])];
+  const unitOf = (name: string): string | undefined => {
+    for (const f of figures.figures) for (const [n, u] of Object.entries(f.units)) if (n.toLowerCase() === name.toLowerCase()) return u;
+    return undefined;
+  };
+  const rows = [['limit', 'measured', 'result'], ...limits.map((l) => [`${l.figure} ${l.op} ${l.value}`, formatFigureValue(l.figure, l.actual, unitOf(l.figure)), l.pass ? 'pass' : 'FAIL'])];
   const failed = limits.filter((l) => !l.pass).length;
   const verdict = failed === 0 ? `all ${limits.length} limit${limits.length === 1 ? '' : 's'} pass` : `${failed} of ${limits.length} limit${limits.length === 1 ? '' : 's'} FAILED`;
   return [heading('Limits'), table(rows), `  verdict: ${verdict}`].join('\n');

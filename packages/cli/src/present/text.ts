@@ -66,7 +66,7 @@ export function formatReport(report: RunReport): string {
   const stage = formatStage(report);
   if (stage) parts.push(stage, '');
   if (report.figures && report.figures.figures.length > 0) parts.push(formatFigures(report.figures, report.circuit.temperatures[0] ?? 27), '');
-  const limits = report.figures ? formatLimits(report.figures.limits) : '';
+  const limits = report.figures ? formatLimits(report.figures.limits, report.figures) : '';
   if (limits) parts.push(limits, '');
   for (const op of report.operatingPoints) parts.push(formatOperatingPoint(op, report), '');
   for (const s of report.sweeps) parts.push(formatSweep(s), '');

@@ -119,7 +119,7 @@ export function resolveDirectives(
         }
         figures.push({ origin: c, figure: c.figure, keys, percentKeys, method: c.method });
       })
-      .with({ kind: 'limit' }, (c) => limits.push({ origin: c, figure: c.figure.toLowerCase(), op: c.op, value: num(c.value) }))
+      .with({ kind: 'limit' }, (c) => limits.push({ origin: c, figure: c.figure, op: c.op, value: num(c.value) }))
       .with({ kind: 'spread' }, (c) => spreads.push({ origin: c, target: c.target.toLowerCase(), ratio: num(c.ratio), distribution: c.distribution }))
       .exhaustive();
   }

@@ -27,6 +27,11 @@ export interface MeasuredFigure {
   readonly conditions: string;
 }
 
+/** A measured figure with the unit of each value ('' for plain ratios). */
+export interface MeasuredFigureWithUnits extends MeasuredFigure {
+  readonly units: Readonly<Record<string, string>>;
+}
+
 /** The result of one `.limit`. */
 export interface LimitResult {
   /** Figure name as written in the `.limit` line. */
@@ -39,17 +44,18 @@ export interface LimitResult {
 
 /** Everything the measure layer produced. */
 export interface FigureReport {
-  readonly figures: readonly MeasuredFigure[];
+  readonly figures: readonly MeasuredFigureWithUnits[];
   /** All figure values, by dotted name. */
   readonly values: Readonly<Record<string, number>>;
   readonly limits: readonly LimitResult[];
   readonly warnings: readonly Diagnostic[];
 }
 
-/** Unit of a figure value, by name (for reports). */
-export function figureUnit(name: string): string {
+/** Unit of a figure value, by name; on a sine-fed stage `dropout.headroom` is a ratio of the amplitude. */
+export function figureUnit(name: string, sineFed = false): string {
   const n = name.toLowerCase();
   if (n.startsWith('pd.')) return 'W';
+  if (sineFed && n === 'dropout.headroom') return '';
   const table: Record<string, string> = {
     'line.delta': 'V', 'line.slope': 'V/V', 'line.pct_per_v': '%/V', 'line.pct': '%',
     'load.delta': 'V', 'load.pct': '%', 'load.rout': 'Ω',
@@ -152,17 +158,20 @@ export function checkLimits(limits: readonly FlatLimit[], values: Readonly<Recor
 export function measureFigures(c: CompiledCircuit): FigureReport {
   const flat = c.flat;
   const warnings: Diagnostic[] = [];
-  const figures: MeasuredFigure[] = [];
+  const measured: MeasuredFigure[] = [];
+  let sineFed = false;
   if (flat.figures.length > 0) {
     const supplyInput = flat.supply ? c.sources.get(flat.supply.input) : undefined;
-    if (supplyInput?.waveform?.kind === 'sin') {
+    sineFed = supplyInput?.waveform?.kind === 'sin';
+    if (sineFed) {
       const bench: AcBench = createAcBench(c);
-      for (const f of flat.figures) figures.push(measureAcFedFigure(bench, f, flat.figures, warnings));
+      for (const f of flat.figures) measured.push(measureAcFedFigure(bench, f, flat.figures, warnings));
     } else {
       const bench = createDcBench(c);
-      for (const f of flat.figures) figures.push(measureDc(bench, f, flat.figures, warnings));
+      for (const f of flat.figures) measured.push(measureDc(bench, f, flat.figures, warnings));
     }
   }
+  const figures = measured.map((f) => ({ ...f, units: Object.fromEntries(Object.keys(f.values).map((n) => [n, figureUnit(n, sineFed)])) }));
   const values: Record<string, number> = {};
   for (const f of figures) Object.assign(values, f.values);
   return { figures, values, limits: checkLimits(flat.limits, values), warnings };
