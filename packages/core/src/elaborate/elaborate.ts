@@ -147,8 +147,10 @@ function resolveControls(w: Walk): FlatElement[] {
   return w.elements.map((el) => {
     if (el.kind !== 'cccs' && el.kind !== 'ccvs') return el;
     const dot = el.key.lastIndexOf('.');
-    const local = dot >= 0 ? el.key.slice(0, dot + 1) + el.control : el.control;
-    const target = w.names.get(local) ?? w.names.get(el.control);
+    // el.control is still the name as written (kept for the message); look-ups use keys.
+    const control = el.control.toLowerCase();
+    const local = dot >= 0 ? el.key.slice(0, dot + 1) + control : control;
+    const target = w.names.get(local) ?? w.names.get(control);
     if (!target || target.kind !== 'vsource') {
       w.ev.at(el.origin);
       w.ev.fail(el.origin, 'unknown-control', `${el.name} is controlled by '${el.control}', which is not a voltage source`, 'the name of an independent voltage source (V line) whose current controls it');

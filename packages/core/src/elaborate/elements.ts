@@ -104,8 +104,8 @@ export function flattenElement(env: ElementEnv, card: Exclude<ElementCard, { kin
     .with({ kind: 'I' }, (c) => ({ ...base, kind: 'isource', nodes: nodesOf(env, c.nodes), spec: sourceSpec(env, c) }))
     .with({ kind: 'E' }, (c) => ({ ...base, kind: 'vcvs', nodes: nodesOf(env, c.nodes), gain: ev.num(c.gain, scope) }))
     .with({ kind: 'G' }, (c) => ({ ...base, kind: 'vccs', nodes: nodesOf(env, c.nodes), gain: ev.num(c.gain, scope) }))
-    .with({ kind: 'F' }, (c) => ({ ...base, kind: 'cccs', nodes: nodesOf(env, c.nodes), control: c.control.toLowerCase(), gain: ev.num(c.gain, scope) }))
-    .with({ kind: 'H' }, (c) => ({ ...base, kind: 'ccvs', nodes: nodesOf(env, c.nodes), control: c.control.toLowerCase(), gain: ev.num(c.gain, scope) }))
+    .with({ kind: 'F' }, (c) => ({ ...base, kind: 'cccs', nodes: nodesOf(env, c.nodes), control: c.control, gain: ev.num(c.gain, scope) }))
+    .with({ kind: 'H' }, (c) => ({ ...base, kind: 'ccvs', nodes: nodesOf(env, c.nodes), control: c.control, gain: ev.num(c.gain, scope) }))
     .with({ kind: 'D' }, (c) => {
       const nodes = nodesOf(env, c.nodes);
       const bound = bindModel(env, c);
