@@ -1,0 +1,264 @@
+/**
+ * The engine's dense LU (engine/lu.ts) against two general-purpose
+ * references from npm: ml-matrix (`solve`, `LuDecomposition`) and mathjs
+ * (`lusolve`). Also the storage layout (stride n + 1, ground row and column
+ * unused), singular matrices and the relative pivot tolerance.
+ */
+import { describe, expect, test } from 'vitest';
+import fc from 'fast-check';
+import { lusolve } from 'mathjs';
+import { createLuWorkspace, luFactor, luSolve, PIVOT_RELATIVE_TOLERANCE } from '@railcheck/core';
+import { ml } from '../../helpers/ml-matrix.js';
+import { fcSeed } from '../../helpers/device-harness.js';
+import { dominantSystem, engineSolve, generalSystem, entry, matVec, normInf, relDiff, toLu, toRhs } from '../../helpers/dense.js';
+
+const seed = fcSeed('core/engine/lu');
+const EPS = Number.EPSILON;
+
+const mathjsSolve = (a: number[][], b: number[]): number[] => (lusolve(a, b) as number[][]).map((r) => r[0]!);
+const mlSolve = (a: number[][], b: number[]): number[] => ml.solve(new ml.Matrix(a), ml.Matrix.columnVector(b)).to1DArray();
+
+describe('factor and solve against ml-matrix and mathjs', () => {
+  test('well-conditioned systems that need row swaps', () => {
+    let worst = 0;
+    fc.assert(
+      fc.property(dominantSystem(), ({ a, b }) => {
+        const { singular, x } = engineSolve(a, b);
+        expect(singular).toBe(0);
+        // Both references are backward-stable LU solvers (Golub & Van Loan §3.3); on a
+        // matrix of condition below ~10 they agree with any other to a few ulps times n.
+        const d = Math.max(relDiff(x, mlSolve(a, b)), relDiff(x, mathjsSolve(a, b)));
+        worst = Math.max(worst, d);
+        expect(d).toBeLessThan(1e-13);
+      }),
+      { seed, numRuns: 300 },
+    );
+    console.log(`LU vs ml-matrix/mathjs, dominant systems: max relative difference ${worst.toExponential(2)}`);
+  });
+
+  test('general random systems: agreement within the condition-number bound, tiny residual', () => {
+    fc.assert(
+      fc.property(generalSystem(), ({ a, b }) => {
+        let inverse: number[][];
+        try {
+          inverse = ml.inverse(new ml.Matrix(a)).to2DArray();
+        } catch {
+          fc.pre(false);
+          return;
+        }
+        const kappa = normInf(a) * normInf(inverse);
+        fc.pre(Number.isFinite(kappa) && kappa < 1e8);
+        const { singular, x } = engineSolve(a, b);
+        expect(singular).toBe(0);
+        const n = a.length;
+        // Forward error of a backward-stable solve ≲ n·κ·eps (Golub & Van Loan, §3.5, from memory);
+        // a factor 50 allows for pivot growth.
+        expect(relDiff(x, mlSolve(a, b))).toBeLessThan(50 * n * kappa * EPS);
+        expect(relDiff(x, mathjsSolve(a, b))).toBeLessThan(50 * n * kappa * EPS);
+        // Normwise backward error ‖Ax − b‖/(‖A‖‖x‖ + ‖b‖) (Rigal & Gaches 1967) is O(n·eps) whatever κ is.
+        const r = matVec(a, x).map((v, i) => v - b[i]!);
+        const size = normInf(a) * Math.max(...x.map(Math.abs)) + Math.max(...b.map(Math.abs));
+        const back = size === 0 ? 0 : Math.max(...r.map(Math.abs)) / size;
+        expect(back).toBeLessThan(20 * n * EPS);
+      }),
+      { seed, numRuns: 300 },
+    );
+  });
+
+  test('P·A = L·U, permutation and determinant as ml-matrix LuDecomposition', () => {
+    fc.assert(
+      fc.property(dominantSystem(2, 10), ({ a }) => {
+        const n = a.length;
+        const ws = toLu(a);
+        expect(luFactor(ws)).toBe(0);
+        const s = ws.size;
+        const lu = (i: number, j: number): number => ws.matrix[i * s + j]!;
+        for (let i = 1; i <= n; i++) {
+          for (let j = 1; j <= n; j++) {
+            let sum = 0;
+            for (let k = 1; k <= Math.min(i, j); k++) sum += (k === i ? 1 : lu(i, k)) * lu(k, j);
+            expect(Math.abs(sum - a[ws.perm[i]! - 1]![j - 1]!)).toBeLessThan(1e-13 * (n + 1) * n);
+          }
+        }
+        const ref = new ml.LuDecomposition(new ml.Matrix(a));
+        // Both pick the largest magnitude in the column (first one on ties), so the rows agree.
+        expect(Array.from(ws.perm.subarray(1)).map((p) => p - 1)).toEqual(ref.pivotPermutationVector);
+        let det = 1;
+        for (let k = 1; k <= n; k++) det *= lu(k, k);
+        const seen = new Set<number>();
+        let parity = 1;
+        for (let k = 1; k <= n; k++) {
+          if (seen.has(k)) continue;
+          let len = 0;
+          for (let j = k; !seen.has(j); j = ws.perm[j]!) {
+            seen.add(j);
+            len++;
+          }
+          if (len % 2 === 0) parity = -parity;
+        }
+        expect(Math.abs(parity * det - ref.determinant)).toBeLessThan(1e-12 * Math.abs(ref.determinant));
+      }),
+      { seed, numRuns: 200 },
+    );
+  });
+
+  test('one factorisation serves many right-hand sides', () => {
+    fc.assert(
+      fc.property(dominantSystem(1, 8), fc.array(entry, { minLength: 8, maxLength: 8 }), ({ a }, extra) => {
+        const ws = toLu(a);
+        expect(luFactor(ws)).toBe(0);
+        const n = a.length;
+        for (let shift = 0; shift < 3; shift++) {
+          const b = Array.from({ length: n }, (_, i) => extra[(i + shift) % 8]!);
+          const x = new Float64Array(ws.size);
+          luSolve(ws, toRhs(b), x);
+          expect(relDiff(Array.from(x.subarray(1)), mlSolve(a, b))).toBeLessThan(1e-13);
+        }
+      }),
+      { seed, numRuns: 100 },
+    );
+  });
+});
+
+describe('storage layout', () => {
+  test('row and column 0 (ground) are never read: NaN there changes nothing', () => {
+    fc.assert(
+      fc.property(dominantSystem(1, 8), ({ a, b }) => {
+        const clean = engineSolve(a, b);
+        const ws = toLu(a, Number.NaN);
+        expect(ws.size).toBe(a.length + 1);
+        expect(luFactor(ws)).toBe(0);
+        const x = new Float64Array(ws.size).fill(Number.NaN);
+        luSolve(ws, toRhs(b, Number.NaN), x);
+        expect(x[0]).toBe(0);
+        expect(Array.from(x.subarray(1))).toEqual(clean.x);
+      }),
+      { seed, numRuns: 100 },
+    );
+  });
+
+  test('createLuWorkspace sizes storage as (n + 1)², and adopts a given matrix', () => {
+    const ws = createLuWorkspace(4);
+    expect(ws.size).toBe(5);
+    expect(ws.matrix.length).toBe(25);
+    const m = new Float64Array(9);
+    expect(createLuWorkspace(2, m).matrix).toBe(m);
+  });
+});
+
+describe('singular matrices', () => {
+  // Small integers: a combination of rows or columns is then exact in floating point, so the
+  // matrix is singular exactly and not merely to within rounding that ill-conditioned minors
+  // could magnify above the tolerance.
+  const int = fc.integer({ min: -9, max: 9 });
+  const rows = (r: number, n: number) => fc.array(fc.array(int, { minLength: n, maxLength: n }), { minLength: r, maxLength: r });
+  const weights = (n: number) => fc.array(fc.integer({ min: -3, max: 3 }).filter((k) => k !== 0), { minLength: n, maxLength: n });
+  // Leading columns independent *and* well conditioned: a nearly dependent leading block leaves
+  // small pivots whose multipliers magnify elimination round-off in the last column beyond
+  // 1e-13 of its original size (seen at 8e-13 against a column of 7), which the tolerance,
+  // being relative to the column before elimination, then takes for a genuine pivot.
+  const wellPosedColumns = (m: number[][], cols: number): boolean => {
+    const svd = new ml.SingularValueDecomposition(new ml.Matrix(m.map((r) => r.slice(0, cols))));
+    return svd.rank === cols && svd.condition < 30;
+  };
+
+  test('a row that is a combination of the others: no pivot in the last column', () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 2, max: 9 }).chain((n) => fc.tuple(rows(n - 1, n), weights(n - 1))), ([top, c]) => {
+        const n = top.length + 1;
+        const m = [...top, Array.from({ length: n }, (_, j) => top.reduce((s, r, i) => s + c[i]! * r[j]!, 0))];
+        // When columns 1..n−1 are independent, elimination runs dry exactly at column n.
+        fc.pre(wellPosedColumns(m, n - 1));
+        expect(engineSolve(m, Array(n).fill(1)).singular).toBe(n);
+      }),
+      { seed, numRuns: 200 },
+    );
+  });
+
+  test('a column that is a combination of earlier ones is the one named', () => {
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 2, max: 9 }).chain((n) => fc.tuple(rows(n, n), weights(n), fc.integer({ min: 2, max: n }))),
+        ([a, c, col]) => {
+          const m = a.map((r) => {
+            const out = [...r];
+            out[col - 1] = r.slice(0, col - 1).reduce((s, v, i) => s + c[i]! * v, 0);
+            return out;
+          });
+          fc.pre(wellPosedColumns(m, col - 1));
+          expect(engineSolve(m, Array(a.length).fill(1)).singular).toBe(col);
+        },
+      ),
+      { seed, numRuns: 200 },
+    );
+  });
+
+  test('an all-zero column (an unknown nothing stamps) is named', () => {
+    const a = [
+      [2, 0, 1],
+      [1, 0, 3],
+      [4, 0, 1],
+    ];
+    expect(engineSolve(a, [1, 1, 1]).singular).toBe(2);
+  });
+});
+
+describe('relative pivot tolerance', () => {
+  const scales = [1e-9, 1, 1e9];
+  // [[1, 1], [1, 1 + δ]] leaves the pivot δ in column 2, whose largest entry is ≈ 1.
+  const nearSingular = (delta: number, s: number): number[][] => [
+    [s, s],
+    [s, s * (1 + delta)],
+  ];
+
+  test('threshold: pivots well below 1e-13 of their column are singular, well above are not, at every scale', () => {
+    expect(PIVOT_RELATIVE_TOLERANCE).toBe(1e-13);
+    for (const s of scales) {
+      expect(engineSolve(nearSingular(1e-15, s), [1, 1]).singular, `scale ${s}`).toBe(2);
+      expect(engineSolve(nearSingular(1e-11, s), [1, 1]).singular, `scale ${s}`).toBe(0);
+    }
+  });
+
+  test('scaling the whole matrix by 1e-9 or 1e9 scales the solution by the inverse and keeps the verdict', () => {
+    fc.assert(
+      fc.property(dominantSystem(1, 10), fc.constantFrom(1e-9, 1e9), ({ a, b }, s) => {
+        const base = engineSolve(a, b);
+        const scaled = engineSolve(a.map((r) => r.map((v) => v * s)), b);
+        expect(scaled.singular).toBe(0);
+        expect(relDiff(scaled.x.map((v) => v * s), base.x)).toBeLessThan(1e-13);
+      }),
+      { seed, numRuns: 200 },
+    );
+  });
+
+  test('a rank-deficient matrix stays singular under column scalings from ~1e-9 to ~1e9 (megohms and milliohms alike)', () => {
+    const int = fc.integer({ min: -9, max: 9 });
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 2, max: 8 }).chain((n) =>
+          fc.tuple(
+            fc.array(fc.array(int, { minLength: n, maxLength: n }), { minLength: n - 1, maxLength: n - 1 }),
+            fc.array(fc.integer({ min: -3, max: 3 }).filter((k) => k !== 0), { minLength: n - 1, maxLength: n - 1 }),
+            fc.array(fc.integer({ min: -30, max: 30 }), { minLength: n, maxLength: n }),
+            fc.double({ min: 0.01, max: 1, noNaN: true }),
+          ),
+        ),
+        ([top, c, exps, delta]) => {
+          const n = top.length + 1;
+          const last = Array.from({ length: n }, (_, j) => top.reduce((s, r, i) => s + c[i]! * r[j]!, 0));
+          const dependent = [...top, last];
+          const lead = new ml.SingularValueDecomposition(new ml.Matrix(dependent.map((r) => r.slice(0, n - 1))));
+          fc.pre(lead.rank === n - 1 && lead.condition < 30);
+          const lifted = [...top, last.map((v, j) => (j === n - 1 ? v + delta : v))];
+          // Powers of two (2^±30 ≈ 1e±9) scale exactly, so an exactly singular matrix stays so.
+          const colScaled = (m: number[][]): number[][] => m.map((r) => r.map((v, j) => v * 2 ** exps[j]!));
+          expect(engineSolve(colScaled(dependent), Array(n).fill(1)).singular).toBe(n);
+          // det(lifted) = δ·(a non-zero integer minor), so the last pivot is ≥ δ/∏(other pivots),
+          // many decades above 1e-13 of its column.
+          expect(engineSolve(colScaled(lifted), Array(n).fill(1)).singular).toBe(0);
+        },
+      ),
+      { seed, numRuns: 200 },
+    );
+  });
+});
