@@ -12,8 +12,13 @@ const COLUMNS = 6;
 export function formatTransient(r: TransientResult): string {
   const rows = [['node', 'min', 'max', 'peak-peak', 'at end']];
   for (const [name, v] of Object.entries(r.nodes)) {
-    const lo = Math.min(...v);
-    const hi = Math.max(...v);
+    // A loop, not Math.min(...v): spreading a long grid overflows the call stack.
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (const x of v) {
+      if (x < lo) lo = x;
+      if (x > hi) hi = x;
+    }
     rows.push([name, formatSI(lo, 'V'), formatSI(hi, 'V'), formatSI(hi - lo, 'V'), formatSI(v[v.length - 1] ?? 0, 'V')]);
   }
   const s = r.stats;
