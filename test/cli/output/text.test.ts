@@ -45,6 +45,13 @@ describe('transient summary', () => {
     expect(cells(s.find((l) => l.trim().startsWith('mid '))!)).toEqual(['mid', '0 V', '2 V', '2 V', '2 V']);
   });
 
+  test('a long output grid (500 001 points) is summarised, not an internal error', async () => {
+    // tstop/tstep = 5e5: the summary must not spread the grid into Math.min/Math.max arguments,
+    // which overflows V8's stack (engine limit, common knowledge).
+    const text = await report(['long log', 'V1 in 0 dc 1', 'R1 in out 1k', 'C1 out 0 1u', '.tran 1u 0.5']);
+    expect(cells(section(text, 'Transient to 500 ms').find((l) => l.trim().startsWith('out '))!)).toEqual(['out', '1 V', '1 V', '0 V', '1 V']);
+  });
+
   test('backward Euler from ic= values is said so', async () => {
     const text = await report(['rc from ic', 'V1 in 0 dc 1', 'R1 in out 1k', 'C1 out 0 1u ic=0.5', '.tran 0.1m 1m be fromic']);
     expect(section(text, 'Transient to 1 ms')[2]).toMatch(/^ {2}backward Euler, from the ic= values;/);
