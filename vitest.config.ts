@@ -13,6 +13,7 @@ export default defineConfig({
   },
   test: {
     include: ['test/**/*.test.ts'],
+    benchmark: { include: ['bench/**/*.bench.ts'] },
     testTimeout: 60_000,
     pool: 'threads',
   },

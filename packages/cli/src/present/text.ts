@@ -18,6 +18,11 @@ export function formatOperatingPoint(op: OperatingPoint, report: RunReport): str
   const parts: string[] = [];
   parts.push(heading(`Operating point at ${op.temperature} °C`));
   parts.push(`  found by ${METHOD_WORDS[op.method]}, ${op.iterations} iterations`);
+  const supply = report.circuit.supply;
+  const input = supply ? report.circuit.elements.find((e) => e.key === supply.input) : undefined;
+  if (input?.kind === 'vsource' && input.spec.waveform?.kind === 'sin') {
+    parts.push(`  (the stage is fed with a sine: this is the DC solution with ${input.name} at its t = 0 value; the figures are taken at periodic steady state)`);
+  }
   parts.push('');
   parts.push(table([['node', 'voltage'], ...Object.entries(op.nodes).map(([n, v]) => [n, formatSI(v, 'V')])]));
   parts.push('');
