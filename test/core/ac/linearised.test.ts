@@ -22,17 +22,18 @@ const RE = 1e3;
 const RL = 4.7e3;
 const GL = 1 / RE + 1 / RL;
 
-function follower(charges: boolean): string {
+function follower(charges: boolean, polarity: 'NPN' | 'PNP' = 'NPN'): string {
+  const sign = polarity === 'NPN' ? '' : '-';
   const q = charges ? ` CJE=${M.CJE} VJE=${M.VJE} MJE=${M.MJE} CJC=${M.CJC} VJC=${M.VJC} MJC=${M.MJC} TF=${M.TF}` : '';
   return [
     'bench instrument buffer: emitter follower',
-    `VCC vcc 0 dc ${VCC}`,
-    `VS src 0 dc ${VS} ac 1`,
+    `VCC vcc 0 dc ${sign}${VCC}`,
+    `VS src 0 dc ${sign}${VS} ac 1`,
     `RS src b ${RS}`,
     'Q1 vcc b e NBUF',
     `RE e 0 ${RE}`,
     `RL e 0 ${RL}`,
-    `.model NBUF NPN (IS=${M.IS} BF=${M.BF} BR=${M.BR} VAF=${M.VAF} RB=${M.RB}${q})`,
+    `.model NBUF ${polarity} (IS=${M.IS} BF=${M.BF} BR=${M.BR} VAF=${M.VAF} RB=${M.RB}${q})`,
     '.ac dec 5 10 1g',
     '.end',
     '',
@@ -174,6 +175,21 @@ describe('emitter follower, hybrid-π', () => {
     expect(deg(complex(ac.nodes['e']!.re[last]!, ac.nodes['e']!.im[last]!))).toBeLessThan(-10);
     for (let k = 1; k <= last; k++) expect(mags[k]!).toBeLessThanOrEqual(mags[k - 1]! + 1e-9);
     expect(Math.abs(mags[0]! - db(followerGain(10, 0, 0)))).toBeLessThan(1e-4);
+  });
+});
+
+describe('PNP mirror', () => {
+  test('the PNP follower on negated supplies has the NPN small-signal response', () => {
+    // models.md: PNP is the NPN with every junction voltage and terminal current negated, so the
+    // mirrored circuit's operating point is the negative of the NPN one and its linearisation
+    // (conductances and capacitances, both even in the bias sign flip) is the same.
+    const npn = run(follower(true)).ac[0]!;
+    const pnp = run(follower(true, 'PNP')).ac[0]!;
+    npn.frequencies.forEach((_, k) => {
+      const a = complex(npn.nodes['e']!.re[k]!, npn.nodes['e']!.im[k]!);
+      const b = complex(pnp.nodes['e']!.re[k]!, pnp.nodes['e']!.im[k]!);
+      expect(relErr(b, a)).toBeLessThan(1e-9);
+    });
   });
 });
 
