@@ -154,8 +154,8 @@ export interface NetworkShape {
 
 const DEFAULT_SHAPE: NetworkShape = { minNodes: 2, maxNodes: 8, vSources: [0, 3], iSources: [0, 3], controlled: false };
 
-/** Log-uniform on a grid: 10^lo .. 10^hi. */
-const logUniform = (lo: number, hi: number): fc.Arbitrary<number> => fc.integer({ min: lo * 1000, max: hi * 1000 }).map((k) => Number((10 ** (k / 1000)).toPrecision(6)));
+/** Log-uniform on a grid of 1000 steps per decade: 10^lo .. 10^hi, rounded to 6 digits. */
+export const logUniform = (lo: number, hi: number): fc.Arbitrary<number> => fc.integer({ min: Math.round(lo * 1000), max: Math.round(hi * 1000) }).map((k) => Number((10 ** (k / 1000)).toPrecision(6)));
 const signed = (mag: fc.Arbitrary<number>): fc.Arbitrary<number> => fc.tuple(mag, fc.boolean()).map(([m, s]) => (s ? -m : m));
 
 /**
