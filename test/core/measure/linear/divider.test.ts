@@ -1,0 +1,198 @@
+/**
+ * Line regulation, load regulation and dropout of a resistive divider
+ * stage (Vin – R1 series – out – R2 shunt), against the voltage divider and
+ * Thévenin's theorem (any circuit-theory text): seen from `out` the stage is
+ * Vth = Vin·R2/(R1 + R2) behind Rth = R1∥R2. Definitions of the figures are
+ * those of figures.md; component values are randomised.
+ */
+import { describe, expect, test } from 'vitest';
+import fc from 'fast-check';
+import { createDcBench, dropout, lineRegulation, loadRegulation, parseNetlist, prepare, RailcheckError } from '@railcheck/core';
+import { dividerThevenin, dividerWithCurrent, dividerWithResistor, errorsOf, figuresOf, logUniform, num, par, relErr, seedFor, value } from './support.js';
+
+const seed = seedFor('measure/linear/divider');
+const RUNS = { seed, numRuns: 25 };
+
+/** A divider stage; the load is a current source `IL` (A) or a resistor `RL` (Ω). */
+interface Divider { vin: number; r1: number; r2: number; load: { kind: 'I'; amps: number } | { kind: 'R'; ohms: number } }
+
+const dividerArb: fc.Arbitrary<Divider> = fc
+  .record({ vin: fc.double({ min: 2, max: 100, noNaN: true }), r1: logUniform(10, 100e3), r2: logUniform(10, 100e3), share: fc.double({ min: 0.05, max: 0.8, noNaN: true }), resistor: fc.boolean() })
+  .map(({ vin, r1, r2, share, resistor }) => {
+    const { vth, rth } = dividerThevenin(vin, r1, r2);
+    // `share` of the short-circuit current Vth/Rth keeps Vout_nom at (1 − share)·Vth > 0.
+    const amps = (share * vth) / rth;
+    return { vin, r1, r2, load: resistor ? { kind: 'R', ohms: (vth * (1 - share)) / amps } : { kind: 'I', amps } };
+  });
+
+function netlist(d: Divider, figures: readonly string[]): string[] {
+  const load = d.load.kind === 'I' ? `IL out 0 ${num(d.load.amps)}` : `RL out 0 ${num(d.load.ohms)}`;
+  return ['divider stage', `V1 in 0 ${num(d.vin)}`, `R1 in out ${num(d.r1)}`, `R2 out 0 ${num(d.r2)}`, load, `.supply in=V1 out=out load=${d.load.kind}L`, ...figures];
+}
+
+/** Vout (V) at input `vin` with the load at the setting for current `amps` (figures.md: resistor = Vout_nom/I, open for 0). */
+function voutAt(d: Divider, vin: number, amps?: number): number {
+  if (d.load.kind === 'I') return dividerWithCurrent(vin, d.r1, d.r2, amps ?? d.load.amps);
+  if (amps === undefined) return dividerWithResistor(vin, d.r1, d.r2, d.load.ohms);
+  const nominal = dividerWithResistor(d.vin, d.r1, d.r2, d.load.ohms);
+  return dividerWithResistor(vin, d.r1, d.r2, amps === 0 ? Infinity : nominal / amps);
+}
+
+/** dVout/dVin at nominal load: R2/(R1 + R2) for a current load, (R2∥RL)/(R1 + R2∥RL) for a resistor. */
+function lineRatio(d: Divider): number {
+  const shunt = d.load.kind === 'I' ? d.r2 : par(d.r2, d.load.ohms);
+  return shunt / (d.r1 + shunt);
+}
+
+/** Each figure kind once per netlist: one run per figure line. */
+const each = (d: Divider, figs: readonly string[]) => figs.map((f) => figuresOf(netlist(d, [f])).figures.figures[0]!);
+
+const nominalLoad = (d: Divider): number => (d.load.kind === 'I' ? d.load.amps : voutAt(d, d.vin) / d.load.ohms);
+
+describe('line regulation of a divider', () => {
+  test('line.delta, line.slope and line.pct_per_v equal the divider ratio, default and explicit from/to', () => {
+    fc.assert(
+      fc.property(dividerArb, fc.double({ min: 0.3, max: 0.95, noNaN: true }), fc.double({ min: 1.05, max: 1.5, noNaN: true }), (d, a, b) => {
+        const from = a * d.vin;
+        const to = b * d.vin;
+        const [def, explicit] = each(d, ['.figure line', `.figure line from=${num(from)} to=${num(to)}`]);
+        const k = lineRatio(d);
+        const vnom = voutAt(d, d.vin);
+        // Default ends 0.9 and 1.1 × nominal (figures.md).
+        expect(relErr(def!.values['line.delta']!, k * 0.2 * d.vin)).toBeLessThan(1e-9);
+        expect(relErr(def!.values['line.slope']!, k)).toBeLessThan(1e-9);
+        expect(relErr(def!.values['line.pct_per_v']!, (100 * k) / vnom)).toBeLessThan(1e-9);
+        expect(relErr(explicit!.values['line.delta']!, k * (to - from))).toBeLessThan(1e-9);
+        expect(relErr(explicit!.values['line.slope']!, k)).toBeLessThan(1e-9);
+        expect(relErr(explicit!.values['line.pct_per_v']!, (100 * k) / vnom)).toBeLessThan(1e-9);
+      }),
+      RUNS,
+    );
+  });
+});
+
+describe('load regulation of a divider', () => {
+  test('load.rout is the Thévenin resistance R1∥R2 for a current-source load, any from/to', () => {
+    fc.assert(
+      fc.property(dividerArb.filter((d) => d.load.kind === 'I'), fc.double({ min: 0, max: 0.4, noNaN: true }), fc.double({ min: 0.6, max: 1.2, noNaN: true }), (d, a, b) => {
+        const inom = nominalLoad(d);
+        const [def, explicit] = each(d, ['.figure load', `.figure load from=${num(a * inom)} to=${num(b * inom)}`]);
+        const { vth, rth } = dividerThevenin(d.vin, d.r1, d.r2);
+        expect(relErr(def!.values['load.rout']!, rth)).toBeLessThan(1e-9);
+        expect(relErr(def!.values['load.delta']!, inom * rth)).toBeLessThan(1e-9);
+        // Vout(from = 0) = Vth.
+        expect(relErr(def!.values['load.pct']!, (100 * inom * rth) / vth)).toBeLessThan(1e-9);
+        const delta = (b - a) * inom * rth;
+        expect(relErr(explicit!.values['load.rout']!, rth)).toBeLessThan(1e-9);
+        expect(relErr(explicit!.values['load.delta']!, delta)).toBeLessThan(1e-9);
+        expect(relErr(explicit!.values['load.pct']!, (100 * delta) / (vth - a * inom * rth))).toBeLessThan(1e-9);
+      }),
+      RUNS,
+    );
+  });
+
+  test('resistor load: R = Vout_nom/I at each end, open for 0; the default range gives rout = R1∥R2', () => {
+    fc.assert(
+      fc.property(dividerArb.filter((d) => d.load.kind === 'R'), fc.double({ min: 0.1, max: 0.4, noNaN: true }), fc.double({ min: 0.6, max: 1.5, noNaN: true }), (d, a, b) => {
+        const inom = nominalLoad(d);
+        const [def, explicit] = each(d, ['.figure load', `.figure load from=${num(a * inom)} to=${num(b * inom)}`]);
+        const { vth, rth } = dividerThevenin(d.vin, d.r1, d.r2);
+        // Open (Vth) to RL: Vth − Vth·RL/(Rth + RL) = Inom·Rth exactly, since Inom = Vth/(Rth + RL).
+        expect(relErr(def!.values['load.delta']!, vth - voutAt(d, d.vin))).toBeLessThan(1e-9);
+        expect(relErr(def!.values['load.rout']!, rth)).toBeLessThan(1e-9);
+        expect(relErr(def!.values['load.pct']!, (100 * (vth - voutAt(d, d.vin))) / vth)).toBeLessThan(1e-9);
+        // Away from nominal the resistor's actual current is not the label I, so rout ≠ Rth: derive it.
+        const va = voutAt(d, d.vin, a * inom);
+        const vb = voutAt(d, d.vin, b * inom);
+        expect(relErr(explicit!.values['load.delta']!, va - vb)).toBeLessThan(1e-9);
+        expect(relErr(explicit!.values['load.pct']!, (100 * (va - vb)) / va)).toBeLessThan(1e-9);
+        expect(relErr(explicit!.values['load.rout']!, (va - vb) / ((b - a) * inom))).toBeLessThan(1e-9);
+      }),
+      RUNS,
+    );
+  });
+});
+
+describe('dropout of a divider', () => {
+  // Vout(Vin) = Vout_nom − k·(Vnom − Vin) with k the line ratio, so Vin* = Vnom − fall/k.
+  const expected = (d: Divider, fall: number) => {
+    const vinStar = d.vin - fall / lineRatio(d);
+    return { vin: vinStar, v: vinStar - (voutAt(d, d.vin) - fall), headroom: fall / lineRatio(d) };
+  };
+  let worstMv = 0;
+
+  test('dropout.vin solves Vout(Vin*) = Vout_nom − fall within 1 mV; dropout.v and dropout.headroom follow', () => {
+    fc.assert(
+      fc.property(dividerArb, fc.double({ min: 0.02, max: 0.9, noNaN: true }), (d, share) => {
+        // Any fall below k·Vnom is reachable before the input reaches 0 V.
+        const fall = share * lineRatio(d) * d.vin;
+        const { figures } = figuresOf(netlist(d, [`.figure dropout fall=${num(fall)}`]));
+        const e = expected(d, fall);
+        const err = Math.abs(value(figures, 'dropout.vin') - e.vin);
+        worstMv = Math.max(worstMv, err * 1e3);
+        expect(err).toBeLessThan(1e-3);
+        expect(Math.abs(value(figures, 'dropout.v') - e.v)).toBeLessThan(1e-3);
+        expect(Math.abs(value(figures, 'dropout.headroom') - e.headroom)).toBeLessThan(1e-3);
+      }),
+      RUNS,
+    );
+    console.log(`[divider] worst dropout.vin error ${worstMv.toExponential(2)} mV`);
+  });
+
+  const fixed: Divider = { vin: 12, r1: 1e3, r2: 2e3, load: { kind: 'I', amps: 1e-3 } };
+
+  test('the default fall is 100 mV, and fall=2% is 2 % of Vout_nom', () => {
+    const [def, pct] = each(fixed, ['.figure dropout', '.figure dropout fall=2%']);
+    // k = 2/3, Vout_nom = 8 − 1 mA·666.7 Ω = 7.333 V.
+    const vnom = voutAt(fixed, 12);
+    expect(Math.abs(def!.values['dropout.vin']! - expected(fixed, 0.1).vin)).toBeLessThan(1e-3);
+    expect(Math.abs(pct!.values['dropout.vin']! - expected(fixed, 0.02 * vnom).vin)).toBeLessThan(1e-3);
+    expect(Math.abs(pct!.values['dropout.headroom']! - (0.02 * vnom) / (2 / 3))).toBeLessThan(1e-3);
+  });
+
+  test('an output that does not depend on the input is an error saying the output never falls', () => {
+    const lines = ['output from its own source', 'V1 in 0 12', 'R1 in 0 1k', 'V2 fix 0 5', 'R3 fix out 1k', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure dropout'];
+    const errors = errorsOf(lines);
+    expect(errors.map((e) => e.message).join('\n')).toMatch(/never falls/);
+    // Through the library: a RailcheckError, not another exception.
+    const p = prepare(parseNetlist([...lines, '.end'].join('\n')));
+    if (!p.ok) throw new Error('expected the netlist to compile');
+    expect(() => dropout(createDcBench(p.compiled), 0.1)).toThrow(RailcheckError);
+  });
+
+  test('a fall larger than the divider can give (k·Vnom) is the same error', () => {
+    // From Vout_nom = 7.333 V to Vout(0 V) = −1 mA·666.7 Ω = −0.667 V: the output can fall k·Vnom = 8 V at most.
+    expect(errorsOf(netlist(fixed, ['.figure dropout fall=8.1'])).map((e) => e.message).join('\n')).toMatch(/never falls/);
+    expect(Math.abs(value(figuresOf(netlist(fixed, ['.figure dropout fall=7.9'])).figures, 'dropout.vin') - expected(fixed, 7.9).vin)).toBeLessThan(1e-3);
+  });
+});
+
+describe('library entry points', () => {
+  test('lineRegulation, loadRegulation and dropout on a bench agree with the closed forms', () => {
+    const p = prepare(parseNetlist([...netlist({ vin: 24, r1: 3.3e3, r2: 4.7e3, load: { kind: 'I', amps: 2e-3 } }, []), '.end'].join('\n')));
+    if (!p.ok) throw new Error('expected the netlist to compile');
+    const bench = createDcBench(p.compiled);
+    const k = 4.7 / 8;
+    expect(relErr(lineRegulation(bench, { from: 20, to: 28 }).delta, 8 * k)).toBeLessThan(1e-9);
+    expect(relErr(loadRegulation(bench).rout, par(3.3e3, 4.7e3))).toBeLessThan(1e-9);
+    expect(Math.abs(dropout(bench, 0.5).vin - (24 - 0.5 / k))).toBeLessThan(1e-3);
+    // The bench is back at nominal after each figure.
+    expect(relErr(lineRegulation(bench).slope, k)).toBeLessThan(1e-9);
+  });
+});
+
+describe("line regulation below dropout (figures.md: 'line-below-dropout')", () => {
+  const d: Divider = { vin: 12, r1: 1e3, r2: 1e3, load: { kind: 'I', amps: 1e-3 } };
+  // k = 1/2: with the default 100 mV fall Vin* = 11.8 V; with fall=1 it is 10 V.
+  const warned = (figs: readonly string[]): boolean => figuresOf(netlist(d, figs)).warnings.some((w) => w.code === 'line-below-dropout');
+
+  test('from below the dropout input warns, from above it does not', () => {
+    expect(warned(['.figure line from=11.75 to=13'])).toBe(true);
+    expect(warned(['.figure line from=11.85 to=13'])).toBe(false);
+  });
+
+  test("the dropout figure's own fall sets the dropout input", () => {
+    expect(warned(['.figure line from=10.5 to=13', '.figure dropout fall=1'])).toBe(false);
+    expect(warned(['.figure line from=9.9 to=13', '.figure dropout fall=1'])).toBe(true);
+  });
+});
