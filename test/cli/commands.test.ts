@@ -1,0 +1,94 @@
+/**
+ * The command line's commands and options (figures.md, Results: exit
+ * status 0 when every limit passes, 1 when one fails, 2 when the netlist
+ * has an error; the message on standard error). Help goes to standard
+ * output with exit 0; a mistake on the command line is exit 2 with a
+ * message saying what was expected.
+ */
+import { describe, expect, test } from 'vitest';
+import { cli, netlistFile, STACK_LINE } from './support.js';
+
+const DIVIDER = 'Bench divider\nV1 in 0 12\nR1 in out 3k\nR2 out 0 1k\n.op\n';
+
+describe('help', () => {
+  test.each([
+    [['--help']], [['-h']], [['help']], [[]], [['help', 'run']], [['run', '--help']], [['help', 'demo']], [['demo', '--help']], [['run', '-h']],
+  ])('railcheck %j prints usage and exits 0', async (argv) => {
+    const run = await cli(argv);
+    expect(run.status).toBe(0);
+    expect(run.out).toMatch(/usage/i);
+    expect(run.err).toBe('');
+  });
+
+  test('each help names its own command and options', async () => {
+    expect((await cli(['--help'])).out).toMatch(/railcheck run FILE[\s\S]*railcheck demo[\s\S]*railcheck help/);
+    const run = (await cli(['help', 'run'])).out;
+    expect(run).toMatch(/railcheck run FILE/);
+    expect(run).toContain('--json');
+    expect(run).toContain('--allow-outside-includes');
+    expect((await cli(['demo', '--help'])).out).toMatch(/railcheck demo/);
+    // The general help gives the exit statuses of figures.md.
+    expect((await cli(['help'])).out).toMatch(/0[^\n]*1[^\n]*limit[^\n]*2/);
+  });
+
+  test('--help wins over a file argument', async () => {
+    const run = await cli(['run', netlistFile(DIVIDER), '--help']);
+    expect(run.status).toBe(0);
+    expect(run.out).toMatch(/usage/);
+  });
+});
+
+describe('mistakes on the command line exit 2 with a message', () => {
+  test.each([
+    ['unknown command', ['simulate', 'x.cir'], /unknown command 'simulate'/],
+    ['unknown option on run', ['run', 'x.cir', '--fast'], /unknown option '--fast'.*--json/],
+    ['unknown option on demo', ['demo', '--csv'], /unknown option/],
+    ['a value given to a flag that takes none', ['run', 'x.cir', '--json=yes'], /takes no value/],
+    ['run without a file', ['run'], /expected one netlist FILE/],
+    ['run with two files', ['run', 'a.cir', 'b.cir'], /expected one netlist FILE/],
+    ['demo with a file', ['demo', 'x.cir'], /takes no file/],
+    ['help on an unknown command', ['help', 'simulate'], /simulate/],
+  ])('%s', async (_name, argv, message) => {
+    const run = await cli(argv);
+    expect(run.status).toBe(2);
+    expect(run.err).toMatch(message);
+    expect(run.out).toBe('');
+    expect(run.err).not.toMatch(STACK_LINE);
+  });
+});
+
+describe('run and demo', () => {
+  test('run FILE exits 0 and reports on standard output only', async () => {
+    const run = await cli(['run', netlistFile(DIVIDER)]);
+    expect(run.status).toBe(0);
+    expect(run.out).toContain('Bench divider');
+    expect(run.err).toBe('');
+  });
+
+  test('run of a broken netlist exits 2 and prints nothing on standard output', async () => {
+    const file = netlistFile('Broken\nV1 in 0 12\nR1 in out\n');
+    const run = await cli(['run', file]);
+    expect(run.status).toBe(2);
+    expect(run.out).toBe('');
+    expect(run.err).toContain(`${file}:3:`);
+  });
+
+  test('demo exits 0 and reports the example stage (its title, its nodes and elements)', async () => {
+    const run = await cli(['demo']);
+    expect(run.status).toBe(0);
+    expect(run.out).toMatch(/Weather-station sensor rail/);
+    expect(run.out).toContain('sensor-rail-follower.cir');
+    for (const name of ['VBAT', 'Q1', 'DZ', 'ILOAD']) expect(run.out).toContain(name);
+  });
+
+  test('demo --json is one JSON object about the same stage', async () => {
+    const run = await cli(['demo', '--json']);
+    expect(run.status).toBe(0);
+    const j = JSON.parse(run.out) as { title: string; op: { nodes: Record<string, number>; currents: Record<string, number> } };
+    expect(j.title).toMatch(/Weather-station/);
+    expect(Object.keys(j.op.nodes)).toEqual(expect.arrayContaining(['in', 'ref', 'out']));
+    // The demo's battery is 12 V (examples/sensor-rail-follower.cir, .param vbat=12).
+    expect(j.op.nodes['in']).toBeCloseTo(12, 9);
+    expect(Object.keys(j.op.currents)).toEqual(expect.arrayContaining(['Q1.c', 'Q1.b', 'Q1.e']));
+  });
+});
