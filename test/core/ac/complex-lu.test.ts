@@ -239,10 +239,17 @@ describe('storage layout and singular matrices', () => {
   test('rank-deficient random matrices are caught (last row a combination of the others)', () => {
     fc.assert(
       fc.property(fc.integer({ min: 2, max: 7 }), fc.array(fc.array(scaledEntry, { minLength: 7, maxLength: 7 }), { minLength: 7, maxLength: 7 }), fc.array(scaledEntry, { minLength: 7, maxLength: 7 }), (n, rows, w) => {
-        const a = rows.slice(0, n - 1).map((row) => row.slice(0, n));
-        // Row n = Σ w_k·row k: exactly singular in exact arithmetic; after rounding its
-        // pivot is ~1e-16 of its column, below the relative tolerance 1e-13. (A matrix whose
-        // entries span many decades can defeat any relative threshold, hence scaledEntry.)
+        // The first n − 1 rows are made diagonally dominant, so that they are well
+        // conditioned; row n = Σ w_k·row k is then exactly singular in exact arithmetic, and
+        // after rounding its last pivot is ~1e-16 of the column, below the relative tolerance
+        // 1e-13. (Rounding of an ill-conditioned block, or entries spanning many decades, can
+        // lift that pivot past any relative threshold: rank is not decidable there.)
+        const a = rows.slice(0, n - 1).map((row, i) => {
+          const r = row.slice(0, n);
+          const sum = r.reduce((acc, v) => acc + abs(v), 0);
+          r[i] = { re: r[i]!.re + (r[i]!.re >= 0 ? 1 : -1) * (sum + 1), im: r[i]!.im };
+          return r;
+        });
         const last = a[0]!.map((_, j) =>
           a.reduce((acc, row, k) => ({
             re: acc.re + w[k]!.re * row[j]!.re - w[k]!.im * row[j]!.im,
