@@ -1,13 +1,13 @@
 /**
  * Small-signal analysis of nonlinear stages linearised at their operating
  * point: an NPN emitter follower (hybrid-π model, Gray and Meyer, Analysis
- * and Design of Analog Integrated Circuits, ch. 1 and 3, from memory) and a
- * Zener's incremental impedance. The bias and every small-signal parameter
+ * and Design of Analog Integrated Circuits, ch. 1 and 3, from memory), its
+ * PNP mirror, a Zener's incremental impedance and a diode's junction charge. The bias and every small-signal parameter
  * are computed here from the models.md equations, independently of the
  * engine's device code.
  */
 import { describe, expect, test } from 'vitest';
-import { complex, lusolve, matrix, type Complex, type Matrix } from 'mathjs';
+import { complex, divide, lusolve, matrix, type Complex, type Matrix } from 'mathjs';
 import { db, deg, lineariseNetlist, relErr, run } from './support.js';
 
 /** Vt at Tnom = 300.15 K with the CODATA 2018 exact k and q (models.md). */
@@ -257,5 +257,38 @@ describe('Zener incremental impedance', () => {
     const want = 1 / (1 / (RSZ + (Z.NBV * VT) / izs) + 1 / RP);
     const got = lin.at('k', 1e3);
     expect(relErr(got, complex(want, 0))).toBeLessThan(1e-5);
+  });
+});
+
+describe('diode junction charge', () => {
+  const D = { IS: 2e-14, N: 1.3, CJO: 30e-12, VJ: 0.7, M: 0.4, TT: 5e-9 };
+  const model = `.model DC D (IS=${D.IS} N=${D.N} CJO=${D.CJO} VJ=${D.VJ} M=${D.M} TT=${D.TT})`;
+
+  test('forward bias: Y = gd + jω(Cj + TT·gd), Cj on the linear continuation above VJ/2', () => {
+    const I = 1e-3;
+    const lin = lineariseNetlist(`forward\nI1 0 a dc ${I} ac 1\nD1 a 0 DC\n${model}\n.end\n`);
+    // Shockley inverted: Vd = N·Vt·ln(I/IS + 1); gd = dI/dV = (I + IS)/(N·Vt) (models.md).
+    const vd = D.N * VT * Math.log(I / D.IS + 1);
+    const gd = (I + D.IS) / (D.N * VT);
+    // models.md: Q = TT·I(V) + depletion charge, so C = TT·gd + Cj(V); gmin (1e-12 S) is negligible.
+    const c = depletionC(vd, D.CJO, D.VJ, D.M) + D.TT * gd;
+    expect(vd).toBeGreaterThan(D.VJ / 2);
+    for (const f of [1e3, 1e6, 1e8]) {
+      const want = complex(gd, 2 * Math.PI * f * c);
+      const z = lin.at('a', f);
+      const y = complex(z.re / (z.re ** 2 + z.im ** 2), -z.im / (z.re ** 2 + z.im ** 2));
+      expect(relErr(y, want)).toBeLessThan(1e-6);
+    }
+  });
+
+  test('reverse bias: Cj = CJO·(1 − V/VJ)^−M sets the corner with a parallel resistor', () => {
+    const R = 100e3;
+    const lin = lineariseNetlist(`reverse\nVB b 0 dc -5\nR1 b a ${R}\nI2 0 a dc 0 ac 1\nD1 a 0 DC\n${model}\n.end\n`);
+    // The reverse current IS·(e^(V/NVt) − 1) ≈ −IS drops IS·R = 2 nV across R1: V(a) = −5 V.
+    const cj = D.CJO * (1 + 5 / D.VJ) ** -D.M;
+    for (const f of [1e3, 1 / (2 * Math.PI * R * cj), 1e7]) {
+      const want = divide(complex(R, 0), complex(1, 2 * Math.PI * f * R * cj)) as Complex;
+      expect(relErr(lin.at('a', f), want)).toBeLessThan(1e-6);
+    }
   });
 });
