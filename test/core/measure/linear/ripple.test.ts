@@ -57,6 +57,16 @@ describe('RC section', () => {
     console.log(`[ripple] worst |rr_tran − rr| ${worst.toFixed(4)} dB over all time constants; ${worstShort.toFixed(5)} dB when τ < T/3`);
   });
 
+  test.each([0.3, 1, 3, 10])('τ = %s ripple periods: |rr_tran − rr| within 0.5 dB', (periods) => {
+    // The slowest settling: the 1 % cycle-to-cycle rule (figures.md) stops while the start-up transient lingers.
+    const c = periods / 100 / par(1e3, 3e3);
+    const s: Rc = { vin: 10, r: 1e3, rl: 3e3, c, freq: 100 };
+    const { figures } = figuresOf(rcNetlist(s, '.figure ripple amp=10m'));
+    const diff = Math.abs(value(figures, 'ripple.rr_tran') - db(attenuation(s)));
+    console.log(`[ripple] τ = ${periods} T: |rr_tran − rr| = ${diff.toFixed(4)} dB`);
+    expect(diff).toBeLessThan(0.5);
+  });
+
   const s: Rc = { vin: 12, r: 100, rl: 1e3, c: 100e-6, freq: 100 };
 
   test('defaults: 100 Hz and an amplitude of 1 % of the nominal input', () => {
