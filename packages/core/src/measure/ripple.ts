@@ -90,7 +90,8 @@ export function rippleTransient(bench: Bench, hertz: number, amp: number): { out
 /** Measures ripple rejection by the methods asked for. Throws RailcheckError. */
 export function rippleRejection(bench: Bench, opts: RippleOptions = {}): RippleRejection {
   const freq = opts.freq ?? 100;
-  const amp = opts.amp ?? 0.01 * bench.stage.nominalInput;
+  // A sine's p-p is 2·|amp| on a negative rail too.
+  const amp = opts.amp ?? 0.01 * Math.abs(bench.stage.nominalInput);
   const method = opts.method ?? 'both';
   const rr = method === 'tran' ? undefined : -20 * Math.log10(rippleTransfer(bench, freq));
   let rrTran: number | undefined;
@@ -100,7 +101,7 @@ export function rippleRejection(bench: Bench, opts: RippleOptions = {}): RippleR
     const t = rippleTransient(bench, freq, amp);
     outPp = t.outPp;
     cycles = t.cycles;
-    rrTran = 20 * Math.log10((2 * amp) / outPp);
+    rrTran = 20 * Math.log10((2 * Math.abs(amp)) / outPp);
   }
   const warnings: Diagnostic[] = [];
   if (rr !== undefined && rrTran !== undefined && Math.abs(rr - rrTran) > RIPPLE_AGREEMENT_DB) {
