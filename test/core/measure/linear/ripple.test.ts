@@ -87,6 +87,17 @@ describe('RC section', () => {
   });
 });
 
+describe('negative rail', () => {
+  test('an RC section fed from −12 V: the default ripple is 1 % of |Vin| and rr_tran is finite and agrees', () => {
+    // The input p-p of a sine of amplitude A is 2·|A|, whatever the sign of the rail.
+    const s: Rc = { vin: -12, r: 100, rl: 1e3, c: 100e-6, freq: 100 };
+    const { figures, warnings } = figuresOf(rcNetlist(s, '.figure ripple'));
+    expect(Math.abs(value(figures, 'ripple.rr_tran') - db(attenuation(s)))).toBeLessThan(0.5);
+    expect(Math.abs(value(figures, 'ripple.out_pp') / ((2 * 0.12) / attenuation(s)) - 1)).toBeLessThan(0.06);
+    expect(warnings.some((w) => w.code === 'ripple-disagree')).toBe(false);
+  });
+});
+
 describe('diode clipper (nonlinear)', () => {
   // 5 V through 1 kΩ into a diode to ground, 10 kΩ load across the diode.
   const IS = 1e-14;
