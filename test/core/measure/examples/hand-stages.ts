@@ -169,3 +169,31 @@ export function handFigures(s: HandStage, fall: number): HandFigures {
     efficiency: s.nominal.pload / s.nominal.pin,
   };
 }
+
+/**
+ * Capacitance multiplier (railway-capacitance-multiplier.cir): VRAIL in 0;
+ * RB in base; CB base 0; Q in base out; ILOAD out 0 (COUT, CB open at DC).
+ * The emitter current is the load current; for a trial V(out) the
+ * transistor equations give Ib and V(base); the residual is KCL at base,
+ * (Vin − V(base))/RB − Ib. With no load no current flows anywhere, so
+ * every node sits at Vin (exact).
+ */
+export function capacitanceMultiplier(v: NetlistValues): HandStage {
+  if (nodesOf(v, 'Q1', 3).join() !== 'in,base,out' || nodesOf(v, 'RB', 2).join() !== 'in,base' || nodesOf(v, 'ILOAD', 2).join() !== 'out,0') throw new Error('multiplier topology changed');
+  const rb = valueOf(v, 'RB');
+  const qp = npnParams(modelOf(v, 'Q1', 4));
+  const vinNominal = valueOf(v, 'VRAIL');
+  const solve = (vin: number, iload: number): HandSolution => {
+    if (iload === 0) return { vout: vin, nodes: { in: vin, base: vin, out: vin }, power: { RB: 0, Q1: 0 }, pin: 0, pload: 0, iref: 0 };
+    const junction = (vo: number) => npnAtEmitterCurrent(qp, vin, vo, iload);
+    const vo = bisect((x) => {
+      const j = junction(x);
+      return (vin - j.vb) / rb - j.ib;
+    }, 0, vin - iload * qp.RE - 1e-3); // the internal emitter must stay below the collector
+    const j = junction(vo);
+    const power = { RB: (vin - j.vb) * j.ib, Q1: (vin - vo) * j.ic + (j.vb - vo) * j.ib };
+    return { vout: vo, nodes: { in: vin, base: j.vb, out: vo }, power, pin: vin * (j.ic + j.ib), pload: vo * iload, iref: 0 };
+  };
+  const loadNominal = valueOf(v, 'ILOAD');
+  return { vinNominal, loadNominal, nominal: solve(vinNominal, loadNominal), solve };
+}
