@@ -4,20 +4,13 @@
  */
 import { match } from 'ts-pattern';
 import type { AnalysisCard, SupplyCard, Value } from '../netlist/ast.js';
-import type { FlatAnalysis, FlatElement, FlatFigure, FlatLimit, FlatNode, FlatSpread, FlatSupply } from './flat.js';
+import type { FlatAnalysis, FlatCircuit, FlatElement, FlatFigure, FlatLimit, FlatNode, FlatSpread, FlatSupply } from './flat.js';
 import { GROUND_KEY } from './flat.js';
 import type { Evaluator } from './evaluate.js';
 import type { Scope } from './scope.js';
 
 /** The directive part of a flat circuit. */
-export interface ResolvedDirectives {
-  readonly analyses: readonly FlatAnalysis[];
-  readonly temperatures: readonly number[];
-  readonly supply: FlatSupply | undefined;
-  readonly figures: readonly FlatFigure[];
-  readonly limits: readonly FlatLimit[];
-  readonly spreads: readonly FlatSpread[];
-}
+export type ResolvedDirectives = Pick<FlatCircuit, 'analyses' | 'temperatures' | 'supply' | 'figures' | 'limits' | 'spreads'>;
 
 /** Lowest temperature accepted, °C (absolute zero is not a place to simulate a junction). */
 const MIN_CELSIUS = -273;
