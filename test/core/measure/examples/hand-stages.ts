@@ -91,23 +91,26 @@ export interface FollowerNames {
   readonly pass: string;
   readonly bleed: string;
   readonly load: string;
+  /** Node that feeds the collector and the bias resistor (default `in`). */
+  readonly input?: string;
 }
 
 /**
- * Emitter follower (sensor-rail-follower.cir, follower-led-reference.cir):
- * Vsource in 0; RB in ref; reference ref→0; Q in ref out; RBLEED out 0;
+ * Emitter follower (sensor-rail-follower.cir, follower-led-reference.cir;
+ * the regulator of railway-transformer-follower.cir, fed from `res`, with
+ * `vinNominal` given): Vsource in 0; RB in ref; reference ref→0; Q in ref out; RBLEED out 0;
  * ILOAD out 0 (a current sink). Unknowns V(ref) and V(out). For a trial
  * V(out) the emitter current is fixed (V(out)/RBLEED + I_load); the
  * transistor equations then give Vbe, Ib and V(ref); the residual is KCL at
  * ref, (Vin − V(ref))/RB − I_ref − Ib, which falls as V(out) rises.
  */
-export function emitterFollower(v: NetlistValues, n: FollowerNames, kind: 'zener' | 'leds'): HandStage {
+export function emitterFollower(v: NetlistValues, n: FollowerNames, kind: 'zener' | 'leds', vinNominal = valueOf(v, n.source)): HandStage {
+  const input = n.input ?? 'in';
   const q = nodesOf(v, n.pass, 3).join();
-  if (q !== 'in,ref,out' || nodesOf(v, n.bias, 2).join() !== 'in,ref' || nodesOf(v, n.bleed, 2).join() !== 'out,0' || nodesOf(v, n.load, 2).join() !== 'out,0') throw new Error('follower topology changed');
+  if (q !== `${input},ref,out` || nodesOf(v, n.bias, 2).join() !== `${input},ref` || nodesOf(v, n.bleed, 2).join() !== 'out,0' || nodesOf(v, n.load, 2).join() !== 'out,0') throw new Error('follower topology changed');
   const rb = valueOf(v, n.bias);
   const rbleed = valueOf(v, n.bleed);
   const iloadNominal = valueOf(v, n.load);
-  const vinNominal = valueOf(v, n.source);
   const qp = npnParams(modelOf(v, n.pass, 4));
   const ref = kind === 'zener' ? zenerReference(v, n.reference[0]!) : ledChain(v, n.reference);
   const solve = (vin: number, iload: number): HandSolution => {
