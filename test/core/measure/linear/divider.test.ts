@@ -181,6 +181,20 @@ describe('library entry points', () => {
   });
 });
 
+describe('output against ref= (not ground)', () => {
+  test('Vout = V(out) − V(ref): the divider R1 – R2 – R3 with RL across R2', () => {
+    // Seen between out and ref: Vth = Vin·R2/(R1 + R2 + R3) = 4 V behind Rth = R2∥(R1 + R3) = 666.7 Ω.
+    const { figures } = figuresOf(['floating output', 'V1 in 0 12', 'R1 in out 1k', 'R2 out ref 1k', 'R3 ref 0 1k', 'RL out ref 2k', '.supply in=V1 out=out ref=ref load=RL', '.figure line', '.figure load', '.figure ripple method=ac']);
+    const shunt = par(1e3, 2e3);
+    const k = shunt / (2e3 + shunt);
+    expect(relErr(value(figures, 'line.slope'), k)).toBeLessThan(1e-9);
+    expect(relErr(value(figures, 'load.rout'), par(1e3, 2e3))).toBeLessThan(1e-9);
+    // Open RL: 4 V; with RL: 4·2k/(2k + 666.7) = 3 V.
+    expect(relErr(value(figures, 'load.delta'), 1)).toBeLessThan(1e-9);
+    expect(Math.abs(value(figures, 'ripple.rr') - -20 * Math.log10(k))).toBeLessThan(1e-9);
+  });
+});
+
 describe("line regulation below dropout (figures.md: 'line-below-dropout')", () => {
   const d: Divider = { vin: 12, r1: 1e3, r2: 1e3, load: { kind: 'I', amps: 1e-3 } };
   // k = 1/2: with the default 100 mV fall Vin* = 11.8 V; with fall=1 it is 10 V.

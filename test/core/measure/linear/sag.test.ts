@@ -60,12 +60,15 @@ describe('RC section', () => {
         worstFall = Math.max(worstFall, err);
         expect(err).toBeLessThan(1e-3);
         expect(value(figures, 'sag.pass')).toBe(s.depth <= share ? 1 : 0);
+        // The fall's own accuracy (1e-3 of the swing, as above) moves the pass boundary by up to
+        // share·1e-3·G·Vin/F1 either way.
+        const shift = (share * 1e-3 * (s.rl / (s.r + s.rl)) * s.vin) / f1;
         const depthErr = Math.abs(value(figures, 'sag.max_depth') - share);
         worstDepth = Math.max(worstDepth, depthErr);
-        // figures.md: the deepest passing dip to within 0.5 % (read as 0.005 of the ratio).
-        expect(depthErr).toBeLessThanOrEqual(0.005);
-        // ... and a depth that passes: not deeper than the true limit (beyond the fall's own 1e-3 accuracy).
-        expect(value(figures, 'sag.max_depth')).toBeLessThanOrEqual(share * (1 + 1e-3));
+        // figures.md: the deepest passing dip to within 0.5 % (read as 0.005 of the ratio) ...
+        expect(depthErr).toBeLessThanOrEqual(0.005 + shift);
+        // ... and a depth that passes: not deeper than the true limit.
+        expect(value(figures, 'sag.max_depth')).toBeLessThanOrEqual(share + shift);
       }),
       { seed, numRuns: 10 },
     );
