@@ -11,13 +11,13 @@ import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import type { RunReport } from '@railcheck/core';
 import { emitterFollower, handFigures, type FollowerNames, type HandFigures, type HandStage } from './hand-stages.js';
 import { VT, diodeParams } from './device-equations.js';
-import { modelOf, readExample, valueOf } from './netlist-values.js';
+import { modelOf, numberOf, readExample, valueOf } from './netlist-values.js';
 import { Ledger, figure, rel, runExample } from './support.js';
 
 /** Relative agreement asked of DC figures (the engine's Newton stops at 1e-6 relative). */
 const REL = 1e-4;
-/** figures.md default dropout criterion; neither follower writes `fall=`. */
-const FALL = 0.1;
+/** The dropout criterion a file asks for (`fall=` in volts), else the figures.md default of 100 mV. */
+const fallOf = (file: string): number => numberOf(readExample(file).figures.get('dropout')?.get('fall') ?? '100m');
 
 interface Case {
   readonly file: string;
@@ -34,6 +34,7 @@ interface Solved {
   report: RunReport;
   stage: HandStage;
   hand: HandFigures;
+  fall: number;
   ledger: Ledger;
 }
 
@@ -43,7 +44,8 @@ const get = (file: string): Solved => solved.get(file)!;
 beforeAll(() => {
   for (const c of CASES) {
     const stage = emitterFollower(readExample(c.file), c.names, c.kind);
-    solved.set(c.file, { report: runExample(c.file), stage, hand: handFigures(stage, FALL), ledger: new Ledger(`${c.file}: railcheck vs independent solution`) });
+    const fall = fallOf(c.file);
+    solved.set(c.file, { report: runExample(c.file), stage, hand: handFigures(stage, fall), fall, ledger: new Ledger(`${c.file}: railcheck vs independent solution`) });
   }
 });
 afterAll(() => {
@@ -92,12 +94,12 @@ describe.each(CASES)('$file: DC figures against the independent solution', ({ fi
   });
 
   test('dropout definition: re-solved at dropout.vin, Vout = Vout_nom − 100 mV to within 1 mV of input', () => {
-    const { report, stage, ledger } = get(file);
+    const { report, stage, fall, ledger } = get(file);
     const vin = figure(report, 'dropout.vin');
     const h = 1e-3;
     const slope = (stage.solve(vin + h, stage.loadNominal).vout - stage.solve(vin - h, stage.loadNominal).vout) / (2 * h);
-    const miss = stage.solve(vin, stage.loadNominal).vout - (stage.nominal.vout - FALL);
-    ledger.note(`at dropout.vin the independent Vout misses Vout_nom − 0.1 V by ${miss.toExponential(2)} V (local slope ${slope.toFixed(4)} V/V)`);
+    const miss = stage.solve(vin, stage.loadNominal).vout - (stage.nominal.vout - fall);
+    ledger.note(`at dropout.vin the independent Vout misses Vout_nom − ${fall} V by ${miss.toExponential(2)} V (local slope ${slope.toFixed(4)} V/V)`);
     expect(slope).toBeGreaterThan(0);
     expect(Math.abs(miss)).toBeLessThanOrEqual(slope * 1e-3);
   });
