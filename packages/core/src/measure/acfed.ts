@@ -243,7 +243,7 @@ export function measureAcFedFigure(b: AcBench, f: FlatFigure, all: readonly Flat
       let lo = main.fall <= fall ? depth : 0;
       let hi = main.fall <= fall ? 1 : depth;
       if (passes(1)) lo = hi = 1;
-      while (hi - lo > 0.005) {
+      while (hi - lo > Math.max(0.005 * hi, 1e-4)) {
         const mid = 0.5 * (lo + hi);
         if (passes(mid)) lo = mid;
         else hi = mid;
