@@ -12,7 +12,15 @@ import { applySetting, loadCurrentOf, makeStage, restoreNominal, solveSetting, v
 /** A stage at its nominal point, ready for figures. */
 export interface Bench {
   readonly stage: Stage;
-  /** Output at nominal, V (for a sine-fed stage: the mean over a cycle at periodic steady state). */
+  /**
+   * +1 for a positive rail, −1 for a negative one. Figures of a negative
+   * rail are taken on magnitudes (|Vout|, |Vin|), so that "the output
+   * droops" and "the input falls" read the same on both.
+   */
+  readonly outputSign: 1 | -1;
+  /** Sign of the nominal input (+1 or −1), for input differences. */
+  readonly inputSign: 1 | -1;
+  /** |Vout| at nominal, V. */
   readonly voutNominal: number;
   /** Nominal load current, A (undefined without a load element). */
   readonly loadNominal: number | undefined;
@@ -32,10 +40,14 @@ export function createDcBench(c: CompiledCircuit): Bench {
   restoreNominal(stage);
   const outcome = solveOperatingPoint(c);
   if (!outcome.ok) throw new RailcheckError([opFailure(outcome, 'nominal operating point of the stage', supply.origin)]);
-  const voutNominal = vout(stage);
+  const signed = vout(stage);
+  const outputSign = signed < 0 ? -1 : 1;
+  const voutNominal = Math.abs(signed);
   const loadNominal = loadCurrentOf(stage, voutNominal);
   return {
     stage,
+    outputSign,
+    inputSign: stage.nominalInput < 0 ? -1 : 1,
     voutNominal,
     loadNominal,
     current: { vin: stage.nominalInput, loadAmps: loadNominal },
@@ -44,11 +56,11 @@ export function createDcBench(c: CompiledCircuit): Bench {
   };
 }
 
-/** Solves at `target` by continuation from the present point and returns Vout (V). */
+/** Solves at `target` by continuation from the present point and returns the output on the rail's side, outputSign·Vout (V). */
 export function voutAt(bench: Bench, target: DcSetting, what: string): number {
   solveSetting(bench.stage, bench.current, target, bench.voutNominal, what);
   bench.current = target;
-  return vout(bench.stage);
+  return bench.outputSign * vout(bench.stage);
 }
 
 /** Puts the bench back at nominal (devices and solution). */

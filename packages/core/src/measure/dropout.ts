@@ -16,7 +16,7 @@ export interface Dropout {
   readonly fall: number;
   /** `dropout.vin`: input at which Vout = Vout_nom − fall, V. */
   readonly vin: number;
-  /** `dropout.v` = vin − Vout(vin), V: the input-output differential. */
+  /** `dropout.v` = vin − Vout(vin), V: the input-output differential (magnitudes on a negative rail). */
   readonly v: number;
   /** `dropout.headroom` = nominal input − vin, V. */
   readonly headroom: number;
@@ -57,14 +57,13 @@ export function dropout(bench: Bench, fallVolts = DEFAULT_DROPOUT_FALL): Dropout
     if (Number.isNaN(lo)) {
       throw new RailcheckError([errorAt('no-dropout', `the output never falls by ${formatSI(fallVolts, 'V')} below its nominal ${formatSI(bench.voutNominal, 'V')}, even with the input at 0 V`, origin.pos, origin.lineText, 'a stage whose output depends on its input, or a smaller fall=')]);
     }
-    // Illinois: regula falsi that halves the stale end's weight.
+    // Illinois: regula falsi that halves the stale end's weight. `lo` is the end where the output has
+    // fallen too far (f < 0), `hi` the end where it has not; on a negative rail lo > hi.
     let side = 0;
-    let vin = hi;
-    let fv = fHi;
-    for (let iter = 0; iter < 100 && hi - lo > INPUT_TOLERANCE; iter++) {
-      vin = (lo * fHi - hi * fLo) / (fHi - fLo);
-      if (!(vin > lo && vin < hi)) vin = 0.5 * (lo + hi);
-      fv = f(vin);
+    for (let iter = 0; iter < 100 && Math.abs(hi - lo) > INPUT_TOLERANCE; iter++) {
+      let vin = (lo * fHi - hi * fLo) / (fHi - fLo);
+      if (!(vin > Math.min(lo, hi) && vin < Math.max(lo, hi))) vin = 0.5 * (lo + hi);
+      const fv = f(vin);
       if (fv < 0) {
         lo = vin;
         fLo = fv;
@@ -79,7 +78,9 @@ export function dropout(bench: Bench, fallVolts = DEFAULT_DROPOUT_FALL): Dropout
     }
     const vinStar = Math.abs(fLo) < Math.abs(fHi) ? lo : hi;
     const voutStar = f(vinStar) + target;
-    return { fall: fallVolts, vin: vinStar, v: vinStar - voutStar, headroom: nominal - vinStar };
+    // On a negative rail both are magnitudes: |Vin*| − |Vout|, |Vin_nom| − |Vin*|.
+    const s = bench.inputSign;
+    return { fall: fallVolts, vin: vinStar, v: s * vinStar - voutStar, headroom: s * (nominal - vinStar) };
   } finally {
     backToNominal(bench);
   }

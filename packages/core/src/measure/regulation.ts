@@ -9,15 +9,18 @@
 import { errorAt, RailcheckError } from '../errors.js';
 import { backToNominal, voutAt, type Bench } from './bench.js';
 
-/** Line regulation: output change between two inputs at nominal load. */
+/**
+ * Line regulation: output change between two inputs at nominal load. On a
+ * negative rail delta and slope are taken on magnitudes (|Vout|, |Vin|).
+ */
 export interface LineRegulation {
   /** Input ends, V. */
   readonly from: number;
   readonly to: number;
-  /** Output at each end, V. */
+  /** Output at each end, V (signed). */
   readonly voutFrom: number;
   readonly voutTo: number;
-  /** `line.delta` = Vout(to) − Vout(from), V. */
+  /** `line.delta` = Vout(to) − Vout(from), V (|Vout| on a negative rail). */
   readonly delta: number;
   /** `line.slope` = delta / (to − from), V/V. */
   readonly slope: number;
@@ -42,8 +45,9 @@ export function lineRegulation(bench: Bench, opts: LineOptions = {}): LineRegula
     backToNominal(bench);
     const voutTo = voutAt(bench, { vin: to, loadAmps: bench.loadNominal }, 'line regulation, high input');
     const delta = voutTo - voutFrom;
-    const slope = delta / (to - from);
-    return { from, to, voutFrom, voutTo, delta, slope, pctPerV: (100 * slope) / bench.voutNominal };
+    const slope = delta / (bench.inputSign * (to - from));
+    const sign = bench.outputSign;
+    return { from, to, voutFrom: sign * voutFrom, voutTo: sign * voutTo, delta, slope, pctPerV: (100 * slope) / bench.voutNominal };
   } finally {
     backToNominal(bench);
   }
@@ -88,7 +92,8 @@ export function loadRegulation(bench: Bench, opts: LoadOptions = {}): LoadRegula
     backToNominal(bench);
     const voutTo = voutAt(bench, { vin, loadAmps: to }, 'load regulation, second load');
     const delta = voutFrom - voutTo;
-    return { from, to, voutFrom, voutTo, delta, pct: (100 * delta) / voutFrom, rout: delta / (to - from) };
+    const sign = bench.outputSign;
+    return { from, to, voutFrom: sign * voutFrom, voutTo: sign * voutTo, delta, pct: (100 * delta) / voutFrom, rout: delta / (to - from) };
   } finally {
     backToNominal(bench);
   }

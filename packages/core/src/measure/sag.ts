@@ -91,7 +91,7 @@ function runDip(bench: Bench, depth: number, o: SagSettings, settleCycles: numbe
   const tEnd = t0 + 2 * o.edge + o.dur + 5 * o.edge;
   const dip: WaveformSpec = { kind: 'pwl', times: [0, t0, t0 + o.edge, t0 + o.edge + o.dur, t0 + 2 * o.edge + o.dur], values: [nominal, nominal, low, low, nominal] };
   const saved = stage.input.waveform;
-  const out = (x: Float64Array): number => x[stage.outIndex]! - x[stage.refIndex]!;
+  const out = (x: Float64Array): number => bench.outputSign * (x[stage.outIndex]! - x[stage.refIndex]!);
   const whole = new Window(t0, tEnd);
   const before = new Window(t0 - period, t0);
   const bottomEnd = Math.floor((t0 + o.edge + o.dur) / period + 1e-9) * period;
