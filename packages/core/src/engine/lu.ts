@@ -13,7 +13,14 @@
  * before elimination is taken as zero: the matrix is singular to working
  * precision. 1e-13 leaves about three decimal digits above double rounding
  * (common practice, no source; the same order as the absolute pivot floor
- * customary in circuit simulators).
+ * customary in circuit simulators). Such a pivot is nevertheless kept when a
+ * running round-off bound (Wilkinson's running error analysis, as in Higham,
+ * Accuracy and Stability of Numerical Algorithms, 2nd ed., §3.3; from
+ * memory) shows it is no round-off: larger than this same fraction of the
+ * bound. Rows of an MNA matrix differ in units (KCL rows in amps, branch
+ * rows in volts), and a 1e15 S conductance beside a voltage source's ±1
+ * leaves the exact pivot −1e-15 in a regular matrix, tiny beside the ±1 of
+ * its column but with a round-off bound of a few 1e-15 · 2.2e-16.
  */
 export const PIVOT_RELATIVE_TOLERANCE = 1e-13;
 
@@ -25,6 +32,8 @@ export interface LuWorkspace {
   readonly perm: Int32Array;
   /** Scratch: the largest magnitude each column had before elimination. */
   readonly columnScale: Float64Array;
+  /** Scratch, same layout as `matrix`: running round-off bound of each entry, in units of the unit round-off. */
+  readonly roundoff: Float64Array;
   /** Matrix dimension including the ground row (unknowns + 1). */
   readonly size: number;
 }
@@ -36,6 +45,7 @@ export function createLuWorkspace(unknowns: number, matrix?: Float64Array): LuWo
     matrix: matrix ?? new Float64Array(size * size),
     perm: new Int32Array(size),
     columnScale: new Float64Array(size),
+    roundoff: new Float64Array(size * size),
     size,
   };
 }
@@ -45,7 +55,7 @@ export function createLuWorkspace(unknowns: number, matrix?: Float64Array): LuWo
  * (column) at which no acceptable pivot was found (the matrix is singular).
  */
 export function luFactor(ws: LuWorkspace): number {
-  const { matrix: a, perm, columnScale, size: s } = ws;
+  const { matrix: a, perm, columnScale, roundoff: e, size: s } = ws;
   const n = s - 1;
   for (let k = 1; k <= n; k++) perm[k] = k;
   columnScale.fill(0);
@@ -53,6 +63,8 @@ export function luFactor(ws: LuWorkspace): number {
     const row = i * s;
     for (let j = 1; j <= n; j++) {
       const m = Math.abs(a[row + j]!);
+      // Each stamped entry may already carry the rounding of its own sum.
+      e[row + j] = m;
       if (m > columnScale[j]!) columnScale[j] = m;
     }
   }
@@ -66,7 +78,8 @@ export function luFactor(ws: LuWorkspace): number {
         p = i;
       }
     }
-    if (!(best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]!) || best < 1e-300) return k;
+    const acceptable = best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]! || best > PIVOT_RELATIVE_TOLERANCE * e[p * s + k]!;
+    if (!acceptable || best < 1e-300) return k;
     if (p !== k) {
       const rk = k * s;
       const rp = p * s;
@@ -74,6 +87,9 @@ export function luFactor(ws: LuWorkspace): number {
         const t = a[rk + j]!;
         a[rk + j] = a[rp + j]!;
         a[rp + j] = t;
+        const r = e[rk + j]!;
+        e[rk + j] = e[rp + j]!;
+        e[rp + j] = r;
       }
       const t = perm[k]!;
       perm[k] = perm[p]!;
@@ -81,12 +97,22 @@ export function luFactor(ws: LuWorkspace): number {
     }
     const rk = k * s;
     const pivot = a[rk + k]!;
+    const pivotErr = e[rk + k]!;
     for (let i = k + 1; i <= n; i++) {
       const ri = i * s;
       const lik = a[ri + k]! / pivot;
       if (lik === 0) continue;
       a[ri + k] = lik;
-      for (let j = k + 1; j <= n; j++) a[ri + j]! -= lik * a[rk + j]!;
+      const l = Math.abs(lik);
+      // Round-off bound of l: its numerator's and the pivot's, relative, plus the division.
+      const lErr = (e[ri + k]! + l * pivotErr) / Math.abs(pivot) + l;
+      for (let j = k + 1; j <= n; j++) {
+        const u = a[rk + j]!;
+        const product = l * Math.abs(u);
+        const next = a[ri + j]! - lik * u;
+        a[ri + j] = next;
+        e[ri + j] = e[ri + j]! + l * e[rk + j]! + lErr * Math.abs(u) + product + Math.abs(next);
+      }
     }
   }
   return 0;
