@@ -7,7 +7,8 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import { lusolve } from 'mathjs';
-import { createLuWorkspace, luFactor, luSolve, PIVOT_RELATIVE_TOLERANCE } from '@railcheck/core';
+import { createLuWorkspace, luFactor, luSolve, PIVOT_RELATIVE_TOLERANCE, runNetlist } from '@railcheck/core';
+import { thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';
 import { ml } from '../../helpers/ml-matrix.js';
 import { fcSeed } from '../../helpers/device-harness.js';
 import { dominantSystem, engineSolve, generalSystem, entry, matVec, normInf, relDiff, toLu, toRhs } from '../../helpers/dense.js';
@@ -260,5 +261,67 @@ describe('relative pivot tolerance', () => {
       ),
       { seed, numRuns: 200 },
     );
+  });
+
+  test('row scaling from ~1e-12 to ~1e12 keeps the verdict too (KCL rows in amps, branch rows in volts)', () => {
+    const int = fc.integer({ min: -9, max: 9 });
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 2, max: 8 }).chain((n) =>
+          fc.tuple(
+            fc.array(fc.array(int, { minLength: n, maxLength: n }), { minLength: n - 1, maxLength: n - 1 }),
+            fc.array(fc.integer({ min: -3, max: 3 }).filter((k) => k !== 0), { minLength: n - 1, maxLength: n - 1 }),
+            fc.array(fc.integer({ min: -40, max: 40 }), { minLength: n, maxLength: n }),
+            fc.double({ min: 0.01, max: 1, noNaN: true }),
+          ),
+        ),
+        ([top, c, exps, delta]) => {
+          const n = top.length + 1;
+          const last = Array.from({ length: n }, (_, j) => top.reduce((s, r, i) => s + c[i]! * r[j]!, 0));
+          const dependent = [...top, last];
+          const lead = new ml.SingularValueDecomposition(new ml.Matrix(dependent.map((r) => r.slice(0, n - 1))));
+          fc.pre(lead.rank === n - 1 && lead.condition < 30);
+          const lifted = [...top, last.map((v, j) => (j === n - 1 ? v + delta : v))];
+          const rowScaled = (m: number[][]): number[][] => m.map((r, i) => r.map((v) => v * 2 ** exps[i]!));
+          expect(engineSolve(rowScaled(dependent), Array(n).fill(1)).singular).not.toBe(0);
+          const { singular, x } = engineSolve(rowScaled(lifted), rowScaled(lifted).map((r) => r.reduce((s, v) => s + v, 0)));
+          expect(singular).toBe(0);
+          // The right-hand side is the row sums, so the solution is all ones.
+          expect(relDiff(x, Array(n).fill(1))).toBeLessThan(1e-6);
+        },
+      ),
+      { seed, numRuns: 200 },
+    );
+  });
+
+  test('a huge conductance against a voltage-source branch is not a singular matrix', () => {
+    // [[g, 1], [1, 0]]: a node tied to ground by g siemens and held by a source (det = −1).
+    // Elimination leaves the pivot −1/g in the branch column, whose entries are all ±1 or 0.
+    for (const g of [1e3, 1e12, 1e15, 1e21]) {
+      const { singular, x } = engineSolve([[g, 1], [1, 0]], [3 * g, 2]);
+      expect(singular, `g = ${g}`).toBe(0);
+      // By hand: V = 2 from the branch row, then I = 3g − 2g = g.
+      expect(x[0]).toBeCloseTo(2, 12);
+      expect(Math.abs(x[1]! - g) / g).toBeLessThan(1e-12);
+    }
+  });
+});
+
+describe('circuits whose matrix the pivot test once took for singular', () => {
+  // The branch row of a source holds ±1 while the node row beside it holds g: elimination leaves −1/g.
+  test('a femto-ohm resistor straight across a 1 V source draws 1e15 A (Ohm)', () => {
+    const r = runNetlist('stiff\nV1 in 0 1\nR1 in 0 1e-15\n.op\n');
+    if (!r.ok) throw new Error(r.errors.map((e) => e.message).join('; '));
+    expect(Math.abs(r.report.operatingPoints[0]!.currents['R1']! - 1e15) / 1e15).toBeLessThan(1e-12);
+  });
+
+  test('a diode straight across a 2 V source carries IS·(exp(2 V/Vt) − 1) (Shockley, models.md)', () => {
+    const r = runNetlist('stiff diode\nV1 in 0 2\nD1 in 0 dm\n.model dm D (IS=1e-14)\n.op\n');
+    if (!r.ok) throw new Error(r.errors.map((e) => e.message).join('; '));
+    const op = r.report.operatingPoints[0]!;
+    // 2/Vt = 77.3: still the plain exponential (the device continues it linearly only beyond 80).
+    const want = 1e-14 * Math.expm1(2 / thermalVoltage(T_NOM));
+    expect(Math.abs(op.currents['D1']! - want) / want).toBeLessThan(1e-9);
+    expect(op.method).toBe('newton');
   });
 });
