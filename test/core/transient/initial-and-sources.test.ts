@@ -1,0 +1,197 @@
+/**
+ * Initial conditions and source waveforms in a transient.
+ *
+ * Initial conditions (netlist.md: `ic=` on C and L, the `.tran` flag
+ * `fromic`): without the flag a run starts from the operating point and ic=
+ * is ignored; with it capacitors start at their ic= voltage (0 where absent)
+ * and inductors at their ic= current (0 where absent). Expected trajectories
+ * are first-order closed forms (Alexander and Sadiku ch. 7, from memory) and
+ * the operating point of a divider (Ohm's law).
+ *
+ * Sources: sin, pulse and pwl as netlist.md defines them, re-written here,
+ * must appear at every accepted time across a resistor (a linear circuit, so
+ * to rounding), with the passive sign convention for the source current.
+ * Through runNetlist, the `.tran` output grid is tstart, tstart + tstep, …,
+ * tstop with values linearly interpolated between accepted points; its
+ * distance from the waveform is bounded by the linear-interpolation error
+ * h²/8·max|v''| (Burden and Faires, Numerical Analysis, §3.1 — from memory).
+ */
+import { describe, expect, it } from 'vitest';
+import { runNetlist } from '@railcheck/core';
+import { at, branch, compile, interpolate, node, run } from './support.js';
+
+// Divider 10 V → 1k/1k with C1 (ic=2) across the bottom; a second RC without ic; an RL loop with ic.
+const IC_CIRCUIT = `ic study
+V1 in 0 10
+R1 in out 1k
+R2 out 0 1k
+C1 out 0 1u ic=2
+R3 in out2 1k
+C2 out2 0 1u
+L1 a 0 10m ic=0.1
+R4 a 0 10
+V2 p 0 2
+R5 p q 4
+L2 q 0 1m ic=5
+.end
+`;
+
+describe('initial conditions', () => {
+  const c = compile(IC_CIRCUIT);
+  const [out, out2, a] = [node(c, 'out'), node(c, 'out2'), node(c, 'a')];
+  const [iL1, iL2] = [branch(c, 'L1'), branch(c, 'L2')];
+  // Fixed short steps keep integration error far below the checks (1e-5) so that only the start is
+  // tested; the first step is backward Euler, whose local error (h²/2)·|x''| at 0.1 µs stays below 1e-6.
+  const opts = { tstep: 1e-5, tstop: 1e-3, method: 'trap' as const, fixedStep: 1e-7 };
+
+  it('default: the operating point, ic= ignored (capacitors at their DC voltage, inductors at their DC current)', () => {
+    const { trace } = run(c, opts);
+    let drift = 0;
+    for (let k = 0; k < trace.count; k++) {
+      drift = Math.max(drift, Math.abs(at(trace, k, out) - 5), Math.abs(at(trace, k, out2) - 10), Math.abs(at(trace, k, iL1)), Math.abs(at(trace, k, iL2) - 0.5));
+    }
+    // Divider: 10·1k/(1k + 1k) = 5 V; C2 charged to 10 V; L1 has no source in its loop; L2 carries 2 V / 4 Ω.
+    expect(drift).toBeLessThan(1e-8);
+  });
+
+  it('fromic: capacitors at ic= (0 where absent), inductors at ic=, then the closed-form relaxations', () => {
+    const { trace } = run(c, { ...opts, fromIc: true });
+    expect(at(trace, 0, out)).toBeCloseTo(2, 9);
+    expect(at(trace, 0, out2)).toBeCloseTo(0, 9);
+    expect(at(trace, 0, iL1)).toBeCloseTo(0.1, 9);
+    expect(at(trace, 0, iL2)).toBeCloseTo(5, 9);
+    // The inductor's current flows a → 0 through L1 and back through R4: V(a) = −R4·iL from the first step on.
+    for (let k = 1; k < trace.count; k += 97) expect(Math.abs(at(trace, k, a) + 10 * at(trace, k, iL1))).toBeLessThan(1e-9);
+    const tau1 = 500e-6; // (R1 ∥ R2)·C1
+    const exact = {
+      out: (t: number) => 5 + (2 - 5) * Math.exp(-t / tau1),
+      out2: (t: number) => 10 * (1 - Math.exp(-t / 1e-3)),
+      iL1: (t: number) => 0.1 * Math.exp(-t / 1e-3),
+      iL2: (t: number) => 0.5 + (5 - 0.5) * Math.exp(-t / 250e-6),
+    };
+    let worst = 0;
+    for (let k = 1; k < trace.count; k++) {
+      const t = trace.times[k]!;
+      worst = Math.max(worst, Math.abs(at(trace, k, out) - exact.out(t)), Math.abs(at(trace, k, out2) - exact.out2(t)));
+      worst = Math.max(worst, Math.abs(at(trace, k, iL1) - exact.iL1(t)) * 10, Math.abs(at(trace, k, iL2) - exact.iL2(t)) * 4);
+    }
+    expect(worst).toBeLessThan(1e-5);
+  });
+
+  // At the fromic start the engine solves a backward-Euler step of length ~tstop·1e-16 from the ic=
+  // state. For an inductor that step reads V = (L/h)·(i − ic): the voltage is a difference below the
+  // resolution of i times ~1e17, so at t = 0 the voltage across an inductor with ic= is lost to
+  // rounding (here 0 V where KCL says −R4·ic = −1 V); from the first step on it is right (above).
+  // Reported; marked as failing until the initial point treats inductors as current sources.
+  it.fails('KNOWN DEVIATION: with fromic, the t = 0 voltage across an inductor with ic= obeys KCL', () => {
+    const { trace } = run(c, { ...opts, fromIc: true });
+    expect(at(trace, 0, a)).toBeCloseTo(-1, 6);
+  });
+
+  it('the .tran flag fromic reaches the run (runNetlist), and without it the start is the operating point', () => {
+    const withIc = runNetlist(IC_CIRCUIT.replace('.end', '.tran 10u 1m fromic\n.end'));
+    const without = runNetlist(IC_CIRCUIT.replace('.end', '.tran 10u 1m\n.end'));
+    if (!withIc.ok || !without.ok) throw new Error('run failed');
+    const [tw, tn] = [withIc.report.transients[0]!, without.report.transients[0]!];
+    expect(tw.fromIc).toBe(true);
+    expect(tn.fromIc).toBe(false);
+    expect(tw.nodes['out']![0]).toBeCloseTo(2, 9);
+    expect(tn.nodes['out']![0]).toBeCloseTo(5, 9);
+  });
+});
+
+/** netlist.md sin, written out: vo + va·sin(2πf(t − td) + φ)·e^(−θ(t − td)) from td, vo + va·sin φ before. */
+function sinRef(vo: number, va: number, f: number, td: number, theta: number, phaseDeg: number, t: number): number {
+  const phi = (phaseDeg * Math.PI) / 180;
+  return t < td ? vo + va * Math.sin(phi) : vo + va * Math.sin(2 * Math.PI * f * (t - td) + phi) * Math.exp(-theta * (t - td));
+}
+
+/** netlist.md pulse: v1 until td, ramp over tr to v2, v2 for pw, ramp over tf back to v1, repeated every per. */
+function pulseRef(v1: number, v2: number, td: number, tr: number, tf: number, pw: number, per: number, t: number): number {
+  if (t <= td) return v1;
+  const u = (t - td) % per;
+  if (u < tr) return v1 + ((v2 - v1) * u) / tr;
+  if (u <= tr + pw) return v2;
+  if (u < tr + pw + tf) return v2 - ((v2 - v1) * (u - tr - pw)) / tf;
+  return v1;
+}
+
+/** netlist.md pwl: linear between points, held before the first and after the last. */
+function pwlRef(points: ReadonlyArray<readonly [number, number]>, t: number): number {
+  if (t <= points[0]![0]) return points[0]![1];
+  for (let k = 1; k < points.length; k++) {
+    const [t1, v1] = points[k]!;
+    if (t <= t1) {
+      const [t0, v0] = points[k - 1]!;
+      return v0 + ((v1 - v0) * (t - t0)) / (t1 - t0);
+    }
+  }
+  return points[points.length - 1]![1];
+}
+
+const PWL: ReadonlyArray<readonly [number, number]> = [[0, 0], [0.2e-3, 2e-3], [0.5e-3, 2e-3], [0.9e-3, -1e-3]];
+const SOURCES = `sources
+V1 a 0 sin(1 2 1k 0.2m 100 30)
+R1 a 0 1k
+V2 b 0 pulse(-1 3 0.1m 50u 80u 0.3m 1m)
+R2 b 0 1k
+I1 0 c pwl(${PWL.map(([t, v]) => `${t} ${v}`).join(' ')})
+R3 c 0 500
+.end
+`;
+const waves = {
+  a: (t: number) => sinRef(1, 2, 1e3, 0.2e-3, 100, 30, t),
+  b: (t: number) => pulseRef(-1, 3, 0.1e-3, 50e-6, 80e-6, 0.3e-3, 1e-3, t),
+  // I1 takes current from node 0 and delivers it into c (netlist.md sign convention), so V(c) = +R3·I.
+  c: (t: number) => 500 * pwlRef(PWL, t),
+};
+
+describe('sources across resistors', () => {
+  it.each(['trap', 'be'] as const)('%s: sin, pulse and pwl at every accepted time, and the source currents', (method) => {
+    const c = compile(SOURCES);
+    const { trace } = run(c, { tstep: 1e-5, tstop: 2.5e-3, method });
+    const idx = { a: node(c, 'a'), b: node(c, 'b'), c: node(c, 'c') };
+    const [iv1, iv2] = [branch(c, 'V1'), branch(c, 'V2')];
+    for (let k = 0; k < trace.count; k++) {
+      const t = trace.times[k]!;
+      // t = 0 is the operating point, whose sine value is checked on its own below.
+      for (const key of t === 0 ? (['b', 'c'] as const) : (['a', 'b', 'c'] as const)) expect(Math.abs(at(trace, k, idx[key]) - waves[key](t))).toBeLessThanOrEqual(1e-9 * (1 + Math.abs(waves[key](t))));
+      // A source delivering power into its resistor carries a negative current (netlist.md).
+      if (t > 0) expect(Math.abs(at(trace, k, iv1) + waves.a(t) / 1e3)).toBeLessThanOrEqual(1e-12 + 1e-9 * Math.abs(waves.a(t) / 1e3));
+      expect(Math.abs(at(trace, k, iv2) + waves.b(t) / 1e3)).toBeLessThanOrEqual(1e-12 + 1e-9 * Math.abs(waves.b(t) / 1e3));
+    }
+  });
+
+  // netlist.md: with no dc value the operating point uses the waveform's value at t = 0, and a delayed
+  // sine equals vo + va·sin(phase) before td, here 1 + 2·sin 30° = 2 V. The elaboration takes vo
+  // alone (1 V) for a delayed sine, so the run starts 1 V off and the source jumps at t = 0+.
+  // Reported; marked as failing until elaborate/elements.ts follows netlist.md.
+  it.fails('KNOWN DEVIATION: a delayed sine with a phase has its netlist.md value at the t = 0 operating point', () => {
+    const c = compile(SOURCES);
+    const { trace } = run(c, { tstep: 1e-5, tstop: 1e-4, method: 'trap' });
+    expect(at(trace, 0, node(c, 'a'))).toBeCloseTo(waves.a(0), 9);
+  });
+
+  it('the .tran output grid (tstart, tstep) is linear interpolation of the accepted points', () => {
+    const r = runNetlist(SOURCES.replace('.end', '.tran 10u 2.5m 0.5m be\n.end'));
+    if (!r.ok) throw new Error(JSON.stringify(r.errors));
+    const tr = r.report.transients[0]!;
+    expect(tr.method).toBe('be');
+    expect(tr.times.length).toBe(201);
+    tr.times.forEach((t, k) => expect(t).toBeCloseTo(0.5e-3 + k * 1e-5, 15));
+    const c = r.report.compiled;
+    // The names of nodes are as first written; the grid values are interpolations of the trace.
+    for (const [name, key] of [['a', 'a'], ['b', 'b'], ['c', 'c']] as const) {
+      const grid = tr.nodes[name]!;
+      const index = c.nodeIndex.get(key)!;
+      let hmax = 0;
+      for (let k = 1; k < tr.trace.count; k++) hmax = Math.max(hmax, tr.trace.times[k]! - tr.trace.times[k - 1]!);
+      // |v''| ≤ va·(2πf + θ)² for the damped sine; the pulse and pwl are straight between their corners.
+      const curvature = key === 'a' ? 2 * (2 * Math.PI * 1e3 + 100) ** 2 : 0;
+      tr.times.forEach((t, k) => {
+        expect(Math.abs(grid[k]! - interpolate(tr.trace, index, t))).toBeLessThanOrEqual(1e-12);
+        expect(Math.abs(grid[k]! - waves[key](t))).toBeLessThanOrEqual((hmax * hmax * curvature) / 8 + 1e-9);
+      });
+    }
+  });
+});
