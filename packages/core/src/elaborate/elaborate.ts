@@ -130,14 +130,20 @@ function instantiate(w: Walk, scope: Scope, card: InstanceCard): void {
     path: [...scope.path, defName],
   };
   for (const port of inner.ports.values()) if (port.key !== GROUND_KEY && !w.nodes.has(port.key)) w.nodes.set(port.key, port);
-  // Defaults are evaluated where the definition stands (the caller's chain); instance values in the caller's scope.
-  w.ev.at(def);
-  for (const d of def.defaults) inner.params.set(d.name.toLowerCase(), w.ev.num(d.value, scope));
+  // Instance values are evaluated in the caller's scope. Defaults follow, in order, in the
+  // instance's own scope, so that (as with .param) a default may use an earlier one and
+  // follows the instance's value of it; every default is evaluated so its mistakes are reported.
   w.ev.at(card);
   const known = new Set(def.defaults.map((d) => d.name.toLowerCase()));
   for (const a of card.params) {
     if (!known.has(a.name.toLowerCase())) w.ev.fail(card, 'unknown-instance-param', `'${a.name}' is not a parameter of subcircuit '${def.name}'`, known.size ? `one of: ${[...known].join(', ')}` : 'no parameters (the definition declares none)');
     inner.params.set(a.name.toLowerCase(), w.ev.num(a.value, scope));
+  }
+  const given = new Set(inner.params.keys());
+  w.ev.at(def);
+  for (const d of def.defaults) {
+    const value = w.ev.num(d.value, inner);
+    if (!given.has(d.name.toLowerCase())) inner.params.set(d.name.toLowerCase(), value);
   }
   walkLevel(w, inner, def.body);
 }
