@@ -138,6 +138,21 @@ X2 a pairleg r=5k
     expect([ohms(c, 'X2.XL.R1'), ohms(c, 'X2.R2')]).toEqual([10000, 5000]);
   });
 
+  test('a subcircuit default may use an earlier default, and follows the instance\'s value of it', () => {
+    // netlist.md, Numbers: "later definitions may use earlier ones" (.param); the same
+    // reading for the defaults on a .subckt line is our choice where netlist.md is silent.
+    const c = flatten(`Default chain
+.subckt s p a=1 b={a*2}
+R1 p 0 {b}
+.ends
+V1 x 0 1
+X1 x s
+X2 x s a=5
+X3 x s a=5 b=7
+`);
+    expect([ohms(c, 'X1.R1'), ohms(c, 'X2.R1'), ohms(c, 'X3.R1')]).toEqual([2, 10, 7]);
+  });
+
   test('.param: later definitions use earlier ones, on one line or several', () => {
     const c = flatten(`Chain
 .param a=2 b={a*3}
