@@ -4,7 +4,7 @@
  * analysis fails (the message on standard error). A user never sees a
  * stack trace.
  */
-import { formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type RunReport, type RunResult } from '@railcheck/core';
+import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type RunReport, type RunResult } from '@railcheck/core';
 import { writeFileSync } from 'node:fs';
 import { transientCsv } from './present/waves.js';
 import { realpathSync } from 'node:fs';
@@ -107,7 +107,7 @@ function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean): n
   }
   try {
     report.transients.forEach((t, k) => {
-      const times = steps ? Array.from(t.trace.times.subarray(0, t.trace.count)) : t.times;
+      const times = steps ? acceptedTimes(t) : t.times;
       const nodes = steps ? sampleTrace(report.compiled, t.trace, times).nodes : t.nodes;
       const file = k === 0 ? path : path.replace(/(\.csv)?$/i, `-${k + 1}$1`);
       writeFileSync(file, transientCsv(times, nodes));

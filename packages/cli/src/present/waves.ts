@@ -2,7 +2,7 @@
  * Transient and small-signal results for people (summary tables) and for
  * tools (CSV per figures.md: `time,<node>,...`, one row per output point).
  */
-import { formatSI, phasorDb, phasorDeg, sampleTrace, type AcResult, type CompiledCircuit, type TransientResult } from '@railcheck/core';
+import { acceptedTimes, formatSI, phasorDb, phasorDeg, sampleTrace, type AcResult, type CompiledCircuit, type TransientResult } from '@railcheck/core';
 import { heading, table } from './table.js';
 
 /** Largest number of node columns in text tables (everything is in --json and --csv). */
@@ -41,7 +41,8 @@ export function formatAc(r: AcResult): string {
       formatSI(r.frequencies[k]!, 'Hz'),
       ...names.map((n) => {
         const p = r.nodes[n]!;
-        return `${phasorDb(p.re[k]!, p.im[k]!).toFixed(2)} / ${phasorDeg(p.re[k]!, p.im[k]!).toFixed(1)}`;
+        const db = phasorDb(p.re[k]!, p.im[k]!);
+        return Number.isFinite(db) ? `${db.toFixed(2)} / ${phasorDeg(p.re[k]!, p.im[k]!).toFixed(1)}` : 'zero';
       }),
     ]);
   }
@@ -53,7 +54,7 @@ export function formatAc(r: AcResult): string {
 export function transientJson(r: TransientResult, c: CompiledCircuit, steps: boolean): Record<string, unknown> {
   const base = { temperature: r.temperature, method: r.method, from_ic: r.fromIc, stats: r.stats };
   if (!steps) return { ...base, points: 'grid', times: r.times, nodes: r.nodes, branches: r.branches };
-  const times = Array.from(r.trace.times.subarray(0, r.trace.count));
+  const times = acceptedTimes(r);
   return { ...base, points: 'accepted', times, ...sampleTrace(c, r.trace, times) };
 }
 

@@ -73,6 +73,12 @@ export function sampleTrace(c: CompiledCircuit, trace: TransientTrace, grid: rea
   return { nodes, branches };
 }
 
+/** The accepted time points of a result from its output start (tstart) on, s. */
+export function acceptedTimes(r: TransientResult): number[] {
+  const start = r.times[0] ?? 0;
+  return Array.from(r.trace.times.subarray(0, r.trace.count)).filter((t) => t >= start);
+}
+
 /** Runs a transient at the present temperature; throws RailcheckError when it cannot complete. */
 export function transient(c: CompiledCircuit, temperature: number, req: TransientRequest, origin?: CardOrigin): TransientResult {
   const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc });

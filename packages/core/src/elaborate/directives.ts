@@ -60,7 +60,8 @@ export function resolveDirectives(
         const points = num(c.points);
         const fstart = num(c.fstart);
         const fstop = num(c.fstop);
-        if (!(points >= 1) || !(fstart > 0) || !(fstop >= fstart)) ev.fail(c, 'bad-ac', `.ac needs points ≥ 1 and 0 < fstart ≤ fstop`, 'e.g. .ac dec 20 1 100k');
+        const startOk = c.variation === 'lin' ? fstart >= 0 : fstart > 0;
+        if (!(points >= 1) || !startOk || !(fstop >= fstart)) ev.fail(c, 'bad-ac', `.ac needs points ≥ 1 and ${c.variation === 'lin' ? '0 ≤' : '0 <'} fstart ≤ fstop`, 'e.g. .ac dec 20 1 100k or .ac lin 101 0 10k');
         flat.push({ kind: 'ac', origin: c, variation: c.variation, points: Math.round(points), fstart, fstop });
       })
       .with({ kind: 'temp' }, (c) => {

@@ -81,13 +81,15 @@ export function compileCircuit(flat: FlatCircuit): CompileResult {
   let stateSize = 0;
   let owner = '';
   const errors: Diagnostic[] = [];
+  // Devices label their unknowns with their own name already (`D1:anode`, `V1`); others get the owner as prefix.
+  const labelled = (label: string): string => (!label || label.toLowerCase() === owner.toLowerCase() ? owner : label.toLowerCase().startsWith(owner.toLowerCase()) ? label : `${owner}#${label}`);
   const allocator: UnknownAllocator = {
     internalNode: (label) => {
-      unknowns.push({ kind: 'internal', name: `${owner}#${label}` });
+      unknowns.push({ kind: 'internal', name: labelled(label) });
       return unknowns.length - 1;
     },
     branch: (label) => {
-      unknowns.push({ kind: 'branch', name: label ? `${owner}#${label}` : owner });
+      unknowns.push({ kind: 'branch', name: labelled(label) });
       branchOf.set(owner.toLowerCase(), unknowns.length - 1);
       return unknowns.length - 1;
     },
