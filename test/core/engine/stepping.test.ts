@@ -1,0 +1,108 @@
+/**
+ * When plain Newton from zero fails: gmin stepping and source stepping
+ * (Nagel, SPICE2, UCB/ERL M520, 1975; the homotopy survey of Roychowdhury and
+ * Melville, IEEE TCAD 25(12), 2006). Two circuits that need them, each with a
+ * reverse-biased probe diode whose current reveals the junction conductance
+ * left in the final solution: it must be exactly 1e-12 S (engine.md;
+ * models.md allows at most 1e-12 S).
+ */
+import { describe, expect, test } from 'vitest';
+import { FINAL_GMIN, newtonSolve, operatingPoint, parseNetlist, prepare, type CompiledCircuit, type OperatingPoint } from '@railcheck/core';
+import { EXP_LINEAR_LIMIT } from '@railcheck/devices';
+import { thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';
+import { kclImbalance } from '../../helpers/laws.js';
+
+const IS = 1e-14;
+const RP = 1e6;
+/** A diode reverse-biased from `node` through 1 MΩ: its current is IS + gmin·V, 10 pA per 10 V of gmin. */
+const probe = (node: string): string => `RP ${node} p ${RP}\nDP 0 p dprobe\n.model dprobe D (IS=${IS})`;
+
+function compile(text: string): CompiledCircuit {
+  const prepared = prepare(parseNetlist(text));
+  if (!prepared.ok) throw new Error(prepared.errors.map((e) => e.message).join('; '));
+  return prepared.compiled;
+}
+
+/** Plain Newton from zero, junctions at Vcrit, no stepping: the first thing the engine tries. */
+function plainNewtonFromZero(c: CompiledCircuit): boolean {
+  const { ctx, x } = c.ws;
+  ctx.mode = 'dc';
+  ctx.time = 0;
+  ctx.sourceScale = 1;
+  ctx.gmin = FINAL_GMIN;
+  ctx.initJunctions = true;
+  x.fill(0);
+  return newtonSolve(c).converged;
+}
+
+/**
+ * The probe's current through RP from a supply `v`: at node p,
+ * (v − Vp)/RP = IS·(1 − exp(−Vp/Vt)) + g·Vp with exp(−Vp/Vt) ≈ 0 at volts of
+ * reverse bias, so Vp = (v/RP − IS)/(1/RP + g) and I = (v − Vp)/RP.
+ */
+function probeCurrent(v: number, g: number): number {
+  const vp = (v / RP - IS) / (1 / RP + g);
+  return (v - vp) / RP;
+}
+
+function checkProbe(op: OperatingPoint, supply: number): void {
+  const measured = op.currents['RP']!;
+  // pA level: the 1e-12 S closed form to 0.1 pA, while without gmin the current would be IS = 0.01 pA.
+  expect(Math.abs(measured - probeCurrent(supply, 1e-12))).toBeLessThan(1e-13);
+  expect(Math.abs(measured - probeCurrent(supply, 0))).toBeGreaterThan(5e-12);
+  const vp = op.nodes['p']!;
+  const implied = (measured - IS) / vp;
+  expect(Math.abs(implied - 1e-12) / 1e-12).toBeLessThan(1e-3);
+  const delta = Math.abs(measured - probeCurrent(supply, 1e-12));
+  console.log(`stepping, ${op.method}: probe current ${(measured * 1e12).toFixed(4)} pA (Δ ${delta.toExponential(1)} A from the 1e-12 S closed form), implied gmin ${implied.toExponential(4)} S`);
+}
+
+test('the final junction conductance is 1e-12 S (engine.md, at most that by models.md)', () => {
+  expect(FINAL_GMIN).toBe(1e-12);
+});
+
+describe('gmin stepping: a model-railway controller Schmitt trigger input', () => {
+  const VCC = 12;
+  const text = `track detector schmitt\nVCC vcc 0 ${VCC}\nRC1 vcc c1 1k\nRC2 vcc c2 1k\nQ1 c1 in e qs\nQ2 c2 b2 e qs\nRE e 0 100\nR1 c1 b2 10k\nR2 b2 0 10k\nVIN in 0 3\n.model qs NPN (IS=1e-14 BF=100)\n${probe('vcc')}\n.op\n`;
+
+  test('plain Newton from zero does not converge', () => {
+    expect(plainNewtonFromZero(compile(text))).toBe(false);
+  });
+
+  test('the operating point is found by gmin stepping, satisfies KCL, and keeps 1e-12 S', () => {
+    const c = compile(text);
+    const op = operatingPoint(c, 27);
+    expect(op.method).toBe('gmin-stepping');
+    // Terminal currents leave out the junction gmin: at most 1e-12 S × 12 V per junction.
+    const kcl = kclImbalance(c);
+    expect(kcl.worst).toBeLessThan(1e-10);
+    // Hand analysis (common practice): with 3 V on Q1's base, Q1 conducts and pulls c1 low; the
+    // divider then holds Q2's base below the shared emitter, so Q2 is off and c2 sits at VCC.
+    expect(op.nodes['b2']!).toBeLessThan(op.nodes['e']!);
+    expect(VCC - op.nodes['c2']!).toBeLessThan(1e-6);
+    checkProbe(op, VCC);
+  });
+});
+
+describe('source stepping: a diode straight across a stiff 40 V source', () => {
+  const V = 40;
+  const text = `stiff source\nV1 in 0 ${V}\nD1 in 0 dm\n.model dm D (IS=${IS})\n${probe('in')}\n.op\n`;
+
+  test('plain Newton from zero does not converge (limiting lets the junction climb ~0.16 V per step)', () => {
+    expect(plainNewtonFromZero(compile(text))).toBe(false);
+  });
+
+  test('the operating point is found by source stepping, with the device current at 40 V, and keeps 1e-12 S', () => {
+    const c = compile(text);
+    const op = operatingPoint(c, 27);
+    expect(op.method).toBe('source-stepping');
+    expect(op.nodes['in']).toBe(V);
+    // 40 V is 1547·Vt, far beyond the argument 80 where the device continues exp by its tangent
+    // line (devices' safeExp, EXP_LINEAR_LIMIT): I = IS·(e^80·(1 + x − 80) − 1).
+    const x = V / thermalVoltage(T_NOM);
+    const want = IS * (Math.exp(EXP_LINEAR_LIMIT) * (1 + (x - EXP_LINEAR_LIMIT)) - 1);
+    expect(Math.abs(op.currents['D1']! - want) / want).toBeLessThan(1e-12);
+    expect(kclImbalance(c).worst / want).toBeLessThan(1e-12);
+    checkProbe(op, V);
+  });
+});
