@@ -10,7 +10,7 @@
  */
 import { isKind, type IndependentSource, type LoadContext, type WaveformSpec } from '@railcheck/devices';
 import type { CompiledCircuit } from './compile.js';
-import { DEFAULT_NEWTON, newtonSolve, type NewtonOptions } from './newton.js';
+import { DEFAULT_NEWTON, loadAll, newtonSolve, type NewtonOptions } from './newton.js';
 import { SolutionHistory } from './history.js';
 import { FINAL_GMIN, solveOperatingPoint, stragglers, type Straggler } from './dcop.js';
 
@@ -53,6 +53,12 @@ export interface TransientOptions {
   readonly onAccept?: (timeSeconds: number, ctx: LoadContext) => boolean | void;
   /** When false, accepted points are not stored (only t = 0 and the last); default true. */
   readonly keepTrace?: boolean;
+  /**
+   * Start from this solution vector (unknowns + 1 entries, as the
+   * workspace's) instead of the operating point; charges are evaluated at
+   * it. Used to start a ripple run on its small-signal steady state.
+   */
+  readonly initialSolution?: Float64Array;
 }
 
 /** Counters of one run. */
@@ -176,6 +182,16 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       stats.newtonIterations += r.iterations;
       if (!r.converged) return fail('initial-point', 0);
       state.set(statePrev);
+    } else if (opts.initialSolution) {
+      x.set(opts.initialSolution);
+      x[0] = 0;
+      ctx.mode = 'tran';
+      ctx.time = 0;
+      ctx.coefficients.a0 = 0;
+      ctx.coefficients.a1 = 0;
+      ctx.initJunctions = false;
+      loadAll(c); // with zero coefficients this only records every charge at the given solution
+      statePrev.set(state);
     } else {
       const op = solveOperatingPoint(c);
       if (!op.ok) return fail('initial-point', 0);

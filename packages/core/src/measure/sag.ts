@@ -14,6 +14,7 @@ import { formatSI } from '../units.js';
 import { backToNominal, type Bench } from './bench.js';
 import { DEFAULT_DROPOUT_FALL } from './dropout.js';
 import { runToPeriodicSteadyState } from './periodic.js';
+import { smallSignalStart } from './ripple.js';
 
 /** Options of {@link sagRideThrough} (figures.md defaults). */
 export interface SagOptions {
@@ -82,7 +83,7 @@ class Window {
   }
 }
 
-function runDip(bench: Bench, depth: number, o: SagSettings, settleCycles: number): DipRun {
+function runDip(bench: Bench, depth: number, o: SagSettings, settleCycles: number, start: Float64Array | undefined): DipRun {
   const { stage } = bench;
   const nominal = stage.nominalInput;
   const period = 1 / o.freq;
@@ -107,6 +108,7 @@ function runDip(bench: Bench, depth: number, o: SagSettings, settleCycles: numbe
       lteReltol: SAG_LTE_RELTOL,
       tmax: Math.min(o.edge, o.dur / 50),
       keepTrace: false,
+      ...(start ? { initialSolution: start } : {}),
       extraBreakpoints: o.ripple > 0 ? [t0 - period, bottomEnd - period, bottomEnd].filter((t) => t > 0) : [],
       onAccept: (t, ctx) => {
         const v = out(ctx.x);
@@ -139,20 +141,21 @@ export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThro
   };
   const { stage } = bench;
   let settleCycles = 0;
+  let start: Float64Array | undefined;
   if (o.ripple > 0) {
     const saved = stage.input.waveform;
     try {
-      backToNominal(bench);
+      start = smallSignalStart(bench, o.freq, o.ripple);
       stage.input.waveform = { kind: 'sin', vo: stage.nominalInput, va: o.ripple, freq: o.freq, td: 0, theta: 0, phaseDeg: 0 };
       const out = (x: Float64Array): number => x[stage.outIndex]! - x[stage.refIndex]!;
-      settleCycles = runToPeriodicSteadyState(stage.compiled, { period: 1 / o.freq, probes: [out] }, 'sag: ripple before the dip', stage.supply.origin).cycles;
+      settleCycles = runToPeriodicSteadyState(stage.compiled, { period: 1 / o.freq, probes: [out] }, 'sag: ripple before the dip', stage.supply.origin, { initialSolution: start }).cycles;
     } finally {
       stage.input.waveform = saved;
       backToNominal(bench);
     }
   }
-  const main = runDip(bench, o.depth, o, settleCycles);
-  const passes = (d: number): boolean => runDip(bench, d, o, settleCycles).fall <= o.fall;
+  const main = runDip(bench, o.depth, o, settleCycles, start);
+  const passes = (d: number): boolean => runDip(bench, d, o, settleCycles, start).fall <= o.fall;
   let lo = 0;
   let hi = 1;
   if (passes(1)) lo = 1;
