@@ -20,101 +20,14 @@
  * is mains and is outside these tests (see docs/transient.md).
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { IntegrationMethod, TransientStats, TransientTrace } from '@railcheck/core';
-import { at, compile, node, odexOnGrid, odexSolver, run, times } from './support.js';
+import { BRIDGE, CAP, CLIP, FREQ, HALF, IS, RLOAD, VPEAK, bridgeCurrent, compareWithOdex, halfCurrent, junctionWithRs, rhsBridge, rhsHalf, shockley, vs, type Rhs } from './rectifier-model.js';
 
-const VT = (1.380649e-23 * 300.15) / 1.602176634e-19; // kT/q at 27 °C, CODATA 2018 (models.md)
-const [IS, N] = [1e-9, 1.8];
-const NVT = N * VT;
-const [CAP, RLOAD, FREQ, VPEAK] = [1000e-6, 100, 50, 12];
-const vs = (t: number): number => VPEAK * Math.sin(2 * Math.PI * FREQ * t);
-const shockley = (vj: number): number => IS * Math.expm1(vj / NVT);
 
-/** Junction voltage (V) of a diode with series resistance rs for a total drop `drop` (V): Newton on Vj + rs·I(Vj) = drop. */
-function junctionWithRs(drop: number, rs: number): number {
-  // f(Vj) is increasing and convex, so Newton from an upper bound of the root descends monotonically onto it.
-  let vj = drop > 0 ? Math.min(drop, NVT * Math.log1p(drop / (rs * IS))) : 0;
-  for (let k = 0; k < 100; k++) {
-    const e = Math.exp(vj / NVT);
-    const step = (vj + rs * IS * (e - 1) - drop) / (1 + (rs * IS * e) / NVT);
-    vj -= step;
-    if (Math.abs(step) <= 1e-15 * (1 + Math.abs(vj))) break;
-  }
-  return vj;
-}
-
-/**
- * ODEX's extrapolation stages can probe states far off the trajectory where an
- * exponential overflows; a non-finite derivative would slip through its error
- * test (NaN compares false), so stray stages get a large finite current
- * instead. Real currents here stay below 10 A, far under the clip (checked below).
- */
-const CLIP = 1e3;
-const clip = (i: number): number => Math.max(-CLIP, Math.min(CLIP, i));
-
-/**
- * Bridge output current for source voltage u = V(a) − V(b) and output v, with
- * D1 a→out, D2 b→out, D3 0→a, D4 0→b of one model. KCL at a,
- * I(a − v) − I(−a) = −(I(b − v) − I(−b)) with b = a − u, holds exactly at
- * a = (u + v)/2 (each term pairs with one of the other side: I(a − v) with
- * I(−b) and I(−a) with I(b − v)), so the output current is
- * I((u − v)/2) + I(−(u + v)/2), with all four junctions kept.
- */
-function bridgeCurrent(u: number, v: number): number {
-  return shockley((u - v) / 2) + shockley(-(u + v) / 2);
-}
-
-const HALF = `half-wave rail\nVS sec 0 sin(0 ${VPEAK} ${FREQ})\nD1 sec out DR\n.model DR D (IS=${IS} N=${N} RS=0.05)\nC1 out 0 1000u\nR1 out 0 ${RLOAD}\n.end\n`;
-const BRIDGE = `bridge rail\nVS a b sin(0 ${VPEAK} ${FREQ})\nD1 a out DB\nD2 b out DB\nD3 0 a DB\nD4 0 b DB\n.model DB D (IS=${IS} N=${N})\nC1 out 0 1000u\nR1 out 0 ${RLOAD}\n.end\n`;
-const halfCurrent = (t: number, v: number): number => shockley(junctionWithRs(vs(t) - v, 0.05));
-const rhsHalf = (t: number, y: number[]): number[] => [(clip(halfCurrent(t, y[0]!)) - y[0]! / RLOAD) / CAP];
-const rhsBridge = (t: number, y: number[]): number[] => [(clip(bridgeCurrent(vs(t), y[0]!)) - y[0]! / RLOAD) / CAP];
-
-interface Outcome {
-  readonly stats: TransientStats;
-  readonly err: number;
-  readonly ripple: number;
-  readonly mean: number;
-  readonly ms: number;
-}
-
-/** Runs both methods, and ODEX once on the union of their accepted times (plus a fine grid for the ripple). */
-function compare(netlist: string, rhs: (t: number, y: number[]) => number[], current: (t: number, v: number) => number): { results: Record<IntegrationMethod, Outcome>; refRipple: number; refMean: number; peakCurrent: number } {
-  const runs = (['trap', 'be'] as const).map((method) => {
-    const c = compile(netlist);
-    const t0 = performance.now();
-    const r = run(c, { tstep: 1e-4, tstop: 1, method });
-    return { method, c, ...r, ms: performance.now() - t0 };
-  });
-  const fine = Array.from({ length: 10001 }, (_, k) => 0.9 + k * 1e-5);
-  const grid = [...new Set([...runs.flatMap((r) => times(r.trace)), ...fine])].sort((x, y) => x - y);
-  const s = odexSolver(1);
-  s.absoluteTolerance = 1e-10;
-  s.relativeTolerance = 1e-10;
-  s.maxSteps = 1e7;
-  const ref = odexOnGrid(s, rhs, 0, [0], grid);
-  const refAt = new Map(grid.map((t, k) => [t, ref[k]![0]!]));
-  const window = (values: Iterable<number>): { ripple: number; mean: number } => {
-    const v = [...values];
-    return { ripple: Math.max(...v) - Math.min(...v), mean: v.reduce((p, q) => p + q, 0) / v.length };
-  };
-  const refWin = window(fine.map((t) => refAt.get(t)!));
-  const peakCurrent = Math.max(...grid.map((t) => Math.abs(current(t, refAt.get(t)!))));
-  const results = {} as Record<IntegrationMethod, Outcome>;
-  for (const r of runs) {
-    const out = node(r.c, 'out');
-    const trace: TransientTrace = r.trace;
-    let err = 0;
-    const last: number[] = [];
-    for (let k = 0; k < trace.count; k++) {
-      const t = trace.times[k]!;
-      err = Math.max(err, Math.abs(at(trace, k, out) - refAt.get(t)!));
-      if (t >= 0.9) last.push(at(trace, k, out));
-    }
-    results[r.method] = { stats: r.stats, err, ...window(last), ms: r.ms };
-  }
-  return { results, refRipple: refWin.ripple, refMean: refWin.mean, peakCurrent };
-}
+/** Both methods at their defaults. */
+const compare = (netlist: string, rhs: Rhs, current: (t: number, v: number) => number) => {
+  const r = compareWithOdex(netlist, rhs, current, [{ label: 'trap', opts: { method: 'trap' } }, { label: 'be', opts: { method: 'be' } }]);
+  return { ...r, results: { trap: r.results[0]!, be: r.results[1]! } };
+};
 
 describe.each([
   { name: 'half-wave rectifier', netlist: HALF, rhs: rhsHalf, current: halfCurrent, pulsesPerSecond: FREQ },
