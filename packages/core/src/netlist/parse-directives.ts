@@ -10,6 +10,7 @@ import { show } from './cursor.js';
 import { isExprFunction } from './expr.js';
 import type { Token } from './lexer.js';
 import { IDENTIFIER } from './parse-elements.js';
+import { leafName } from './parse-supply.js';
 
 /** Flags a `.tran` line may end with. `fromic`: start from the `ic=` values without an operating point; `be` / `trap`: integration method (backward Euler / trapezoidal, the default). */
 export const TRAN_FLAGS: readonly string[] = ['fromic', 'be', 'trap'];
@@ -136,7 +137,7 @@ export function parseAnalysis(c: Cursor, keyword: string): AnalysisCard {
     case 'dc': {
       const form = '.dc source start stop step';
       const src = c.name('the source to sweep', form);
-      if (!/^[vi]/i.test(src.text)) c.fail('bad-source', `"${src.text}" is not an independent source; .dc sweeps a V or I element`, src, 'a V or I element name');
+      if (!/^[vi]/i.test(leafName(src.text))) c.fail('bad-source', `"${src.text}" is not an independent source; .dc sweeps a V or I element`, src, 'a V or I element name');
       const start = c.value('the start value', form);
       const stop = c.value('the stop value', form);
       const step = valueAt(c, 'the step', form);

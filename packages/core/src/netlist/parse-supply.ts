@@ -38,6 +38,11 @@ export function figureKindOf(name: string): FigureKind | undefined {
   return Object.prototype.hasOwnProperty.call(FIGURE_NAMES, low) ? FIGURE_NAMES[low] : undefined;
 }
 
+/** The element's own name in an instance path (`X1.R2` → `R2`): its first letter gives its kind. */
+export function leafName(name: string): string {
+  return name.slice(name.lastIndexOf('.') + 1);
+}
+
 const LIMIT_OPS: readonly LimitOp[] = ['<', '<=', '>', '>='];
 const SUPPLY_KEYS = ['in', 'out', 'ref', 'load', 'feed'] as const;
 const SUPPLY_FORM = '.supply in=<Vsource> out=<node> [ref=<node>] [load=<element>] [feed=<node>]';
@@ -60,9 +65,9 @@ export function parseSupply(c: Cursor): SupplyCard {
   const out = got.get('out');
   if (!input) c.fail('missing-item', '.supply does not name its input source (in=)', undefined, SUPPLY_FORM);
   if (!out) c.fail('missing-item', '.supply does not name its output node (out=)', undefined, SUPPLY_FORM);
-  if (!/^v/i.test(input.text)) c.fail('bad-source', `in=${input.text}: the input must be an independent voltage source`, input, 'a V element name');
+  if (!/^v/i.test(leafName(input.text))) c.fail('bad-source', `in=${input.text}: the input must be an independent voltage source`, input, 'a V element name');
   const load = got.get('load');
-  if (load && !/^[ri]/i.test(load.text)) c.fail('bad-load', `load=${load.text}: the load must be a current source or a resistor`, load, 'an I or R element name');
+  if (load && !/^[ri]/i.test(leafName(load.text))) c.fail('bad-load', `load=${load.text}: the load must be a current source or a resistor`, load, 'an I or R element name');
   const name = (k: string): Record<string, string> => {
     const t = got.get(k);
     return t ? { [k]: t.text } : {};
