@@ -22,7 +22,6 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { BRIDGE, CAP, CLIP, FREQ, HALF, IS, RLOAD, VPEAK, bridgeCurrent, compareWithOdex, halfCurrent, junctionWithRs, rhsBridge, rhsHalf, shockley, vs, type Rhs } from './rectifier-model.js';
 
-
 /** Both methods at their defaults. */
 const compare = (netlist: string, rhs: Rhs, current: (t: number, v: number) => number) => {
   const r = compareWithOdex(netlist, rhs, current, [{ label: 'trap', opts: { method: 'trap' } }, { label: 'be', opts: { method: 'be' } }]);
