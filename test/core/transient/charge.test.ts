@@ -13,9 +13,10 @@
  *  - the integrator's own rule on each step: a charge-based companion model
  *    updates q exactly by h·i_n (backward Euler) or h·(i_n + i_(n−1))/2
  *    (trapezoidal), so with that rule the balance holds to the Newton
- *    tolerance (charge-oriented integration conserves charge by
- *    construction: Kundert, The Designer's Guide to SPICE and Spectre, 1995,
- *    ch. 4 — from memory). The steps that are backward Euler in a
+ *    tolerance (the updates telescope to q_N − q_0 whatever the charge law;
+ *    the reason integration on charges rather than on capacitances is
+ *    preferred, Ward and Dutton, IEEE J. Solid-State Circuits 13(5), 1978 —
+ *    from memory). The steps that are backward Euler in a
  *    trapezoidal run (the first one after t = 0 and after every breakpoint)
  *    are worked out here from the netlist's pulse corners (netlist.md).
  */
