@@ -15,6 +15,8 @@ export interface ComplexLuWorkspace {
   readonly im: Float64Array;
   readonly perm: Int32Array;
   readonly columnScale: Float64Array;
+  /** Scratch: running round-off bound of every entry, as in the real solver ({@link luFactor}). */
+  readonly termScale: Float64Array;
   /** Unknowns + 1. */
   readonly size: number;
 }
@@ -22,18 +24,19 @@ export interface ComplexLuWorkspace {
 /** Allocates a complex workspace for `unknowns` unknowns. */
 export function createComplexLuWorkspace(unknowns: number): ComplexLuWorkspace {
   const size = unknowns + 1;
-  return { re: new Float64Array(size * size), im: new Float64Array(size * size), perm: new Int32Array(size), columnScale: new Float64Array(size), size };
+  return { re: new Float64Array(size * size), im: new Float64Array(size * size), perm: new Int32Array(size), columnScale: new Float64Array(size), termScale: new Float64Array(size * size), size };
 }
 
 /** Factors in place; 0 on success, else the 1-based column without a pivot. */
 export function complexLuFactor(ws: ComplexLuWorkspace): number {
-  const { re, im, perm, columnScale, size: s } = ws;
+  const { re, im, perm, columnScale, termScale: e, size: s } = ws;
   const n = s - 1;
   for (let k = 1; k <= n; k++) perm[k] = k;
   columnScale.fill(0);
   for (let i = 1; i <= n; i++) {
     for (let j = 1; j <= n; j++) {
       const m = Math.hypot(re[i * s + j]!, im[i * s + j]!);
+      e[i * s + j] = m;
       if (m > columnScale[j]!) columnScale[j] = m;
     }
   }
@@ -47,7 +50,10 @@ export function complexLuFactor(ws: ComplexLuWorkspace): number {
         p = i;
       }
     }
-    if (!(best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]!) || best < 1e-300) return k;
+    // The same acceptance rule as the real solver: relative to the column, or to the
+    // running bound on the magnitudes that went into the pivot (no cancellation).
+    const acceptable = best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]! || best > PIVOT_RELATIVE_TOLERANCE * e[p * s + k]!;
+    if (!acceptable || best < 1e-300) return k;
     if (p !== k) {
       for (let j = 1; j <= n; j++) {
         const a = k * s + j;
@@ -58,6 +64,9 @@ export function complexLuFactor(ws: ComplexLuWorkspace): number {
         t = im[a]!;
         im[a] = im[b]!;
         im[b] = t;
+        t = e[a]!;
+        e[a] = e[b]!;
+        e[b] = t;
       }
       const t = perm[k]!;
       perm[k] = perm[p]!;
@@ -80,6 +89,8 @@ export function complexLuFactor(ws: ComplexLuWorkspace): number {
       ir = r / d;
       ii = -1 / d;
     }
+    const pivotMod = Math.hypot(pr, pi);
+    const pivotErr = e[k * s + k]!;
     for (let i = k + 1; i <= n; i++) {
       const ik = i * s + k;
       const ar = re[ik]!;
@@ -89,11 +100,19 @@ export function complexLuFactor(ws: ComplexLuWorkspace): number {
       const li = ar * ii + ai * ir;
       re[ik] = lr;
       im[ik] = li;
+      const l = Math.hypot(lr, li);
+      const lErr = (e[ik]! + l * pivotErr) / pivotMod + l;
       for (let j = k + 1; j <= n; j++) {
         const kj = k * s + j;
         const ij = i * s + j;
-        re[ij] = re[ij]! - (lr * re[kj]! - li * im[kj]!);
-        im[ij] = im[ij]! - (lr * im[kj]! + li * re[kj]!);
+        const ur = re[kj]!;
+        const ui = im[kj]!;
+        const u = Math.hypot(ur, ui);
+        const nr = re[ij]! - (lr * ur - li * ui);
+        const ni = im[ij]! - (lr * ui + li * ur);
+        re[ij] = nr;
+        im[ij] = ni;
+        e[ij] = e[ij]! + l * e[kj]! + lErr * u + l * u + Math.hypot(nr, ni);
       }
     }
   }
