@@ -7,7 +7,7 @@
  * in complex arithmetic; complex division by Smith's method (R. L. Smith,
  * Algorithm 116: Complex division, Commun. ACM 5(8), 1962).
  */
-import { PIVOT_RELATIVE_TOLERANCE } from './lu.js';
+import { pivotAcceptable } from './lu.js';
 
 /** Storage for one complex factorisation. */
 export interface ComplexLuWorkspace {
@@ -50,10 +50,7 @@ export function complexLuFactor(ws: ComplexLuWorkspace): number {
         p = i;
       }
     }
-    // The same acceptance rule as the real solver: relative to the column, or to the
-    // running bound on the magnitudes that went into the pivot (no cancellation).
-    const acceptable = best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]! || best > PIVOT_RELATIVE_TOLERANCE * e[p * s + k]!;
-    if (!acceptable || best < 1e-300) return k;
+    if (!pivotAcceptable(best, columnScale[k]!, e[p * s + k]!)) return k;
     if (p !== k) {
       for (let j = 1; j <= n; j++) {
         const a = k * s + j;

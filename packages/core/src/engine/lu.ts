@@ -24,6 +24,16 @@
  */
 export const PIVOT_RELATIVE_TOLERANCE = 1e-13;
 
+/**
+ * The pivot rule shared by the real and complex solvers: a pivot of modulus
+ * `pivot` is kept when it exceeds the relative tolerance of its column's
+ * largest original entry, or of the running bound on the magnitudes that
+ * went into it (then it is no cancellation residue).
+ */
+export function pivotAcceptable(pivot: number, columnLargest: number, roundOffBound: number): boolean {
+  return pivot >= 1e-300 && (pivot > PIVOT_RELATIVE_TOLERANCE * columnLargest || pivot > PIVOT_RELATIVE_TOLERANCE * roundOffBound);
+}
+
 /** Reusable storage for one factorisation. */
 export interface LuWorkspace {
   /** Matrix storage, row-major with stride `size`; overwritten by L and U. */
@@ -78,8 +88,7 @@ export function luFactor(ws: LuWorkspace): number {
         p = i;
       }
     }
-    const acceptable = best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]! || best > PIVOT_RELATIVE_TOLERANCE * e[p * s + k]!;
-    if (!acceptable || best < 1e-300) return k;
+    if (!pivotAcceptable(best, columnScale[k]!, e[p * s + k]!)) return k;
     if (p !== k) {
       const rk = k * s;
       const rp = p * s;
