@@ -38,10 +38,11 @@ export function formatStage(report: RunReport): string {
     inputText += w?.kind === 'sin' ? `, ${formatSI(w.va, 'V')} peak sine at ${formatSI(w.freq, 'Hz')} (figures at periodic steady state)` : `, ${formatSI(input.spec.dc, 'V')} d.c.`;
   }
   const op = report.operatingPoints[0];
-  const vout = op ? (op.nodes[node(supply.out)] ?? 0) - (supply.ref === '0' ? 0 : (op.nodes[node(supply.ref)] ?? 0)) : undefined;
+  const sineFed = input?.kind === 'vsource' && input.spec.waveform?.kind === 'sin';
+  const vout = report.figures?.voutNominal ?? (op && !sineFed ? (op.nodes[node(supply.out)] ?? 0) - (supply.ref === '0' ? 0 : (op.nodes[node(supply.ref)] ?? 0)) : undefined);
   const rows = [
     ['input', inputText],
-    ['output', `${node(supply.out)} against ${node(supply.ref)}${vout !== undefined && input?.kind === 'vsource' && input.spec.waveform?.kind !== 'sin' ? `: ${formatSI(vout, 'V')} at nominal` : ''}`],
+    ['output', `${node(supply.out)} against ${node(supply.ref)}${vout !== undefined ? `: ${formatSI(vout, 'V')} ${sineFed ? 'mean over the nominal cycle' : 'at nominal'}` : ''}`],
     ['load', load ? `${load.name}, ${load.kind === 'isource' ? `${formatSI(load.spec.dc, 'A')} current source` : load.kind === 'resistor' ? `${formatSI(load.ohms, 'Ω')} resistor` : load.kind}` : 'none named (load= on .supply)'],
   ];
   if (supply.feed) rows.push(['feed', node(supply.feed)]);

@@ -19,6 +19,7 @@ export function reportJson(report: RunReport, steps = false): Record<string, unk
     method: nominal?.method,
     op: nominal ? op(nominal) : { nodes: {}, currents: {}, power: {} },
     figures: report.figures?.values ?? {},
+    vout_nominal: report.figures?.voutNominal,
     limits: (report.figures?.limits ?? []).map((l) => ({ figure: l.figure, op: l.op, value: l.value, actual: l.actual, pass: l.pass })),
     figure_conditions: Object.fromEntries((report.figures?.figures ?? []).map((f) => [f.kind, f.conditions])),
     warnings: report.warnings.map((w) => formatDiagnostic({ ...w, severity: 'warning' }).split('\n')[0]!),

@@ -92,6 +92,8 @@ export type TransientOutcome =
 
 /** Newton iterations allowed per time point before the step is cut. */
 const TRAN_ITERATIONS = 50;
+/** Loads allowed for junction limiting to reach a given initial solution (each moves a junction ≥ ~0.1 V). */
+const INITIAL_LOADS = 500;
 /** Step floor as a fraction of tstop (a common practice value, no source). */
 const MIN_STEP_FRACTION = 1e-13;
 /** Step-size change limits per step (common practice, no source). */
@@ -190,7 +192,13 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       ctx.coefficients.a0 = 0;
       ctx.coefficients.a1 = 0;
       ctx.initJunctions = false;
-      loadAll(c); // with zero coefficients this only records every charge at the given solution
+      // With zero coefficients a load only records every charge at the given solution. Junctions
+      // limit their voltage step from the last one they saw (kept in the state), so a solution far
+      // from it takes several loads before the charges are those of the solution itself.
+      for (let k = 0; k < INITIAL_LOADS; k++) {
+        loadAll(c);
+        if (!ctx.limited) break;
+      }
       statePrev.set(state);
     } else {
       const op = solveOperatingPoint(c);

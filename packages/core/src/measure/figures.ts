@@ -49,6 +49,10 @@ export interface FigureReport {
   readonly values: Readonly<Record<string, number>>;
   readonly limits: readonly LimitResult[];
   readonly warnings: readonly Diagnostic[];
+  /** The stage's nominal output, V (for a sine-fed stage the mean over the nominal cycle); undefined without figures. */
+  readonly voutNominal: number | undefined;
+  /** True when the stage was measured at periodic steady state (a sine input). */
+  readonly sineFed: boolean;
 }
 
 /** Unit of a figure value, by name; on a sine-fed stage `dropout.headroom` is a ratio of the amplitude. */
@@ -160,19 +164,22 @@ export function measureFigures(c: CompiledCircuit): FigureReport {
   const warnings: Diagnostic[] = [];
   const measured: MeasuredFigure[] = [];
   let sineFed = false;
+  let voutNominal: number | undefined;
   if (flat.figures.length > 0) {
     const supplyInput = flat.supply ? c.sources.get(flat.supply.input) : undefined;
     sineFed = supplyInput?.waveform?.kind === 'sin';
     if (sineFed) {
       const bench: AcBench = createAcBench(c);
+      voutNominal = bench.voutNominal;
       for (const f of flat.figures) measured.push(measureAcFedFigure(bench, f, flat.figures, warnings));
     } else {
       const bench = createDcBench(c);
+      voutNominal = bench.outputSign * bench.voutNominal;
       for (const f of flat.figures) measured.push(measureDc(bench, f, flat.figures, warnings));
     }
   }
   const figures = measured.map((f) => ({ ...f, units: Object.fromEntries(Object.keys(f.values).map((n) => [n, figureUnit(n, sineFed)])) }));
   const values: Record<string, number> = {};
   for (const f of figures) Object.assign(values, f.values);
-  return { figures, values, limits: checkLimits(flat.limits, values), warnings };
+  return { figures, values, limits: checkLimits(flat.limits, values), warnings, voutNominal, sineFed };
 }
