@@ -92,7 +92,7 @@ export type TransientOutcome =
 
 /** Newton iterations allowed per time point before the step is cut. */
 const TRAN_ITERATIONS = 50;
-/** Loads allowed for junction limiting to reach a given initial solution (each moves a junction ≥ ~0.1 V). */
+/** Loads allowed for junction limiting to reach a given initial solution (a limited load moves a junction by about nVt·ln(1 + Δ/nVt)). */
 const INITIAL_LOADS = 500;
 /** Step floor as a fraction of tstop (a common practice value, no source). */
 const MIN_STEP_FRACTION = 1e-13;
