@@ -17,7 +17,7 @@
  * h²/8·max|v''| (Burden and Faires, Numerical Analysis, §3.1 — from memory).
  */
 import { describe, expect, it } from 'vitest';
-import { runNetlist } from '@railcheck/core';
+import { runNetlist, solveOperatingPoint } from '@railcheck/core';
 import { at, branch, compile, interpolate, node, run } from './support.js';
 
 // Divider 10 V → 1k/1k with C1 (ic=2) across the bottom; a second RC without ic; an RL loop with ic.
@@ -97,6 +97,28 @@ describe('initial conditions', () => {
     expect(tn.fromIc).toBe(false);
     expect(tw.nodes['out']![0]).toBeCloseTo(2, 9);
     expect(tn.nodes['out']![0]).toBeCloseTo(5, 9);
+  });
+});
+
+describe('a start from a given solution (TransientOptions.initialSolution)', () => {
+  it('started at its own operating point, a circuit with junction charge stays there', () => {
+    // A DC operating point is an equilibrium: with constant sources every consistent integrator
+    // keeps it (common practice, no source). The diode carries 0.42 A (TT charge 4 nC), and its
+    // limiting memory is left at −5 V by an earlier operating point at another bias.
+    const c = compile('t\nV1 a 0 5\nR1 a b 10\nD1 b 0 DX\n.model DX D (IS=1e-14 CJO=100p TT=10n)\n.end\n');
+    const op = solveOperatingPoint(c);
+    if (!op.ok) throw new Error('operating point failed');
+    const x0 = Float64Array.from(c.ws.x);
+    const v1 = c.sources.get('v1')!;
+    v1.dc = -5;
+    solveOperatingPoint(c);
+    v1.dc = 5;
+    const { trace } = run(c, { tstep: 1e-6, tstop: 1e-5, initialSolution: x0 });
+    const b = node(c, 'b');
+    let drift = 0;
+    for (let k = 0; k < trace.count; k++) drift = Math.max(drift, Math.abs(at(trace, k, b) - x0[b]!));
+    expect(x0[b]!).toBeGreaterThan(0.8);
+    expect(drift).toBeLessThan(1e-6);
   });
 });
 
