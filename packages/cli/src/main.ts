@@ -6,6 +6,7 @@
  */
 import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type RunReport, type RunResult } from '@railcheck/core';
 import { writeFileSync } from 'node:fs';
+import { isAbsolute, relative } from 'node:path';
 import { transientCsv } from './present/waves.js';
 import { realpathSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
@@ -135,7 +136,12 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
     io.err(demo ? `railcheck demo: takes no file (got ${positionals.join(' ')})` : `railcheck run: expected one netlist FILE${positionals.length ? `, got ${positionals.length}` : ''}\n\n${RUN_HELP}`);
     return EXIT_ERROR;
   }
-  const file = demo ? demoPath() : positionals[0]!;
+  // The demo's path is shown relative to where the user stands when that is shorter.
+  const demoFile = (): string => {
+    const rel = relative(process.cwd(), demoPath());
+    return rel && !rel.startsWith('..') && !isAbsolute(rel) ? rel : demoPath();
+  };
+  const file = demo ? demoFile() : positionals[0]!;
   const result = runNetlistFile(file, { allowOutsideIncludes: flags.has('allow-outside-includes') });
   return present(io, result, flags);
 }
