@@ -185,10 +185,8 @@ describe('sources across resistors', () => {
   });
 
   // netlist.md: with no dc value the operating point uses the waveform's value at t = 0, and a delayed
-  // sine equals vo + va·sin(phase) before td, here 1 + 2·sin 30° = 2 V. The elaboration takes vo
-  // alone (1 V) for a delayed sine, so the run starts 1 V off and the source jumps at t = 0+.
-  // Reported; marked as failing until elaborate/elements.ts follows netlist.md.
-  it.fails('KNOWN DEVIATION: a delayed sine with a phase has its netlist.md value at the t = 0 operating point', () => {
+  // sine equals vo + va·sin(phase) before td, here 1 + 2·sin 30° = 2 V.
+  it('a delayed sine with a phase has its netlist.md value at the t = 0 operating point', () => {
     const c = compile(SOURCES);
     const { trace } = run(c, { tstep: 1e-5, tstop: 1e-4, method: 'trap' });
     expect(at(trace, 0, node(c, 'a'))).toBeCloseTo(waves.a(0), 9);

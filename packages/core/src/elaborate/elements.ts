@@ -46,7 +46,7 @@ function waveformSpec(ev: Evaluator, scope: Scope, w: Waveform): WaveformSpec {
 /** The waveform's value at t = 0 (netlist.md: the DC value when no `dc` is given). */
 function valueAtZero(w: WaveformSpec): number {
   return match(w)
-    .with({ kind: 'sin' }, (s) => s.vo + (s.td > 0 ? 0 : s.va * Math.sin((s.phaseDeg * Math.PI) / 180)))
+    .with({ kind: 'sin' }, (s) => s.vo + s.va * Math.sin((s.phaseDeg * Math.PI) / 180))
     .with({ kind: 'pulse' }, (p) => p.v1)
     .with({ kind: 'pwl' }, (p) => p.values[0] ?? 0)
     .with({ kind: 'sum' }, { kind: 'modulated' }, () => 0) // built by measurements only, never read from a netlist
