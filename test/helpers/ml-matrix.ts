@@ -1,14 +1,9 @@
 /**
  * ml-matrix, the general-purpose matrix library used as a reference in
- * tests. It is a dependency of @railcheck/core rather than of the workspace
- * root, so test files cannot import it by bare name; it is resolved from
- * that package instead.
+ * tests (a root dev dependency; the engine itself solves with its own
+ * in-place LU).
  */
-import { createRequire } from 'node:module';
-
-type MlMatrix = typeof import('../../packages/core/node_modules/ml-matrix/matrix.js');
-
-const requireFromCore = createRequire(new URL('../../packages/core/package.json', import.meta.url));
+import * as mlMatrix from 'ml-matrix';
 
 /** The ml-matrix module (Matrix, solve, inverse, LuDecomposition, ...). */
-export const ml: MlMatrix = requireFromCore('ml-matrix') as MlMatrix;
+export const ml = mlMatrix;
