@@ -1,5 +1,5 @@
 /**
- * Junction-voltage limiting of Nagel 1975 (SPICE2 thesis, UCB/ERL M520):
+ * Junction-voltage limiting of Nagel 1975 (UCB/ERL M520):
  * the critical voltage, the algorithm's properties, and its use by the
  * diode (both sides, Zener breakdown mirrored about −BV) and transistor.
  */

@@ -6,7 +6,7 @@
 export { RailcheckError, errorAt, warningAt, formatDiagnostic } from './errors.js';
 export type { Diagnostic, SourcePos } from './errors.js';
 
-export { parseNetlist, parseNetlistOrThrow, readNetlistFile, parseSpiceNumber, evaluateExpr, printNetlist } from './netlist/index.js';
+export { parseNetlist, parseNetlistOrThrow, readNetlistFile, parseScaledNumber, evaluateExpr, printNetlist } from './netlist/index.js';
 export type { ParseOptions, ParseResult } from './netlist/index.js';
 export type {
   Netlist, Card, ElementCard, ModelCard, ParamCard, AnalysisCard, SupplyCard, SubcktDef, Value, Expr, ExprFunction,

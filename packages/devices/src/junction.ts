@@ -39,7 +39,7 @@ export function safeExpm1(x: number): number {
 /**
  * Critical voltage of a junction in volts, the voltage above which Newton
  * steps are limited: Vcrit = nVt·ln(nVt/(√2·IS)), the point of minimum radius
- * of curvature of the exponential (Nagel 1975, SPICE2 thesis, UCB/ERL M520).
+ * of curvature of the exponential (Nagel 1975, UCB/ERL M520).
  * @param nVt emission coefficient times thermal voltage, V
  * @param is saturation current, A
  */
@@ -48,7 +48,7 @@ export function criticalVoltage(nVt: number, is: number): number {
 }
 
 /**
- * Junction-voltage limiting of Nagel 1975 (SPICE2 thesis, UCB/ERL M520): when
+ * Junction-voltage limiting of Nagel 1975 (UCB/ERL M520): when
  * the new iterate is above Vcrit and moved by more than 2·nVt, the step is
  * replaced by a logarithmic one so that the exponential current changes at
  * most linearly. Returns the voltage to evaluate the junction at, in volts.

@@ -1,5 +1,5 @@
 /**
- * Junction-voltage limiting (Nagel, SPICE2, UCB/ERL M520, 1975): a diode fed
+ * Junction-voltage limiting (Nagel, UCB/ERL M520, 1975): a diode fed
  * from a large source through a small resistor defeats plain Newton (the
  * first step lands near the source voltage, where the exponential either
  * overflows or can only retreat by about n·Vt per iteration), while the

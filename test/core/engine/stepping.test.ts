@@ -1,6 +1,6 @@
 /**
  * When plain Newton from zero fails: gmin stepping and source stepping
- * (Nagel, SPICE2, UCB/ERL M520, 1975; the homotopy survey of Roychowdhury and
+ * (Nagel, UCB/ERL M520, 1975; the homotopy survey of Roychowdhury and
  * Melville, IEEE TCAD 25(12), 2006). Two circuits that need them, each with a
  * reverse-biased probe diode whose current reveals the junction conductance
  * left in the final solution: it must be exactly 1e-12 S (engine.md;

@@ -7,7 +7,7 @@
 import fc from 'fast-check';
 import { knownParams } from '../../../packages/devices/src/index.js';
 import type { Card, Expr, Netlist, Value } from '../../../packages/core/src/netlist/ast.js';
-import { parseSpiceNumber } from '../../../packages/core/src/netlist/index.js';
+import { parseScaledNumber } from '../../../packages/core/src/netlist/index.js';
 
 const P = { file: 'gen', line: 1, column: 1 };
 const FUNCS = ['sqrt', 'exp', 'ln', 'log10', 'abs', 'min', 'max', 'pow'];
@@ -22,7 +22,7 @@ function plain(v: number): Value {
 
 const suffixed = fc.tuple(fc.integer({ min: 1, max: 999 }), fc.constantFrom('f', 'p', 'n', 'u', 'µ', 'm', 'k', 'meg', 'g', 't', ''), fc.constantFrom('', 'V', 'ohm', 'Hz')).map(([n, s, u]): Value => {
   const text = `${n}${s}${s === '' && u !== '' ? '' : u}`;
-  return { kind: 'number', value: parseSpiceNumber(text) as number, pos: P, text };
+  return { kind: 'number', value: parseScaledNumber(text) as number, pos: P, text };
 });
 
 const finite = (min: number) => fc.double({ min, max: 1e300, noNaN: true, noDefaultInfinity: true });

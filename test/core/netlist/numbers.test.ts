@@ -6,7 +6,7 @@
  */
 import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
-import { parseSpiceNumber } from '../../../packages/core/src/netlist/index.js';
+import { parseScaledNumber } from '../../../packages/core/src/netlist/index.js';
 import { cardsOf, oneCard, seedFor } from './support.js';
 
 const seed = seedFor('numbers.test.ts');
@@ -23,52 +23,52 @@ function close(actual: number | undefined, expected: number): void {
 
 describe('suffix table (netlist.md)', () => {
   test.each(TABLE)('1%s = 1e%d, any case', (sfx, exp) => {
-    close(parseSpiceNumber(`1${sfx}`), 10 ** exp);
-    close(parseSpiceNumber(`2.5${sfx.toUpperCase()}`), 2.5 * 10 ** exp);
+    close(parseScaledNumber(`1${sfx}`), 10 ** exp);
+    close(parseScaledNumber(`2.5${sfx.toUpperCase()}`), 2.5 * 10 ** exp);
   });
 
   test('m is milli and meg is mega, in every case', () => {
-    expect(parseSpiceNumber('1m')).toBe(1e-3);
-    expect(parseSpiceNumber('1M')).toBe(1e-3);
-    expect(parseSpiceNumber('1meg')).toBe(1e6);
-    expect(parseSpiceNumber('1MEG')).toBe(1e6);
-    expect(parseSpiceNumber('1Meg')).toBe(1e6);
-    expect(parseSpiceNumber('2.2megohm')).toBe(2.2e6);
-    expect(parseSpiceNumber('2.2mohm')).toBe(2.2e-3);
+    expect(parseScaledNumber('1m')).toBe(1e-3);
+    expect(parseScaledNumber('1M')).toBe(1e-3);
+    expect(parseScaledNumber('1meg')).toBe(1e6);
+    expect(parseScaledNumber('1MEG')).toBe(1e6);
+    expect(parseScaledNumber('1Meg')).toBe(1e6);
+    expect(parseScaledNumber('2.2megohm')).toBe(2.2e6);
+    expect(parseScaledNumber('2.2mohm')).toBe(2.2e-3);
   });
 
   test('the micro sign and the Greek mu are both micro', () => {
-    expect(parseSpiceNumber('47µF')).toBe(47e-6); // U+00B5, as netlist.md writes it
-    expect(parseSpiceNumber('47μF')).toBe(47e-6); // U+03BC
+    expect(parseScaledNumber('47µF')).toBe(47e-6); // U+00B5, as netlist.md writes it
+    expect(parseScaledNumber('47μF')).toBe(47e-6); // U+03BC
   });
 
   test('the examples of netlist.md: 10uF, 4.7kohm, 5V, 100mA', () => {
-    expect(parseSpiceNumber('10uF')).toBe(1e-5);
-    expect(parseSpiceNumber('4.7kohm')).toBe(4700);
-    expect(parseSpiceNumber('5V')).toBe(5);
-    expect(parseSpiceNumber('100mA')).toBe(0.1);
-    expect(parseSpiceNumber('4.7k')).toBe(4700);
-    expect(parseSpiceNumber('1meg')).toBe(1e6);
+    expect(parseScaledNumber('10uF')).toBe(1e-5);
+    expect(parseScaledNumber('4.7kohm')).toBe(4700);
+    expect(parseScaledNumber('5V')).toBe(5);
+    expect(parseScaledNumber('100mA')).toBe(0.1);
+    expect(parseScaledNumber('4.7k')).toBe(4700);
+    expect(parseScaledNumber('1meg')).toBe(1e6);
   });
 
   test('an F after the digits is femto, as the table says (10F is 10 fF, not 10 farads)', () => {
-    expect(parseSpiceNumber('10F')).toBe(1e-14);
+    expect(parseScaledNumber('10F')).toBe(1e-14);
   });
 
   test('signs, exponents and decimal points', () => {
-    expect(parseSpiceNumber('-12')).toBe(-12);
-    expect(parseSpiceNumber('+3.3')).toBe(3.3);
-    expect(parseSpiceNumber('1e3')).toBe(1000);
-    expect(parseSpiceNumber('1E-3')).toBe(1e-3);
-    expect(parseSpiceNumber('2.5e-3k')).toBe(2.5);
-    expect(parseSpiceNumber('.5')).toBe(0.5);
-    expect(parseSpiceNumber('5.')).toBe(5);
-    expect(parseSpiceNumber('  7  ')).toBe(7);
+    expect(parseScaledNumber('-12')).toBe(-12);
+    expect(parseScaledNumber('+3.3')).toBe(3.3);
+    expect(parseScaledNumber('1e3')).toBe(1000);
+    expect(parseScaledNumber('1E-3')).toBe(1e-3);
+    expect(parseScaledNumber('2.5e-3k')).toBe(2.5);
+    expect(parseScaledNumber('.5')).toBe(0.5);
+    expect(parseScaledNumber('5.')).toBe(5);
+    expect(parseScaledNumber('  7  ')).toBe(7);
   });
 
   test('things that are not numbers', () => {
     for (const s of ['', 'k', 'abc', '1.2.3', '1k2', '--1', '5%', '1e999', 'e5', '1 2', '0x10']) {
-      expect(parseSpiceNumber(s), s).toBeUndefined();
+      expect(parseScaledNumber(s), s).toBeUndefined();
     }
   });
 });
@@ -97,7 +97,7 @@ describe('property: formatted numbers read back (netlist.md suffix table)', () =
   // After a suffix any letters are a unit, except ones that would turn m into meg.
   const ANY_UNITS = [...SAFE_UNITS, 'F', 'mA', 'uF', 'kHz'];
 
-  test('parseSpiceNumber(mantissa e exp suffix unit) ≈ mantissa·10^(exp+suffix)', () => {
+  test('parseScaledNumber(mantissa e exp suffix unit) ≈ mantissa·10^(exp+suffix)', () => {
     const arb = fc.record({
       sign: fc.constantFrom('', '+', '-'),
       int: fc.integer({ min: 0, max: 99999 }),
@@ -115,7 +115,7 @@ describe('property: formatted numbers read back (netlist.md suffix table)', () =
         const sfx = g.suffix ? (g.upper ? g.suffix[0].toUpperCase() : g.suffix[0]) : '';
         const text = `${g.sign}${mantissa}${g.exp === undefined ? '' : `e${g.exp}`}${sfx}${unit}`;
         const expected = (g.sign === '-' ? -1 : 1) * Number(mantissa) * 10 ** ((g.exp ?? 0) + (g.suffix ? g.suffix[1] : 0));
-        const got = parseSpiceNumber(text);
+        const got = parseScaledNumber(text);
         if (got === undefined) return false;
         return Math.abs(got - expected) <= Math.abs(expected) * 1e-13;
       }),

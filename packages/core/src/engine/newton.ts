@@ -1,5 +1,5 @@
 /**
- * Newton-Raphson iteration on the MNA equations (Nagel, SPICE2, UCB/ERL
+ * Newton-Raphson iteration on the MNA equations (Nagel, UCB/ERL
  * M520, 1975, ch. 4): load every device linearised at the present iterate,
  * factor, solve for the next iterate, test convergence on every unknown.
  * Devices limit their junction voltages themselves (they set

@@ -20,7 +20,7 @@ import type { ReadContext } from './reader.js';
 
 export type * from './ast.js';
 export { evaluateExpr, printExpr, parseExpr, EXPR_FUNCTIONS, MAX_EXPR_NESTING, MAX_EXPR_HEIGHT } from './expr.js';
-export { parseSpiceNumber } from './numbers.js';
+export { parseScaledNumber } from './numbers.js';
 export { printNetlist, printValue } from './print.js';
 export { figureKindOf, FIGURE_KEYS, FIGURE_KINDS } from './parse-supply.js';
 export { TRAN_FLAGS } from './parse-directives.js';

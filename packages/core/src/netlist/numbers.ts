@@ -80,7 +80,7 @@ export function scanNumber(s: string, start: number): NumberScan | undefined {
  * `'100mA'` → 0.1. Surrounding white space is ignored.
  * @returns the value, or undefined when the text is not a finite number.
  */
-export function parseSpiceNumber(text: string): number | undefined {
+export function parseScaledNumber(text: string): number | undefined {
   const s = text.trim();
   const scan = scanNumber(s, 0);
   if (!scan || scan.end !== s.length || !Number.isFinite(scan.value)) return undefined;
@@ -119,7 +119,7 @@ function splitExponent(value: number): { mantissa: string; exponent: number } {
   return { mantissa: m ?? '0', exponent: Number(e ?? '0') };
 }
 
-/** Shortest text that {@link parseSpiceNumber} reads back as exactly `value` (finite values only). */
+/** Shortest text that {@link parseScaledNumber} reads back as exactly `value` (finite values only). */
 export function formatNumber(value: number): string {
   if (Object.is(value, -0)) return '-0';
   return String(value);

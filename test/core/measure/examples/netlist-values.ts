@@ -29,7 +29,7 @@ export interface NetlistValues {
   readonly figures: ReadonlyMap<string, ReadonlyMap<string, string>>;
 }
 
-/** Scale suffixes of the netlist number notation (common SPICE notation; `meg` before `m`). */
+/** Scale suffixes of the netlist number notation (the common netlist notation; `meg` before `m`). */
 const SUFFIXES: readonly (readonly [string, number])[] = [
   ['meg', 1e6], ['t', 1e12], ['g', 1e9], ['k', 1e3], ['m', 1e-3], ['u', 1e-6], ['n', 1e-9], ['p', 1e-12], ['f', 1e-15],
 ];
