@@ -33,7 +33,7 @@ export interface TransientOptions {
   readonly lteReltol?: number;
   /** Absolute LTE tolerance on voltages, V (default 1e-6). */
   readonly lteVntol?: number;
-  /** Least number of steps per period of any sine source (default 50 for trap, 400 for be). */
+  /** Least number of steps per period of any sine source (default 100 for trap, 400 for be; docs/transient.md). */
   readonly stepsPerCycle?: number;
   /** Newton options per time point. */
   readonly newton?: NewtonOptions;
@@ -147,7 +147,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
   const newton = { ...(opts.newton ?? DEFAULT_NEWTON), maxIterations: TRAN_ITERATIONS };
   const reltol = opts.lteReltol ?? 1e-3;
   const vntol = opts.lteVntol ?? 1e-6;
-  const stepsPerCycle = opts.stepsPerCycle ?? (method === 'trap' ? 50 : 400);
+  const stepsPerCycle = opts.stepsPerCycle ?? (method === 'trap' ? 100 : 400);
   const { ws } = c;
   const { ctx, x } = ws;
   const [state, statePrev] = [ws.states[0]!, ws.states[1]!];
