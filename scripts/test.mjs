@@ -22,7 +22,9 @@ let failed = typeFailures;
 try {
   const report = JSON.parse(readFileSync(results, 'utf8'));
   passed = report.numPassedTests;
-  failed += report.numFailedTests + (report.numFailedTestSuites ?? 0);
+  // A file that failed to load has no test results of its own: count it as one failure.
+  const brokenFiles = (report.testResults ?? []).filter((f) => f.status === 'failed' && (f.assertionResults ?? []).length === 0).length;
+  failed += report.numFailedTests + brokenFiles;
 } catch {
   failed += 1;
   console.error('vitest produced no results file');
