@@ -6,32 +6,10 @@
  */
 
 import type { DeviceReport, LoadContext, ReactiveContext, SlotBinder, Topology, UnknownAllocator } from './device.js';
-import { addAt, at } from './stamp.js';
+import { addAt, at, BranchSlots } from './stamp.js';
 import type { Ccvs, Cccs, Vccs, Vcvs } from './types.js';
 
 const OPEN: Topology = { dcPaths: [], voltageDefined: [] };
-
-/** Offsets of the ±1 incidence entries of an output branch between p and n. */
-class BranchSlots {
-  pb = 0;
-  nb = 0;
-  bp = 0;
-  bn = 0;
-
-  bind(slots: SlotBinder, p: number, n: number, br: number): void {
-    this.pb = slots.slot(p, br);
-    this.nb = slots.slot(n, br);
-    this.bp = slots.slot(br, p);
-    this.bn = slots.slot(br, n);
-  }
-
-  add(m: Float64Array): void {
-    addAt(m, this.pb, 1);
-    addAt(m, this.nb, -1);
-    addAt(m, this.bp, 1);
-    addAt(m, this.bn, -1);
-  }
-}
 
 function branchReport(x: Float64Array, p: number, n: number, i: number): DeviceReport {
   return { currents: [['', i]], power: (at(x, p) - at(x, n)) * i };

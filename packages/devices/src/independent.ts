@@ -7,7 +7,7 @@
 
 import type { DeviceReport, LoadContext, ReactiveContext, SlotBinder, Topology, UnknownAllocator } from './device.js';
 import type { SourceSpec, WaveformSpec } from './sources.js';
-import { addAt, at } from './stamp.js';
+import { addAt, at, BranchSlots } from './stamp.js';
 import type { CurrentSource, VoltageSource } from './types.js';
 import { waveformBreakpoints, waveformValue } from './waveform.js';
 
@@ -62,10 +62,7 @@ abstract class SourceBase {
 class VoltageSourceImpl extends SourceBase implements VoltageSource {
   readonly kind = 'vsource' as const;
   branchIndex = -1;
-  private sPB = 0;
-  private sNB = 0;
-  private sBP = 0;
-  private sBN = 0;
+  private readonly incidence = new BranchSlots();
   private readonly topo: Topology;
 
   constructor(name: string, p: number, n: number, spec: SourceSpec) {
@@ -80,18 +77,12 @@ class VoltageSourceImpl extends SourceBase implements VoltageSource {
   bind(slots: SlotBinder): void {
     const [p, n] = this.nodes;
     const br = this.branchIndex;
-    this.sPB = slots.slot(p, br);
-    this.sNB = slots.slot(n, br);
-    this.sBP = slots.slot(br, p);
-    this.sBN = slots.slot(br, n);
+    this.incidence.bind(slots, p, n, br);
   }
 
   load(ctx: LoadContext): void {
     const m = ctx.matrix;
-    addAt(m, this.sPB, 1);
-    addAt(m, this.sNB, -1);
-    addAt(m, this.sBP, 1);
-    addAt(m, this.sBN, -1);
+    this.incidence.add(m);
     addAt(ctx.rhs, this.branchIndex, this.present(ctx));
   }
 

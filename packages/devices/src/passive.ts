@@ -5,7 +5,7 @@
  */
 
 import type { DeviceReport, LoadContext, ReactiveContext, SlotBinder, Topology, UnknownAllocator } from './device.js';
-import { PairSlots, addAt, at, injectPair } from './stamp.js';
+import { addAt, at, BranchSlots, injectPair, PairSlots } from './stamp.js';
 import type { Capacitor, Inductor, Resistor } from './types.js';
 
 const NO_TOPOLOGY: Topology = { dcPaths: [], voltageDefined: [] };
@@ -147,10 +147,7 @@ class InductorImpl implements Inductor {
   readonly nodes: readonly [number, number];
   branchIndex = -1;
   private offset = -1;
-  private sPB = 0;
-  private sNB = 0;
-  private sBP = 0;
-  private sBN = 0;
+  private readonly incidence = new BranchSlots();
   private sBB = 0;
   private readonly topo: Topology;
 
@@ -173,10 +170,7 @@ class InductorImpl implements Inductor {
   bind(slots: SlotBinder): void {
     const [p, n] = this.nodes;
     const br = this.branchIndex;
-    this.sPB = slots.slot(p, br);
-    this.sNB = slots.slot(n, br);
-    this.sBP = slots.slot(br, p);
-    this.sBN = slots.slot(br, n);
+    this.incidence.bind(slots, p, n, br);
     this.sBB = slots.slot(br, br);
   }
 
@@ -191,10 +185,7 @@ class InductorImpl implements Inductor {
 
   load(ctx: LoadContext): void {
     const m = ctx.matrix;
-    addAt(m, this.sPB, 1);
-    addAt(m, this.sNB, -1);
-    addAt(m, this.sBP, 1);
-    addAt(m, this.sBN, -1);
+    this.incidence.add(m);
     const i = at(ctx.x, this.branchIndex);
     const off = this.offset;
     ctx.state[off] = this.inductance * i;

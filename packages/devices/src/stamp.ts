@@ -30,6 +30,32 @@ export class PairSlots {
   }
 }
 
+/**
+ * Offsets of the ±1 incidence entries of a voltage-defining branch between p
+ * and n (V, L, E, H): the branch current enters KCL at p and n, and the
+ * branch row reads V(p) − V(n) = ... (Ho, Ruehli and Brennan 1975).
+ */
+export class BranchSlots {
+  pb = 0;
+  nb = 0;
+  bp = 0;
+  bn = 0;
+
+  bind(slots: SlotBinder, p: number, n: number, br: number): void {
+    this.pb = slots.slot(p, br);
+    this.nb = slots.slot(n, br);
+    this.bp = slots.slot(br, p);
+    this.bn = slots.slot(br, n);
+  }
+
+  add(m: Float64Array): void {
+    addAt(m, this.pb, 1);
+    addAt(m, this.nb, -1);
+    addAt(m, this.bp, 1);
+    addAt(m, this.bn, -1);
+  }
+}
+
 /** Adds `v` at storage offset `i`; the one place the index-access check is discharged. */
 export function addAt(m: Float64Array, i: number, v: number): void {
   m[i] = (m[i] as number) + v;
