@@ -118,7 +118,7 @@ describe('capacitor and inductor', () => {
     expect(c.topology().dcPaths).toEqual([]);
   });
 
-  it('L: short at DC; backward Euler gives −L/h on the branch diagonal and −L·i_prev/h in its rhs; reactive −L', () => {
+  it('L: short at DC; backward Euler gives −L/h on the branch diagonal and −L·i_prev/h in its rhs (the row divided by max(1, L/h)); reactive −L', () => {
     const l = createInductor('L1', 1, 2, 1e-3, undefined);
     const hz = new DeviceHarness(3, [l], { step: 1e-6 });
     const b = l.branchIndex;
@@ -129,8 +129,14 @@ describe('capacitor and inductor', () => {
     hz.ctx.mode = 'tran';
     hz.setX({ 1: 1, 2: 1, [b]: 0.3 });
     hz.load();
-    expect(hz.entry(b, b)).toBeCloseTo(-1e3, 9);
-    expect(hz.rhs[b]).toBeCloseTo(-(1e-3 * 0.2) / 1e-6, 9);
+    // The branch row V(p) − V(n) − (L/h)·i = −(L/h)·i_prev, divided through by L/h = 1000 (a row
+    // scaling, same solution): the incidence entries become h/L and the diagonal −1.
+    const scale = 1 / Math.max(1, 1e-3 / 1e-6);
+    expect(hz.entry(b, 1)).toBeCloseTo(scale, 15);
+    expect(hz.entry(b, 2)).toBeCloseTo(-scale, 15);
+    expect(hz.entry(1, b)).toBe(1);
+    expect(hz.entry(b, b)).toBeCloseTo(-1e3 * scale, 9);
+    expect(hz.rhs[b]).toBeCloseTo((-(1e-3 * 0.2) / 1e-6) * scale, 9);
     hz.loadReactive();
     expect(hz.cap(b, b)).toBe(-1e-3);
     expect(l.topology().voltageDefined).toEqual([[1, 2]]);

@@ -185,19 +185,28 @@ class InductorImpl implements Inductor {
 
   load(ctx: LoadContext): void {
     const m = ctx.matrix;
-    this.incidence.add(m);
+    const b = this.incidence;
     const i = at(ctx.x, this.branchIndex);
     const off = this.offset;
     ctx.state[off] = this.inductance * i;
     if (ctx.mode === 'dc') {
+      b.add(m);
       ctx.state[off + 1] = 0;
       return;
     }
-    // Branch row: V(p) − V(n) = dφ/dt ≈ chargeCurrent + G·(i_new − i).
+    // Branch row: V(p) − V(n) = dφ/dt ≈ chargeCurrent + G·(i_new − i), divided through by
+    // max(1, G). Dividing a row changes no solution, but with G = L/h large the unscaled row
+    // would win the pivot search over the KCL rows, and V(p) − V(n) would then come out as the
+    // difference of two large terms, G·i and G·ic, losing every digit.
     ctx.integrate(off, this.inductance);
     const g = ctx.chargeConductance;
-    addAt(m, this.sBB, -g);
-    addAt(ctx.rhs, this.branchIndex, ctx.chargeCurrent - g * i);
+    const scale = 1 / Math.max(1, g);
+    addAt(m, b.pb, 1);
+    addAt(m, b.nb, -1);
+    addAt(m, b.bp, scale);
+    addAt(m, b.bn, -scale);
+    addAt(m, this.sBB, -g * scale);
+    addAt(ctx.rhs, this.branchIndex, (ctx.chargeCurrent - g * i) * scale);
   }
 
   loadReactive(ctx: ReactiveContext): void {

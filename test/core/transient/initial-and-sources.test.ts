@@ -79,11 +79,9 @@ describe('initial conditions', () => {
   });
 
   // At the fromic start the engine solves a backward-Euler step of length ~tstop·1e-16 from the ic=
-  // state. For an inductor that step reads V = (L/h)·(i − ic): the voltage is a difference below the
-  // resolution of i times ~1e17, so at t = 0 the voltage across an inductor with ic= is lost to
-  // rounding (here 0 V where KCL says −R4·ic = −1 V); from the first step on it is right (above).
-  // Reported; marked as failing until the initial point treats inductors as current sources.
-  it.fails('KNOWN DEVIATION: with fromic, the t = 0 voltage across an inductor with ic= obeys KCL', () => {
+  // state. The inductor's branch row, divided through by L/h, leaves the pivot to the KCL rows, so the
+  // voltage across it follows from KCL: −R4·ic = −1 V.
+  it('with fromic, the t = 0 voltage across an inductor with ic= obeys KCL', () => {
     const { trace } = run(c, { ...opts, fromIc: true });
     expect(at(trace, 0, a)).toBeCloseTo(-1, 6);
   });
