@@ -11,10 +11,10 @@ import { errorAt, RailcheckError, warningAt, type Diagnostic } from '../errors.j
 import type { CompiledCircuit } from '../engine/compile.js';
 import type { FlatFigure } from '../elaborate/flat.js';
 import { formatSI } from '../units.js';
-import { applySetting, loadCurrentOf, makeStage, restoreNominal, type Stage } from './stage.js';
-import { runToPeriodicSteadyState, type Probe } from './periodic.js';
-import { DEFAULT_DROPOUT_FALL } from './dropout.js';
-import { ratingWarnings } from './dissipation.js';
+import { applySetting, loadCurrentOf, makeStage, restoreNominal, vout, type Stage } from './stage.js';
+import { MinMaxWindow, runToPeriodicSteadyState, type Probe } from './periodic.js';
+import { fallVolts } from './dropout.js';
+import { dissipates, ratingWarnings } from './dissipation.js';
 import type { MeasuredFigure } from './figures.js';
 
 type Sine = Extract<WaveformSpec, { kind: 'sin' }>;
@@ -50,7 +50,7 @@ export function pssAt(stage: Stage, sine: Sine, voutNominal: number, ratio: numb
   const c = stage.compiled;
   const period = 1 / sine.freq;
   const saved = stage.input.waveform;
-  const out: Probe = (x) => x[stage.outIndex]! - x[stage.refIndex]!;
+  const out: Probe = (x) => vout(stage, x);
   const fi = stage.feedIndex;
   const probes: Probe[] = [out];
   if (fi !== undefined) probes.push((x) => x[fi]! - x[stage.refIndex]!, (x) => x[fi]! - x[stage.outIndex]!);
@@ -116,12 +116,6 @@ export function createAcBench(c: CompiledCircuit): AcBench {
   return { stage, sine: w, period: 1 / w.freq, voutNominal: first.meanOut, outPpNominal: first.ppOut, loadNominal, nominal: first };
 }
 
-function fallOf(f: FlatFigure, vout: number): number {
-  const v = f.keys.get('fall');
-  if (v === undefined) return DEFAULT_DROPOUT_FALL;
-  return f.percentKeys.has('fall') ? v * vout : v;
-}
-
 /** Lowest amplitude ratio (to 0.5 %) at which the stage still holds its output (figures.md dropout rule). */
 function dropoutRatio(b: AcBench, fall: number): number {
   const holds = (ratio: number): boolean => {
@@ -154,27 +148,27 @@ function acDip(b: AcBench, depth: number, durCycles: number, edge: number): Dip 
   const env = { times, amplitudes: [a, a, a * (1 - depth), a * (1 - depth), a] };
   const tEnd = times[4]! + 5 * edge;
   const saved = stage.input.waveform;
-  let low = Infinity;
-  const win = (from: number, to: number) => ({ from, to, min: Infinity, max: -Infinity });
-  const before = win(t0 - period, t0);
+  const whole = new MinMaxWindow(t0, tEnd);
+  const before = new MinMaxWindow(t0 - period, t0);
   const lastDipCycleEnd = Math.floor((t0 + edge + durCycles * period) / period + 1e-9) * period;
-  const during = win(lastDipCycleEnd - period, lastDipCycleEnd);
+  const during = new MinMaxWindow(lastDipCycleEnd - period, lastDipCycleEnd);
   try {
     applySetting(stage, { vin: stage.inputDc, loadAmps: b.loadNominal }, b.voutNominal);
     stage.input.waveform = { kind: 'modulated', vo: sine.vo, freq: sine.freq, phaseDeg: sine.phaseDeg, times: env.times, amplitudes: env.amplitudes };
     runToPeriodicSteadyState(stage.compiled, {
-      period, probes: [(x) => x[stage.outIndex]! - x[stage.refIndex]!], minCycles: Math.ceil(tEnd / period) + 1, maxCycles: Math.ceil(tEnd / period) + 400,
+      period, probes: [(x) => vout(stage, x)], minCycles: Math.ceil(tEnd / period) + 1, maxCycles: Math.ceil(tEnd / period) + 400,
       onPoint: (t, _cycle, ctx) => {
-        const v = ctx.x[stage.outIndex]! - ctx.x[stage.refIndex]!;
-        if (t >= t0 && t <= tEnd) low = Math.min(low, v);
-        for (const w of [before, during]) if (t >= w.from - 1e-12 && t <= w.to + 1e-12) { w.min = Math.min(w.min, v); w.max = Math.max(w.max, v); }
+        const v = vout(stage, ctx.x);
+        whole.add(t, v);
+        before.add(t, v);
+        during.add(t, v);
       },
     }, 'sag of the sine-fed stage', stage.supply.origin);
   } finally {
     stage.input.waveform = saved;
     restoreNominal(stage);
   }
-  return { fall: b.voutNominal - low, outPp: during.max - during.min, outPpBefore: before.max - before.min };
+  return { fall: b.voutNominal - whole.min, outPp: during.max - during.min, outPpBefore: before.max - before.min };
 }
 
 /** Measures one figure of a sine-fed stage. */
@@ -207,10 +201,10 @@ export function measureAcFedFigure(b: AcBench, f: FlatFigure, all: readonly Flat
       return { kind: 'ripple', values, conditions: `at ${amp} amplitude, ${formatSI(b.sine.freq, 'Hz')} source, periodic steady state` };
     })
     .with('dropout', () => {
-      const ratio = dropoutRatio(b, fallOf(f, b.voutNominal));
+      const ratio = dropoutRatio(b, fallVolts(f, b.voutNominal));
       const values: Record<string, number> = { 'dropout.ratio': ratio, 'dropout.headroom': 1 - ratio };
       if (b.nominal.headroomMin !== undefined) values['headroom.min'] = b.nominal.headroomMin;
-      return { kind: 'dropout', values, conditions: `lowest amplitude holding the mean within ${formatSI(fallOf(f, b.voutNominal), 'V')} and ripple below 2× nominal` };
+      return { kind: 'dropout', values, conditions: `lowest amplitude holding the mean within ${formatSI(fallVolts(f, b.voutNominal), 'V')} and ripple below 2× nominal` };
     })
     .with('dissipation', () => {
       const line = all.find((g) => g.figure === 'line');
@@ -220,7 +214,7 @@ export function measureAcFedFigure(b: AcBench, f: FlatFigure, all: readonly Flat
       const points = [at(1, b.loadNominal, true), ...loads.map((l) => at(high, l, true))];
       const pd: Record<string, number> = {};
       for (const el of b.stage.compiled.elements) {
-        if (el.kind !== 'resistor' && el.kind !== 'diode' && el.kind !== 'bjt') continue;
+        if (!dissipates(el)) continue;
         pd[el.name] = Math.max(...points.map((p) => p.power?.[el.name] ?? 0));
       }
       warnings.push(...ratingWarnings(b.stage.compiled.elements, pd));
@@ -237,7 +231,7 @@ export function measureAcFedFigure(b: AcBench, f: FlatFigure, all: readonly Flat
       const depth = k.get('depth') ?? 0.2;
       const durCycles = Math.max(1, Math.ceil((k.get('dur') ?? 0.1) * b.sine.freq - 1e-9));
       const edge = k.get('edge') ?? 1e-3;
-      const fall = fallOf(f, b.voutNominal);
+      const fall = fallVolts(f, b.voutNominal);
       const main = acDip(b, depth, durCycles, edge);
       const passes = (d: number): boolean => acDip(b, d, durCycles, edge).fall <= fall;
       let lo = main.fall <= fall ? depth : 0;

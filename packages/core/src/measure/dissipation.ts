@@ -33,8 +33,10 @@ export interface Dissipation {
   readonly warnings: readonly Diagnostic[];
 }
 
-/** Elements whose dissipation is reported. */
-const DISSIPATING = new Set(['resistor', 'diode', 'bjt']);
+/** True for the elements whose dissipation is reported: resistors, diodes and transistors. */
+export function dissipates(el: FlatElement): boolean {
+  return el.kind === 'resistor' || el.kind === 'diode' || el.kind === 'bjt';
+}
 
 /** Measures dissipation. Throws RailcheckError when a corner cannot be solved. */
 export function dissipation(bench: Bench, opts: DissipationOptions = {}): Dissipation {
@@ -54,7 +56,7 @@ export function dissipation(bench: Bench, opts: DissipationOptions = {}): Dissip
       voutAt(bench, corner, `dissipation corner ${k}`);
       const sol = readSolution(c);
       for (const el of c.elements) {
-        if (!DISSIPATING.has(el.kind)) continue;
+        if (!dissipates(el)) continue;
         const p = sol.power[el.name] ?? 0;
         if (k === 0) nominal[el.name] = p;
         pd[el.name] = Math.max(pd[el.name] ?? -Infinity, p);

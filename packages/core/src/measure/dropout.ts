@@ -9,6 +9,7 @@
 import { errorAt, RailcheckError } from '../errors.js';
 import { formatSI } from '../units.js';
 import { backToNominal, voutAt, type Bench } from './bench.js';
+import type { FlatFigure } from '../elaborate/flat.js';
 
 /** The dropout figures. */
 export interface Dropout {
@@ -25,17 +26,24 @@ export interface Dropout {
 /** Default fall, V (figures.md). */
 export const DEFAULT_DROPOUT_FALL = 0.1;
 
+/** The `fall=` key of a figure in volts: written as `5%` it is a ratio of Vout_nom, a plain number is volts; default 100 mV. */
+export function fallVolts(f: FlatFigure | undefined, voutNominal: number): number {
+  const v = f?.keys.get('fall');
+  if (v === undefined) return DEFAULT_DROPOUT_FALL;
+  return f!.percentKeys.has('fall') ? v * voutNominal : v;
+}
+
 /** Bracketing steps down from nominal to zero (each a continuation solve). */
 const BRACKET_STEPS = 40;
 
 /** Width of the final bracket, V: well inside the 1 mV figures.md asks for. */
 const INPUT_TOLERANCE = 1e-4;
 
-/** Finds the dropout input. `fallVolts` defaults to 100 mV. Throws RailcheckError if the output never falls that far. */
-export function dropout(bench: Bench, fallVolts = DEFAULT_DROPOUT_FALL): Dropout {
+/** Finds the dropout input. `fall` (V) defaults to 100 mV. Throws RailcheckError if the output never falls that far. */
+export function dropout(bench: Bench, fall = DEFAULT_DROPOUT_FALL): Dropout {
   const origin = bench.stage.supply.origin;
   const nominal = bench.stage.nominalInput;
-  const target = bench.voutNominal - fallVolts;
+  const target = bench.voutNominal - fall;
   const load = bench.loadNominal;
   const f = (vin: number): number => voutAt(bench, { vin, loadAmps: load }, 'dropout search') - target;
   try {
@@ -55,7 +63,7 @@ export function dropout(bench: Bench, fallVolts = DEFAULT_DROPOUT_FALL): Dropout
       fHi = fv;
     }
     if (Number.isNaN(lo)) {
-      throw new RailcheckError([errorAt('no-dropout', `the output never falls by ${formatSI(fallVolts, 'V')} below its nominal ${formatSI(bench.voutNominal, 'V')}, even with the input at 0 V`, origin.pos, origin.lineText, 'a stage whose output depends on its input, or a smaller fall=')]);
+      throw new RailcheckError([errorAt('no-dropout', `the output never falls by ${formatSI(fall, 'V')} below its nominal ${formatSI(bench.voutNominal, 'V')}, even with the input at 0 V`, origin.pos, origin.lineText, 'a stage whose output depends on its input, or a smaller fall=')]);
     }
     // Illinois: regula falsi that halves the stale end's weight. `lo` is the end where the output has
     // fallen too far (f < 0), `hi` the end where it has not; on a negative rail lo > hi.
@@ -80,7 +88,7 @@ export function dropout(bench: Bench, fallVolts = DEFAULT_DROPOUT_FALL): Dropout
     const voutStar = f(vinStar) + target;
     // On a negative rail both are magnitudes: |Vin*| − |Vout|, |Vin_nom| − |Vin*|.
     const s = bench.inputSign;
-    return { fall: fallVolts, vin: vinStar, v: s * vinStar - voutStar, headroom: s * (nominal - vinStar) };
+    return { fall, vin: vinStar, v: s * vinStar - voutStar, headroom: s * (nominal - vinStar) };
   } finally {
     backToNominal(bench);
   }

@@ -12,7 +12,7 @@ import type { FigureKind, LimitOp } from '../netlist/ast.js';
 import { formatSI } from '../units.js';
 import { createDcBench, type Bench } from './bench.js';
 import { lineRegulation, loadRegulation } from './regulation.js';
-import { DEFAULT_DROPOUT_FALL, dropout } from './dropout.js';
+import { dropout, fallVolts } from './dropout.js';
 import { rippleRejection } from './ripple.js';
 import { dissipation } from './dissipation.js';
 import { sagRideThrough } from './sag.js';
@@ -68,13 +68,6 @@ export function figureUnit(name: string, sineFed = false): string {
     efficiency: '', 'sag.fall': 'V', 'sag.pass': '', 'sag.max_depth': '', 'sag.out_pp': 'V', 'sag.out_pp_before': 'V',
   };
   return table[n] ?? '';
-}
-
-/** A fall given as `5%` is a ratio of Vout_nom; a plain number is volts. */
-function fallVolts(f: FlatFigure | undefined, voutNominal: number): number {
-  const v = f?.keys.get('fall');
-  if (v === undefined) return DEFAULT_DROPOUT_FALL;
-  return f!.percentKeys.has('fall') ? v * voutNominal : v;
 }
 
 const amps = (a: number): string => formatSI(a, 'A');

@@ -54,6 +54,20 @@ export interface PeriodicResult {
   readonly end: number;
 }
 
+/** Least and greatest value of a signal over a time window [from, to] (s), gathered point by point. */
+export class MinMaxWindow {
+  min = Infinity;
+  max = -Infinity;
+  constructor(readonly from: number, readonly to: number) {}
+
+  /** Takes the value v at time t (s) if t lies in the window (to a relative 1e-12). */
+  add(t: number, v: number): void {
+    if (t < this.from - 1e-12 * this.to || t > this.to + 1e-12 * this.to) return;
+    if (v < this.min) this.min = v;
+    if (v > this.max) this.max = v;
+  }
+}
+
 class CycleAccumulator {
   min = Infinity;
   max = -Infinity;

@@ -8,10 +8,11 @@
  * For small `amp` the two agree; a disagreement above 0.5 dB is a warning.
  */
 import { errorAt, RailcheckError, warningAt, type Diagnostic } from '../errors.js';
-import { linearise, solveAt } from '../engine/ac.js';
+import { linearise, solveAt, type SmallSignalSystem } from '../engine/ac.js';
 import { solveOperatingPoint } from '../engine/dcop.js';
 import { opFailure } from '../analysis/dc.js';
 import { backToNominal, type Bench } from './bench.js';
+import { vout } from './stage.js';
 import { runToPeriodicSteadyState } from './periodic.js';
 import { formatSI } from '../units.js';
 
@@ -43,31 +44,40 @@ export interface RippleRejection {
 /** Largest disagreement between the methods before a warning, dB (figures.md). */
 export const RIPPLE_AGREEMENT_DB = 0.5;
 
-/** Small-signal transfer |Vout/Vin| (ratio) at `hertz` at the nominal operating point. */
-export function rippleTransfer(bench: Bench, hertz: number): number {
+/**
+ * Linearises the stage at its nominal operating point with only the input
+ * driven (`mag` V, phase 0), solves at `hertz`, and hands the solved system
+ * to `read`. Every source's ac value and the nominal point are restored.
+ */
+function withInputDrive<T>(bench: Bench, hertz: number, mag: number, what: string, read: (sys: SmallSignalSystem, singular: number) => T): T {
   const { stage } = bench;
   const c = stage.compiled;
   const saved = [...c.sources.values()].map((s) => [s, s.acMag, s.acPhaseDeg] as const);
   try {
     for (const [s] of saved) s.acMag = 0;
-    stage.input.acMag = 1;
+    stage.input.acMag = mag;
     stage.input.acPhaseDeg = 0;
     backToNominal(bench);
     const op = solveOperatingPoint(c, true);
-    if (!op.ok) throw new RailcheckError([opFailure(op, 'ripple rejection: nominal operating point', stage.supply.origin)]);
+    if (!op.ok) throw new RailcheckError([opFailure(op, `${what}: nominal operating point`, stage.supply.origin)]);
     const sys = linearise(c);
-    const singular = solveAt(sys, hertz);
-    if (singular !== 0) throw new RailcheckError([errorAt('ac-singular', `ripple rejection: small-signal matrix singular at ${hertz} Hz`, stage.supply.origin.pos)]);
-    const re = sys.xRe[stage.outIndex]! - sys.xRe[stage.refIndex]!;
-    const im = sys.xIm[stage.outIndex]! - sys.xIm[stage.refIndex]!;
-    return Math.hypot(re, im);
+    return read(sys, solveAt(sys, hertz));
   } finally {
-    for (const [s, mag, phase] of saved) {
-      s.acMag = mag;
+    for (const [s, m, phase] of saved) {
+      s.acMag = m;
       s.acPhaseDeg = phase;
     }
     backToNominal(bench);
   }
+}
+
+/** Small-signal transfer |Vout/Vin| (ratio) at `hertz` at the nominal operating point. */
+export function rippleTransfer(bench: Bench, hertz: number): number {
+  const { stage } = bench;
+  return withInputDrive(bench, hertz, 1, 'ripple rejection', (sys, singular) => {
+    if (singular !== 0) throw new RailcheckError([errorAt('ac-singular', `ripple rejection: small-signal matrix singular at ${hertz} Hz`, stage.supply.origin.pos)]);
+    return Math.hypot(vout(stage, sys.xRe), vout(stage, sys.xIm));
+  });
 }
 
 /**
@@ -78,27 +88,12 @@ export function rippleTransfer(bench: Bench, hertz: number): number {
  * as the ripple itself that decays with the stage's slowest time constant.
  */
 export function smallSignalStart(bench: Bench, hertz: number, amp: number): Float64Array {
-  const { stage } = bench;
-  const c = stage.compiled;
-  const saved = [...c.sources.values()].map((s) => [s, s.acMag, s.acPhaseDeg] as const);
-  try {
-    for (const [s] of saved) s.acMag = 0;
-    stage.input.acMag = amp;
-    stage.input.acPhaseDeg = 0;
-    backToNominal(bench);
-    const op = solveOperatingPoint(c, true);
-    if (!op.ok) throw new RailcheckError([opFailure(op, 'ripple: nominal operating point', stage.supply.origin)]);
-    const sys = linearise(c);
+  const c = bench.stage.compiled;
+  return withInputDrive(bench, hertz, amp, 'ripple', (sys, singular) => {
     const start = new Float64Array(c.ws.x);
-    if (solveAt(sys, hertz) === 0) for (let i = 1; i < start.length; i++) start[i] = start[i]! + sys.xIm[i]!;
+    if (singular === 0) for (let i = 1; i < start.length; i++) start[i] = start[i]! + sys.xIm[i]!;
     return start;
-  } finally {
-    for (const [s, mag, phase] of saved) {
-      s.acMag = mag;
-      s.acPhaseDeg = phase;
-    }
-    backToNominal(bench);
-  }
+  });
 }
 
 /** Output peak-to-peak (V) at periodic steady state with a sine of `amp` V at `hertz` on the input. */
@@ -108,8 +103,7 @@ export function rippleTransient(bench: Bench, hertz: number, amp: number): { out
   try {
     const initialSolution = smallSignalStart(bench, hertz, amp);
     stage.input.waveform = { kind: 'sin', vo: stage.nominalInput, va: amp, freq: hertz, td: 0, theta: 0, phaseDeg: 0 };
-    const out = (x: Float64Array): number => x[stage.outIndex]! - x[stage.refIndex]!;
-    const pss = runToPeriodicSteadyState(stage.compiled, { period: 1 / hertz, probes: [out], ppFloor: Math.max(1e-9, amp * 1e-7) }, 'ripple rejection (transient)', stage.supply.origin, { initialSolution });
+    const pss = runToPeriodicSteadyState(stage.compiled, { period: 1 / hertz, probes: [(x) => vout(stage, x)], ppFloor: Math.max(1e-9, amp * 1e-7) }, 'ripple rejection (transient)', stage.supply.origin, { initialSolution });
     const last = pss.last[0]!;
     return { outPp: last.max - last.min, cycles: pss.cycles };
   } finally {

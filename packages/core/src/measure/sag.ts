@@ -13,7 +13,8 @@ import { runTransient } from '../engine/transient.js';
 import { formatSI } from '../units.js';
 import { backToNominal, type Bench } from './bench.js';
 import { DEFAULT_DROPOUT_FALL } from './dropout.js';
-import { runToPeriodicSteadyState } from './periodic.js';
+import { MinMaxWindow, runToPeriodicSteadyState } from './periodic.js';
+import { vout } from './stage.js';
 import { smallSignalStart } from './ripple.js';
 
 /** Options of {@link sagRideThrough} (figures.md defaults). */
@@ -71,18 +72,6 @@ interface DipRun {
   outPpBefore: number | undefined;
 }
 
-/** Window statistics gathered during a run. */
-class Window {
-  min = Infinity;
-  max = -Infinity;
-  constructor(readonly from: number, readonly to: number) {}
-  add(t: number, v: number): void {
-    if (t < this.from - 1e-12 * this.to || t > this.to + 1e-12 * this.to) return;
-    if (v < this.min) this.min = v;
-    if (v > this.max) this.max = v;
-  }
-}
-
 function runDip(bench: Bench, depth: number, o: SagSettings, settleCycles: number, start: Float64Array | undefined): DipRun {
   const { stage } = bench;
   const nominal = stage.nominalInput;
@@ -92,11 +81,11 @@ function runDip(bench: Bench, depth: number, o: SagSettings, settleCycles: numbe
   const tEnd = t0 + 2 * o.edge + o.dur + 5 * o.edge;
   const dip: WaveformSpec = { kind: 'pwl', times: [0, t0, t0 + o.edge, t0 + o.edge + o.dur, t0 + 2 * o.edge + o.dur], values: [nominal, nominal, low, low, nominal] };
   const saved = stage.input.waveform;
-  const out = (x: Float64Array): number => bench.outputSign * (x[stage.outIndex]! - x[stage.refIndex]!);
-  const whole = new Window(t0, tEnd);
-  const before = new Window(t0 - period, t0);
+  const out = (x: Float64Array): number => bench.outputSign * vout(stage, x);
+  const whole = new MinMaxWindow(t0, tEnd);
+  const before = new MinMaxWindow(t0 - period, t0);
   const bottomEnd = Math.floor((t0 + o.edge + o.dur) / period + 1e-9) * period;
-  const during = new Window(bottomEnd - period, bottomEnd);
+  const during = new MinMaxWindow(bottomEnd - period, bottomEnd);
   const hasDuring = o.ripple > 0 && bottomEnd - period >= t0 + o.edge - 1e-12;
   try {
     backToNominal(bench);
@@ -147,8 +136,7 @@ export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThro
     try {
       start = smallSignalStart(bench, o.freq, o.ripple);
       stage.input.waveform = { kind: 'sin', vo: stage.nominalInput, va: o.ripple, freq: o.freq, td: 0, theta: 0, phaseDeg: 0 };
-      const out = (x: Float64Array): number => x[stage.outIndex]! - x[stage.refIndex]!;
-      settleCycles = runToPeriodicSteadyState(stage.compiled, { period: 1 / o.freq, probes: [out] }, 'sag: ripple before the dip', stage.supply.origin, { initialSolution: start }).cycles;
+      settleCycles = runToPeriodicSteadyState(stage.compiled, { period: 1 / o.freq, probes: [(x) => vout(stage, x)] }, 'sag: ripple before the dip', stage.supply.origin, { initialSolution: start }).cycles;
     } finally {
       stage.input.waveform = saved;
       backToNominal(bench);
