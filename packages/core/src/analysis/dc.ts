@@ -1,15 +1,16 @@
 /**
  * DC analyses: the operating point and the swept DC transfer curve, each
  * at one temperature. The sweep continues from point to point (the last
- * solution is the next first guess) and halves its step towards a point
- * that does not converge before falling back to the full operating-point
+ * solution is the next first guess), halving its step towards a point
+ * that does not converge and doubling it again after a success
+ * (engine/continuation.ts), before falling back to the full operating-point
  * strategy.
  */
 import { errorAt, RailcheckError, type Diagnostic } from '../errors.js';
 import type { CardOrigin } from '../netlist/ast.js';
 import type { CompiledCircuit } from '../engine/compile.js';
 import { solveOperatingPoint, type OpMethod, type OpOutcome } from '../engine/dcop.js';
-import { newtonSolve } from '../engine/newton.js';
+import { continueAlong, lerp } from '../engine/continuation.js';
 import { readSolution, type SolutionValues } from './solution.js';
 import { formatSI } from '../units.js';
 
@@ -59,28 +60,6 @@ export function operatingPoint(c: CompiledCircuit, temperature: number, origin?:
 /** Deepest step halving between two sweep points before the full strategy is tried. */
 const MAX_HALVINGS = 12;
 
-/** Moves the source from its present value to `target` by continuation; false if it cannot. */
-function continueTo(c: CompiledCircuit, set: (v: number) => void, from: number, target: number): boolean {
-  const saved = new Float64Array(c.ws.x);
-  let at = from;
-  let step = target - from;
-  let halvings = 0;
-  while (at !== target) {
-    const next = Math.abs(target - at) <= Math.abs(step) ? target : at + step;
-    set(next);
-    c.ws.ctx.initJunctions = false;
-    if (newtonSolve(c).converged) {
-      saved.set(c.ws.x);
-      at = next;
-    } else {
-      c.ws.x.set(saved);
-      if (++halvings > MAX_HALVINGS) return false;
-      step /= 2;
-    }
-  }
-  return true;
-}
-
 /**
  * Sweeps source `sourceKey` from `start` to `stop` by `step` (V or A) and
  * records every node and element current; restores the source's DC value.
@@ -101,7 +80,7 @@ export function dcSweep(c: CompiledCircuit, temperature: number, sourceKey: stri
     let last = Number.NaN;
     for (let k = 0; k < count; k++) {
       const v = start + k * step;
-      let ok = !Number.isNaN(last) && continueTo(c, set, last, v);
+      let ok = !Number.isNaN(last) && continueAlong(c, (lambda) => set(lerp(last, v, lambda)), MAX_HALVINGS);
       if (!ok) {
         set(v);
         const outcome = solveOperatingPoint(c, !Number.isNaN(last));

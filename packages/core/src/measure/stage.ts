@@ -8,7 +8,7 @@ import { isKind, type IndependentSource, type Resistor } from '@railcheck/device
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CompiledCircuit } from '../engine/compile.js';
 import type { FlatSupply } from '../elaborate/flat.js';
-import { newtonSolve } from '../engine/newton.js';
+import { continueAlong, lerp } from '../engine/continuation.js';
 import { solveOperatingPoint } from '../engine/dcop.js';
 import { opFailure } from '../analysis/dc.js';
 import { formatSI } from '../units.js';
@@ -115,29 +115,11 @@ export function solveSetting(stage: Stage, from: DcSetting, target: DcSetting, v
   const conductance = (s: DcSetting): number | undefined => (s.loadAmps === undefined ? undefined : s.loadAmps / voutNominal);
   const g0 = conductance(from);
   const g1 = conductance(target);
-  const at = (lambda: number): DcSetting => ({
-    vin: from.vin + (target.vin - from.vin) * lambda,
-    loadAmps: g0 === undefined || g1 === undefined ? target.loadAmps : (g0 + (g1 - g0) * lambda) * voutNominal,
-  });
-  const saved = new Float64Array(ws.x);
-  let lambda = 0;
-  let step = 1;
-  let halvings = 0;
-  while (lambda < 1) {
-    const next = Math.min(1, lambda + step);
-    applySetting(stage, at(next), voutNominal);
-    ws.ctx.initJunctions = false;
-    if (newtonSolve(c).converged) {
-      saved.set(ws.x);
-      lambda = next;
-      step = Math.min(1, step * 2);
-    } else {
-      ws.x.set(saved);
-      if (++halvings > MAX_HALVINGS) break;
-      step /= 2;
-    }
-  }
-  if (lambda >= 1) return;
+  const at = (lambda: number): DcSetting =>
+    lambda === 1
+      ? target
+      : { vin: lerp(from.vin, target.vin, lambda), loadAmps: g0 === undefined || g1 === undefined ? target.loadAmps : lerp(g0, g1, lambda) * voutNominal };
+  if (continueAlong(c, (lambda) => applySetting(stage, at(lambda), voutNominal), MAX_HALVINGS)) return;
   applySetting(stage, target, voutNominal);
   const outcome = solveOperatingPoint(c, true);
   if (!outcome.ok) throw new RailcheckError([opFailure(outcome, `${what} (input ${formatSI(target.vin, 'V')})`, stage.supply.origin)]);
