@@ -204,6 +204,35 @@ describe('singular matrices', () => {
   });
 });
 
+/**
+ * An integer matrix whose last row is a combination of the others (exactly
+ * singular), the same with its last entry lifted by δ (regular, det = δ·minor),
+ * and power-of-two exponents (|e| ≤ maxExp) for scaling rows or columns
+ * exactly. The leading block is kept well conditioned.
+ */
+const dependentPair = (maxExp: number) =>
+  fc
+    .integer({ min: 2, max: 8 })
+    .chain((n) =>
+      fc.tuple(
+        fc.array(fc.array(fc.integer({ min: -9, max: 9 }), { minLength: n, maxLength: n }), { minLength: n - 1, maxLength: n - 1 }),
+        fc.array(fc.integer({ min: -3, max: 3 }).filter((k) => k !== 0), { minLength: n - 1, maxLength: n - 1 }),
+        fc.array(fc.integer({ min: -maxExp, max: maxExp }), { minLength: n, maxLength: n }),
+        fc.double({ min: 0.01, max: 1, noNaN: true }),
+      ),
+    )
+    .map(([top, c, exps, delta]) => {
+      const n = top.length + 1;
+      const last = Array.from({ length: n }, (_, j) => top.reduce((s, r, i) => s + c[i]! * r[j]!, 0));
+      const dependent = [...top, last];
+      const lifted = [...top, last.map((v, j) => (j === n - 1 ? v + delta : v))];
+      return { n, dependent, lifted, exps };
+    })
+    .filter(({ n, dependent }) => {
+      const lead = new ml.SingularValueDecomposition(new ml.Matrix(dependent.map((r) => r.slice(0, n - 1))));
+      return lead.rank === n - 1 && lead.condition < 30;
+    });
+
 describe('relative pivot tolerance', () => {
   const scales = [1e-9, 1, 1e9];
   // [[1, 1], [1, 1 + δ]] leaves the pivot δ in column 2, whose largest entry is ≈ 1.
@@ -233,24 +262,10 @@ describe('relative pivot tolerance', () => {
   });
 
   test('a rank-deficient matrix stays singular under column scalings from ~1e-9 to ~1e9 (megohms and milliohms alike)', () => {
-    const int = fc.integer({ min: -9, max: 9 });
     fc.assert(
       fc.property(
-        fc.integer({ min: 2, max: 8 }).chain((n) =>
-          fc.tuple(
-            fc.array(fc.array(int, { minLength: n, maxLength: n }), { minLength: n - 1, maxLength: n - 1 }),
-            fc.array(fc.integer({ min: -3, max: 3 }).filter((k) => k !== 0), { minLength: n - 1, maxLength: n - 1 }),
-            fc.array(fc.integer({ min: -30, max: 30 }), { minLength: n, maxLength: n }),
-            fc.double({ min: 0.01, max: 1, noNaN: true }),
-          ),
-        ),
-        ([top, c, exps, delta]) => {
-          const n = top.length + 1;
-          const last = Array.from({ length: n }, (_, j) => top.reduce((s, r, i) => s + c[i]! * r[j]!, 0));
-          const dependent = [...top, last];
-          const lead = new ml.SingularValueDecomposition(new ml.Matrix(dependent.map((r) => r.slice(0, n - 1))));
-          fc.pre(lead.rank === n - 1 && lead.condition < 30);
-          const lifted = [...top, last.map((v, j) => (j === n - 1 ? v + delta : v))];
+        dependentPair(30),
+        ({ n, dependent, lifted, exps }) => {
           // Powers of two (2^±30 ≈ 1e±9) scale exactly, so an exactly singular matrix stays so.
           const colScaled = (m: number[][]): number[][] => m.map((r) => r.map((v, j) => v * 2 ** exps[j]!));
           expect(engineSolve(colScaled(dependent), Array(n).fill(1)).singular).toBe(n);
@@ -264,24 +279,10 @@ describe('relative pivot tolerance', () => {
   });
 
   test('row scaling from ~1e-12 to ~1e12 keeps the verdict too (KCL rows in amps, branch rows in volts)', () => {
-    const int = fc.integer({ min: -9, max: 9 });
     fc.assert(
       fc.property(
-        fc.integer({ min: 2, max: 8 }).chain((n) =>
-          fc.tuple(
-            fc.array(fc.array(int, { minLength: n, maxLength: n }), { minLength: n - 1, maxLength: n - 1 }),
-            fc.array(fc.integer({ min: -3, max: 3 }).filter((k) => k !== 0), { minLength: n - 1, maxLength: n - 1 }),
-            fc.array(fc.integer({ min: -40, max: 40 }), { minLength: n, maxLength: n }),
-            fc.double({ min: 0.01, max: 1, noNaN: true }),
-          ),
-        ),
-        ([top, c, exps, delta]) => {
-          const n = top.length + 1;
-          const last = Array.from({ length: n }, (_, j) => top.reduce((s, r, i) => s + c[i]! * r[j]!, 0));
-          const dependent = [...top, last];
-          const lead = new ml.SingularValueDecomposition(new ml.Matrix(dependent.map((r) => r.slice(0, n - 1))));
-          fc.pre(lead.rank === n - 1 && lead.condition < 30);
-          const lifted = [...top, last.map((v, j) => (j === n - 1 ? v + delta : v))];
+        dependentPair(40),
+        ({ n, dependent, lifted, exps }) => {
           const rowScaled = (m: number[][]): number[][] => m.map((r, i) => r.map((v) => v * 2 ** exps[i]!));
           expect(engineSolve(rowScaled(dependent), Array(n).fill(1)).singular).not.toBe(0);
           const { singular, x } = engineSolve(rowScaled(lifted), rowScaled(lifted).map((r) => r.reduce((s, v) => s + v, 0)));
