@@ -42,8 +42,8 @@ export { linearise, solveAt } from './engine/ac.js';
 export type { SmallSignalSystem } from './engine/ac.js';
 export { complexLuFactor, complexLuSolve, createComplexLuWorkspace } from './engine/complex-lu.js';
 export type { ComplexLuWorkspace } from './engine/complex-lu.js';
-export { runNetlist, runNetlistFile, prepare, analyse } from './analysis/run.js';
-export type { RunReport, RunResult } from './analysis/run.js';
+export { runNetlist, runNetlistFile, prepare, analyse } from './pipeline/run.js';
+export type { RunReport, RunResult } from './pipeline/run.js';
 export { safetyWarnings, MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/safety.js';
 
 export { formatSI } from './units.js';

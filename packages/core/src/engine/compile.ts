@@ -16,14 +16,10 @@ import type { FlatCircuit, FlatElement } from '../elaborate/flat.js';
 import { GROUND_KEY } from '../elaborate/flat.js';
 import { createWorkspace, type Workspace } from './workspace.js';
 import { checkTopology } from './topology.js';
+import type { UnknownInfo } from './unknowns.js';
 
-/** What an unknown of the solution vector stands for. */
-export interface UnknownInfo {
-  /** `node`: a circuit node voltage; `internal`: a device's internal node; `branch`: a branch current. */
-  readonly kind: 'node' | 'internal' | 'branch';
-  /** Name for reports: the node name, or `R1#int`-style labels for device unknowns. */
-  readonly name: string;
-}
+export type { UnknownInfo };
+
 
 /** A circuit ready for analysis. */
 export interface CompiledCircuit {

@@ -8,7 +8,7 @@
 import type { Device } from '@railcheck/devices';
 import { errorAt, type Diagnostic } from '../errors.js';
 import type { FlatCircuit } from '../elaborate/flat.js';
-import type { UnknownInfo } from './compile.js';
+import type { UnknownInfo } from './unknowns.js';
 
 function makeSets(n: number): { find: (i: number) => number; union: (a: number, b: number) => boolean } {
   const parent = Int32Array.from({ length: n }, (_, i) => i);

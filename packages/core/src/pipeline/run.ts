@@ -9,11 +9,11 @@ import { elaborate } from '../elaborate/elaborate.js';
 import type { FlatCircuit } from '../elaborate/flat.js';
 import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
-import { dcSweep, operatingPoint, type DcSweep, type OperatingPoint } from './dc.js';
-import { safetyWarnings } from './safety.js';
+import { dcSweep, operatingPoint, type DcSweep, type OperatingPoint } from '../analysis/dc.js';
+import { safetyWarnings } from '../analysis/safety.js';
 import { measureFigures, type FigureReport } from '../measure/figures.js';
-import { transient, type TransientResult } from './tran.js';
-import { acFrequencies, acSweep, type AcResult } from './ac.js';
+import { transient, type TransientResult } from '../analysis/tran.js';
+import { acFrequencies, acSweep, type AcResult } from '../analysis/ac.js';
 
 /** Everything a run produced. */
 export interface RunReport {
