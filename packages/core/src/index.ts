@@ -48,7 +48,9 @@ export { safetyWarnings, MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/sa
 
 export { formatSI } from './units.js';
 
-export { measureFigures, checkLimits, figureUnit } from './measure/figures.js';
+export { FIGURES, FIGURE_KIND_INFO, FIGURE_KINDS, BENCH_KINDS, figureEntry, figureKindOf, figureUnit } from './figure-registry.js';
+export type { FigureEntry, FigureKindInfo, FigureKey, FigureNumberKey, FigureMethodKey, FigureUnit, Better, BenchKind } from './figure-registry.js';
+export { measureFigures, checkLimits } from './measure/figures.js';
 export type { FigureReport, MeasuredFigure, MeasuredFigureWithUnits, LimitResult } from './measure/figures.js';
 export { createDcBench, voutAt, backToNominal } from './measure/bench.js';
 export type { Bench } from './measure/bench.js';

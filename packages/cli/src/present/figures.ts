@@ -3,25 +3,22 @@
  * figure with its unit and the conditions it was measured at, each limit
  * with pass or FAIL, and a one-line verdict.
  */
-import { figureUnit, formatSI, type FigureReport, type LimitResult, type RunReport } from '@railcheck/core';
+import { FIGURE_KIND_INFO, figureEntry, formatSI, type FigureReport, type FigureUnit, type LimitResult, type RunReport } from '@railcheck/core';
+import { match } from 'ts-pattern';
 import { heading, table } from './table.js';
 
-const FIGURE_TITLES: Readonly<Record<string, string>> = {
-  line: 'line regulation',
-  load: 'load regulation',
-  dropout: 'dropout',
-  ripple: 'ripple rejection',
-  dissipation: 'dissipation',
-  sag: 'input-dip ride-through',
-};
-
-/** A figure value with its unit: SI prefixes for V, A, W, Ω; fixed decimals for dB and percentages. */
-export function formatFigureValue(name: string, value: number, unit = figureUnit(name)): string {
-  if (unit === 'dB') return `${value.toFixed(2)} dB`;
-  if (unit === '%' || unit === '%/V') return `${Number(value.toPrecision(4))} ${unit}`;
-  if (name === 'sag.pass') return value === 1 ? '1 (holds)' : '0 (falls too far)';
-  if (unit === '') return `${Number(value.toPrecision(4))}`;
-  return formatSI(value, unit);
+/** A figure value with its unit (figure registry): SI prefixes for V, V/V, Ω, W; fixed decimals for dB and percentages; a flag with its words. */
+export function formatFigureValue(name: string, value: number, unit: FigureUnit): string {
+  return match(unit)
+    .with('dB', () => `${value.toFixed(2)} dB`)
+    .with('%', '%/V', (u) => `${Number(value.toPrecision(4))} ${u}`)
+    .with('flag', () => {
+      const words = figureEntry(name)?.flagWords;
+      return words ? `${value} (${value === 1 ? words.one : words.zero})` : `${value}`;
+    })
+    .with('ratio', () => `${Number(value.toPrecision(4))}`)
+    .with('V', 'V/V', 'Ω', 'W', (u) => formatSI(value, u))
+    .exhaustive();
 }
 
 /** The stage section: input, output and load. */
@@ -53,8 +50,8 @@ export function formatStage(report: RunReport): string {
 export function formatFigures(figures: FigureReport, temperature: number): string {
   const lines = [heading(`Figures at ${temperature} °C`)];
   for (const f of figures.figures) {
-    lines.push(`  ${FIGURE_TITLES[f.kind] ?? f.kind} — ${f.conditions}`);
-    lines.push(table(Object.entries(f.values).map(([n, v]) => [n, formatFigureValue(n, v, f.units[n])]), '      '));
+    lines.push(`  ${FIGURE_KIND_INFO[f.kind].title} — ${f.conditions}`);
+    lines.push(table(Object.entries(f.values).map(([n, v]) => [n, formatFigureValue(n, v, f.units[n]!)]), '      '));
   }
   return lines.join('\n');
 }
@@ -62,9 +59,10 @@ export function formatFigures(figures: FigureReport, temperature: number): strin
 /** The limits table and verdict. */
 export function formatLimits(limits: readonly LimitResult[], figures: FigureReport): string {
   if (limits.length === 0) return '';
-  const unitOf = (name: string): string | undefined => {
+  // A limit's figure was measured (checkLimits refuses one that was not), so its unit is among the measured ones.
+  const unitOf = (name: string): FigureUnit => {
     for (const f of figures.figures) for (const [n, u] of Object.entries(f.units)) if (n.toLowerCase() === name.toLowerCase()) return u;
-    return undefined;
+    throw new Error(`no unit for the limit on ${name}: it was not measured`);
   };
   const rows = [['limit', 'measured', 'result'], ...limits.map((l) => [`${l.figure} ${l.op} ${l.value}`, formatFigureValue(l.figure, l.actual, unitOf(l.figure)), l.pass ? 'pass' : 'FAIL'])];
   const failed = limits.filter((l) => !l.pass).length;

@@ -10,6 +10,7 @@ import type { CompiledCircuit } from '../engine/compile.js';
 import type { FlatFigure, FlatLimit } from '../elaborate/flat.js';
 import type { FigureKind, LimitOp } from '../netlist/ast.js';
 import { formatSI } from '../units.js';
+import { FIGURE_KIND_INFO, figureUnit, type BenchKind, type FigureUnit } from '../figure-registry.js';
 import { createDcBench, type Bench } from './bench.js';
 import { lineRegulation, loadRegulation } from './regulation.js';
 import { dropout, fallVolts } from './dropout.js';
@@ -27,9 +28,9 @@ export interface MeasuredFigure {
   readonly conditions: string;
 }
 
-/** A measured figure with the unit of each value ('' for plain ratios). */
+/** A measured figure with the unit of each value (from the figure registry). */
 export interface MeasuredFigureWithUnits extends MeasuredFigure {
-  readonly units: Readonly<Record<string, string>>;
+  readonly units: Readonly<Record<string, FigureUnit>>;
 }
 
 /** The result of one `.limit`. */
@@ -55,19 +56,11 @@ export interface FigureReport {
   readonly sineFed: boolean;
 }
 
-/** Unit of a figure value, by name; on a sine-fed stage `dropout.headroom` is a ratio of the amplitude. */
-export function figureUnit(name: string, sineFed = false): string {
-  const n = name.toLowerCase();
-  if (n.startsWith('pd.')) return 'W';
-  if (sineFed && n === 'dropout.headroom') return '';
-  const table: Record<string, string> = {
-    'line.delta': 'V', 'line.slope': 'V/V', 'line.pct_per_v': '%/V', 'line.pct': '%',
-    'load.delta': 'V', 'load.pct': '%', 'load.rout': 'Ω',
-    'dropout.vin': 'V', 'dropout.v': 'V', 'dropout.headroom': 'V', 'dropout.ratio': '', 'headroom.min': 'V',
-    'ripple.rr': 'dB', 'ripple.rr_tran': 'dB', 'ripple.out_pp': 'V', 'ripple.feed_pp': 'V',
-    efficiency: '', 'sag.fall': 'V', 'sag.pass': '', 'sag.max_depth': '', 'sag.out_pp': 'V', 'sag.out_pp_before': 'V',
-  };
-  return table[n] ?? '';
+/** Unit of a measured value from the figure registry; a name the registry does not give for this bench kind is an internal error, never an empty unit. */
+function unitOf(name: string, bench: BenchKind): FigureUnit {
+  const unit = figureUnit(name, bench);
+  if (unit === undefined) throw new RailcheckError([errorAt('internal', `internal error: the figure registry has no unit for ${name} on a ${bench} bench`)]);
+  return unit;
 }
 
 const amps = (a: number): string => formatSI(a, 'A');
@@ -151,6 +144,15 @@ export function checkLimits(limits: readonly FlatLimit[], values: Readonly<Recor
   });
 }
 
+/** A note for every key of a `.figure` line that the measurement on this kind of bench does not read (figure registry). */
+export function unusedKeyNotes(f: FlatFigure, bench: BenchKind): Diagnostic[] {
+  const info = FIGURE_KIND_INFO[f.figure].keys;
+  const given = [...f.keys.keys(), ...(f.method !== undefined ? ['method'] : [])];
+  return given
+    .filter((k) => info[k] !== undefined && !info[k].benches.includes(bench))
+    .map((k) => warningAt('unused-key', `${f.figure}: ${k}= is not used on a ${bench} stage (figures.md, "Stages fed from a transformer secondary")`, f.origin.pos, f.origin.lineText));
+}
+
 /** Measures every figure of the compiled circuit's netlist and checks its limits. Throws RailcheckError. */
 export function measureFigures(c: CompiledCircuit): FigureReport {
   const flat = c.flat;
@@ -161,6 +163,7 @@ export function measureFigures(c: CompiledCircuit): FigureReport {
   if (flat.figures.length > 0) {
     const supplyInput = flat.supply ? c.sources.get(flat.supply.input) : undefined;
     sineFed = supplyInput?.waveform?.kind === 'sin';
+    for (const f of flat.figures) warnings.push(...unusedKeyNotes(f, sineFed ? 'sine-fed' : 'dc'));
     if (sineFed) {
       const bench: AcBench = createAcBench(c);
       voutNominal = bench.voutNominal;
@@ -171,7 +174,7 @@ export function measureFigures(c: CompiledCircuit): FigureReport {
       for (const f of flat.figures) measured.push(measureDc(bench, f, flat.figures, warnings));
     }
   }
-  const figures = measured.map((f) => ({ ...f, units: Object.fromEntries(Object.keys(f.values).map((n) => [n, figureUnit(n, sineFed)])) }));
+  const figures = measured.map((f) => ({ ...f, units: Object.fromEntries(Object.keys(f.values).map((n) => [n, unitOf(n, sineFed ? 'sine-fed' : 'dc')])) }));
   const values: Record<string, number> = {};
   for (const f of figures) Object.assign(values, f.values);
   return { figures, values, limits: checkLimits(flat.limits, values), warnings, voutNominal, sineFed };

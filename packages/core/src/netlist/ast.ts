@@ -4,6 +4,7 @@
  * (parse) produces these; the elaborator turns them into a flat circuit.
  */
 import type { SourcePos } from '../errors.js';
+import type { FigureKind } from '../figure-registry.js';
 
 /** Where a card came from: its position and the quoted logical line. */
 export interface CardOrigin {
@@ -143,8 +144,8 @@ export type AnalysisCard =
   | (CardOrigin & { readonly kind: 'ac'; readonly variation: 'dec' | 'lin'; readonly points: Value; readonly fstart: Value; readonly fstop: Value })
   | (CardOrigin & { readonly kind: 'temp'; readonly temps: readonly Value[] });
 
-/** Kinds of power-supply figure (figures.md). */
-export type FigureKind = 'line' | 'load' | 'dropout' | 'ripple' | 'dissipation' | 'sag';
+/** Kinds of power-supply figure (figures.md); the figure registry defines them. */
+export type { FigureKind };
 
 /** Comparison of a `.limit`. */
 export type LimitOp = '<' | '<=' | '>' | '>=';

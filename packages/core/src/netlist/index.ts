@@ -22,7 +22,7 @@ export type * from './ast.js';
 export { evaluateExpr, printExpr, parseExpr, EXPR_FUNCTIONS, MAX_EXPR_NESTING, MAX_EXPR_HEIGHT } from './expr.js';
 export { parseScaledNumber } from './numbers.js';
 export { printNetlist, printValue } from './print.js';
-export { figureKindOf, FIGURE_KEYS, FIGURE_KINDS } from './parse-supply.js';
+export { figureKindOf, FIGURE_KINDS } from './parse-supply.js';
 export { TRAN_FLAGS } from './parse-directives.js';
 export { MAX_ERRORS, MAX_INPUT_LENGTH, MAX_SUBCKT_NESTING } from './reader.js';
 export { MAX_INCLUDE_DEPTH } from './include.js';

@@ -3,40 +3,14 @@
  * directives; figures.md): `.supply`, `.figure`, `.limit`, `.spread`.
  */
 import { BJT_PARAMS, DIODE_PARAMS } from '@railcheck/devices';
-import type { Assignments, FigureKind, LimitOp, SupplyCard } from './ast.js';
+import type { Assignments, LimitOp, SupplyCard } from './ast.js';
+import { FIGURE_KIND_INFO, FIGURE_KINDS, figureKindOf } from '../figure-registry.js';
 import type { Cursor, ValueRules } from './cursor.js';
 import { show } from './cursor.js';
 import type { Token } from './lexer.js';
 
-/** Kinds of `.figure`, with the keys each accepts (figures.md). `true` marks keys that accept `5%`. */
-export const FIGURE_KEYS: Readonly<Record<FigureKind, Readonly<Record<string, boolean>>>> = {
-  line: { from: false, to: false },
-  load: { from: false, to: false },
-  dropout: { fall: true },
-  ripple: { freq: false, amp: false },
-  dissipation: {},
-  sag: { depth: true, dur: false, edge: false, fall: true, ripple: false, freq: false },
-};
-
-/** Figure kinds in the order figures.md lists them. */
-export const FIGURE_KINDS = Object.keys(FIGURE_KEYS) as FigureKind[];
-
-/** Every fixed figure name (figures.md) and the `.figure` kind that produces it; `pd.<element>` is handled apart. */
-const FIGURE_NAMES: Readonly<Record<string, FigureKind>> = {
-  'line.delta': 'line', 'line.slope': 'line', 'line.pct_per_v': 'line', 'line.pct': 'line',
-  'load.delta': 'load', 'load.pct': 'load', 'load.rout': 'load',
-  'dropout.vin': 'dropout', 'dropout.v': 'dropout', 'dropout.headroom': 'dropout', 'dropout.ratio': 'dropout', 'headroom.min': 'dropout',
-  'ripple.rr': 'ripple', 'ripple.rr_tran': 'ripple', 'ripple.out_pp': 'ripple', 'ripple.feed_pp': 'ripple',
-  efficiency: 'dissipation',
-  'sag.fall': 'sag', 'sag.pass': 'sag', 'sag.max_depth': 'sag', 'sag.out_pp': 'sag', 'sag.out_pp_before': 'sag',
-};
-
-/** The `.figure` kind that produces a figure name (any case), or undefined for a name no figure has. */
-export function figureKindOf(name: string): FigureKind | undefined {
-  const low = name.toLowerCase();
-  if (/^pd\.[^.]+(\.[^.]+)*$/.test(low)) return 'dissipation';
-  return Object.prototype.hasOwnProperty.call(FIGURE_NAMES, low) ? FIGURE_NAMES[low] : undefined;
-}
+/** The `.figure` kinds and figure names come from the figure registry. */
+export { figureKindOf, FIGURE_KINDS };
 
 /** The element's own name in an instance path (`X1.R2` → `R2`): its first letter gives its kind. */
 export function leafName(name: string): string {
@@ -82,8 +56,8 @@ export function parseFigure(c: Cursor): SupplyCard {
   const kt = c.name('the figure kind', FIGURE_KINDS.join(', '));
   const figure = FIGURE_KINDS.find((k) => k === kt.text.toLowerCase());
   if (!figure) c.fail('unknown-figure', `unknown figure kind "${kt.text}"`, kt, `one of ${FIGURE_KINDS.join(', ')}`);
-  const table = FIGURE_KEYS[figure];
-  const names = [...Object.keys(table), ...(figure === 'ripple' ? ['method'] : [])];
+  const table = FIGURE_KIND_INFO[figure].keys;
+  const names = Object.keys(table);
   const known = names.length ? names.join(', ') : `no keys (a ${figure} figure takes none)`;
   let method: 'ac' | 'tran' | 'both' | undefined;
   const keys: Array<Assignments[number]> = [];
@@ -92,16 +66,17 @@ export function parseFigure(c: Cursor): SupplyCard {
     if (!c.atAssignment()) c.fail('syntax', `unexpected ${show(c.peek())}`, c.peek(), `key=value pairs (${known})`);
     const { key, value } = c.rawAssignment();
     const k = key.text.toLowerCase();
-    if (!names.includes(k)) c.fail('unknown-key', `a ${figure} figure has no key "${key.text}"`, key, known);
+    const entry = Object.prototype.hasOwnProperty.call(table, k) ? table[k] : undefined;
+    if (!entry) c.fail('unknown-key', `a ${figure} figure has no key "${key.text}"`, key, known);
     if (seen.has(k)) c.fail('duplicate-key', `"${key.text}" is given twice`, key, 'each key at most once');
     seen.add(k);
-    if (k === 'method') {
-      const m = value.kind === 'word' ? value.text.toLowerCase() : '';
-      if (m !== 'ac' && m !== 'tran' && m !== 'both') c.fail('syntax', `method=${value.text}: unknown method`, value, 'ac, tran or both');
+    if (entry.value === 'method') {
+      const m = value.kind === 'word' ? entry.words.find((w) => w === value.text.toLowerCase()) : undefined;
+      if (!m) c.fail('syntax', `${k}=${value.text}: unknown method`, value, entry.words.join(', ').replace(/, (\w+)$/, ' or $1'));
       method = m;
       continue;
     }
-    const rules: ValueRules = { percent: table[k] === true };
+    const rules: ValueRules = { percent: entry.percent };
     keys.push({ name: k, value: c.toValue(value, `a value for ${k}`, `${k}=<number or {expression}>`, rules), pos: key.pos });
   }
   return { ...origin, kind: 'figure', figure, keys, ...(method ? { method } : {}) };

@@ -1,0 +1,158 @@
+/**
+ * The one table of power-supply figures (figures.md): every dotted figure
+ * name, the `.figure` kind that produces it, its unit on each kind of
+ * bench, which way it is better, a title and a one-line definition; and
+ * every `.figure` kind with its title and keys. The netlist reader, the
+ * measuring code, the presenters and docs/figures.md (checked by a test)
+ * all read this table. It imports nothing, so every layer of core may.
+ */
+
+/** A `.figure` kind (figures.md). */
+export type FigureKind = 'line' | 'load' | 'dropout' | 'ripple' | 'dissipation' | 'sag';
+
+/**
+ * How a stage is measured: `dc`, by DC solutions (a DC input); `sine-fed`,
+ * at periodic steady state (a `sin` input: a stage fed from a transformer
+ * secondary, figures.md).
+ */
+export type BenchKind = 'dc' | 'sine-fed';
+
+/** Both bench kinds, in the order figures.md describes them. */
+export const BENCH_KINDS: readonly BenchKind[] = ['dc', 'sine-fed'];
+
+/**
+ * Unit of a figure value: SI units (V, Ω, W), V/V, percent (`%`, `%/V`:
+ * values are in percent, 1 = 1 %), dB; `ratio` is a plain number (0.5 =
+ * half); `flag` is 1 or 0.
+ */
+export type FigureUnit = 'V' | 'V/V' | '%/V' | '%' | 'Ω' | 'dB' | 'W' | 'ratio' | 'flag';
+
+/** Which way a value is better: `lower`, `higher`, or `none` (a condition of the measurement, not a merit). */
+export type Better = 'lower' | 'higher' | 'none';
+
+/** One figure value's entry. */
+export interface FigureEntry {
+  /** Dotted name as figures.md writes it, lower case; a pattern entry writes its variable part in angle brackets (`pd.<element>`). */
+  readonly name: string;
+  /** For a pattern entry, the lower-case names it stands for. */
+  readonly pattern?: RegExp;
+  /** The `.figure` kind that produces it. */
+  readonly kind: FigureKind;
+  /** Unit on each bench kind that produces the value; a bench kind that is absent does not produce it. */
+  readonly units: Readonly<Partial<Record<BenchKind, FigureUnit>>>;
+  /** Which way the value is better. */
+  readonly better: Better;
+  /** A short title. */
+  readonly title: string;
+  /** One line of definition (figures.md has the full one). */
+  readonly doc: string;
+  /** For a `flag`: the words reports print beside 1 and 0. */
+  readonly flagWords?: { readonly one: string; readonly zero: string };
+}
+
+const both = (unit: FigureUnit): Readonly<Partial<Record<BenchKind, FigureUnit>>> => ({ dc: unit, 'sine-fed': unit });
+
+/** Every figure value, in the order figures.md lists them. */
+export const FIGURES: readonly FigureEntry[] = [
+  { name: 'line.delta', kind: 'line', units: both('V'), better: 'lower', title: 'output change over the line range', doc: 'Vout(to) − Vout(from) at nominal load (the mean output on a sine-fed stage)' },
+  { name: 'line.slope', kind: 'line', units: { dc: 'V/V' }, better: 'lower', title: 'line slope', doc: 'line.delta / (to − from)' },
+  { name: 'line.pct_per_v', kind: 'line', units: { dc: '%/V' }, better: 'lower', title: 'line regulation per volt', doc: '100 · line.slope / Vout_nom' },
+  { name: 'line.pct', kind: 'line', units: { 'sine-fed': '%' }, better: 'lower', title: 'line regulation over the amplitude range', doc: '100 · line.delta / Vout_nom' },
+  { name: 'load.delta', kind: 'load', units: both('V'), better: 'lower', title: 'output droop over the load range', doc: 'Vout(from) − Vout(to) at nominal input; positive when the output droops' },
+  { name: 'load.pct', kind: 'load', units: both('%'), better: 'lower', title: 'load regulation', doc: '100 · load.delta / Vout(from)' },
+  { name: 'load.rout', kind: 'load', units: both('Ω'), better: 'lower', title: 'output resistance', doc: 'load.delta / (to − from)' },
+  { name: 'dropout.vin', kind: 'dropout', units: { dc: 'V' }, better: 'lower', title: 'dropout input', doc: 'the input Vin* at which Vout = Vout_nom − fall' },
+  { name: 'dropout.v', kind: 'dropout', units: { dc: 'V' }, better: 'lower', title: 'dropout voltage', doc: 'Vin* − Vout(Vin*), the input-output differential' },
+  { name: 'dropout.headroom', kind: 'dropout', units: { dc: 'V', 'sine-fed': 'ratio' }, better: 'higher', title: 'headroom above dropout', doc: 'nominal input − Vin* (V); on a sine-fed stage 1 − dropout.ratio (ratio)' },
+  { name: 'dropout.ratio', kind: 'dropout', units: { 'sine-fed': 'ratio' }, better: 'lower', title: 'dropout amplitude ratio', doc: 'the lowest amplitude ratio at which the stage still holds its output' },
+  { name: 'headroom.min', kind: 'dropout', units: { 'sine-fed': 'V' }, better: 'higher', title: 'least headroom over the cycle', doc: 'the least V(feed) − Vout over the nominal cycle' },
+  { name: 'ripple.rr', kind: 'ripple', units: both('dB'), better: 'higher', title: 'ripple rejection', doc: '−20·log10|Vout/Vin| small-signal (DC input); 20·log10(feed p-p / output p-p) on a sine-fed stage' },
+  { name: 'ripple.rr_tran', kind: 'ripple', units: { dc: 'dB' }, better: 'higher', title: 'ripple rejection, transient', doc: '20·log10(input p-p / output p-p) with a sine on the input, at periodic steady state' },
+  { name: 'ripple.out_pp', kind: 'ripple', units: both('V'), better: 'lower', title: 'output ripple', doc: 'output peak-to-peak at periodic steady state' },
+  { name: 'ripple.feed_pp', kind: 'ripple', units: { 'sine-fed': 'V' }, better: 'none', title: 'feed ripple', doc: 'peak-to-peak of V(feed) at nominal, the ripple the regulator works against' },
+  { name: 'pd.<element>', pattern: /^pd\.[^.]+(\.[^.]+)*$/, kind: 'dissipation', units: both('W'), better: 'lower', title: 'dissipation', doc: 'the largest power the element absorbs at nominal and at the worst line and load corners' },
+  { name: 'efficiency', kind: 'dissipation', units: both('ratio'), better: 'higher', title: 'efficiency', doc: 'power into the load / power out of the input source, at nominal' },
+  { name: 'sag.fall', kind: 'sag', units: both('V'), better: 'lower', title: 'output fall in the dip', doc: 'Vout_nom − the lowest Vout from the start of the dip until 5·edge after recovery' },
+  { name: 'sag.pass', kind: 'sag', units: both('flag'), better: 'higher', title: 'rides through', doc: '1 when sag.fall ≤ fall, else 0', flagWords: { one: 'holds', zero: 'falls too far' } },
+  { name: 'sag.max_depth', kind: 'sag', units: both('ratio'), better: 'higher', title: 'deepest dip ridden through', doc: 'the deepest dip of the same shape with sag.fall ≤ fall' },
+  { name: 'sag.out_pp', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple in the dip', doc: 'output peak-to-peak over the last whole ripple cycle of the dip' },
+  { name: 'sag.out_pp_before', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple before the dip', doc: 'output peak-to-peak over the last whole ripple cycle before the dip' },
+];
+
+/** A numeric `.figure` key: `percent` when it may be written as `5%` (a ratio). */
+export interface FigureNumberKey {
+  readonly value: 'number';
+  readonly percent: boolean;
+  /** The bench kinds whose measurement reads the key. */
+  readonly benches: readonly BenchKind[];
+  readonly doc: string;
+}
+
+/** The word key `method=ac|tran|both` of the ripple figure. */
+export interface FigureMethodKey {
+  readonly value: 'method';
+  readonly words: readonly ['ac', 'tran', 'both'];
+  readonly benches: readonly BenchKind[];
+  readonly doc: string;
+}
+
+/** A `.figure` key. */
+export type FigureKey = FigureNumberKey | FigureMethodKey;
+
+/** One `.figure` kind: its title in reports and its keys. */
+export interface FigureKindInfo {
+  readonly title: string;
+  readonly keys: Readonly<Record<string, FigureKey>>;
+}
+
+const DC_ONLY: readonly BenchKind[] = ['dc'];
+const num = (percent: boolean, doc: string, benches: readonly BenchKind[] = BENCH_KINDS): FigureNumberKey => ({ value: 'number', percent, benches, doc });
+
+/** Every `.figure` kind with its keys (figures.md), in the order figures.md lists them. */
+export const FIGURE_KIND_INFO: Readonly<Record<FigureKind, FigureKindInfo>> = {
+  line: { title: 'line regulation', keys: { from: num(false, 'low end: input V, or amplitude ratio on a sine-fed stage'), to: num(false, 'high end, likewise') } },
+  load: { title: 'load regulation', keys: { from: num(false, 'first load current, A'), to: num(false, 'second load current, A') } },
+  dropout: { title: 'dropout', keys: { fall: num(true, 'output fall that defines dropout: V, or a % of Vout_nom') } },
+  ripple: {
+    title: 'ripple rejection',
+    keys: {
+      freq: num(false, 'ripple frequency, Hz', DC_ONLY),
+      amp: num(false, 'ripple amplitude, V peak', DC_ONLY),
+      method: { value: 'method', words: ['ac', 'tran', 'both'], benches: DC_ONLY, doc: 'small-signal, transient or both' },
+    },
+  },
+  dissipation: { title: 'dissipation', keys: {} },
+  sag: {
+    title: 'input-dip ride-through',
+    keys: {
+      depth: num(true, 'dip depth, ratio of the nominal input (or amplitude)'),
+      dur: num(false, 'time at the bottom of the dip, s (whole cycles on a sine-fed stage)'),
+      edge: num(false, 'fall and recovery time, s'),
+      fall: num(true, 'largest acceptable output fall: V, or a % of Vout_nom'),
+      ripple: num(false, 'ripple riding on the input, V peak', DC_ONLY),
+      freq: num(false, 'frequency of that ripple, Hz', DC_ONLY),
+    },
+  },
+};
+
+/** Figure kinds in the order figures.md lists them. */
+export const FIGURE_KINDS: readonly FigureKind[] = Object.keys(FIGURE_KIND_INFO) as FigureKind[];
+
+const BY_NAME = new Map(FIGURES.filter((e) => !e.pattern).map((e) => [e.name, e] as const));
+const PATTERNS = FIGURES.filter((e) => e.pattern);
+
+/** The entry of a figure name (any case; `pd.Q1` finds `pd.<element>`), or undefined for a name no figure has. */
+export function figureEntry(name: string): FigureEntry | undefined {
+  const low = name.toLowerCase();
+  return BY_NAME.get(low) ?? PATTERNS.find((e) => e.pattern!.test(low));
+}
+
+/** The `.figure` kind that produces a figure name (any case), or undefined for a name no figure has. */
+export function figureKindOf(name: string): FigureKind | undefined {
+  return figureEntry(name)?.kind;
+}
+
+/** Unit of a figure value on a bench kind; undefined when no figure has that name or that bench kind does not produce it. */
+export function figureUnit(name: string, bench: BenchKind): FigureUnit | undefined {
+  return figureEntry(name)?.units[bench];
+}
