@@ -1,72 +1,158 @@
 /**
- * The measurement bench: a stage with its nominal point solved, and the
- * DC evaluations every figure is built from. "Nominal" (figures.md): the
- * input source at its DC value and the load at its own value.
+ * The measurement bench: one interface through which every figure is
+ * measured, with two strategies behind it (figures.md): a DC bench for a
+ * stage fed with DC (dc-bench.ts: DC solutions by continuation), and a
+ * sine-fed bench for a stage fed from a transformer secondary
+ * (sine-fed-bench.ts: every value over one cycle at periodic steady
+ * state). A figure asks the bench to solve at a setting and reads output
+ * statistics; where the two definitions of figures.md genuinely differ
+ * (the input axis, how dropout is judged, where the ripple comes from, how
+ * a dip is applied) the bench supplies the difference.
+ *
+ * A bench owns a compiled circuit of its own (create-bench.ts) and sets
+ * the whole setting before every solve, starting from its nominal state:
+ * two benches never share state, and a figure's result does not depend on
+ * which figures were measured before it.
  */
-import { errorAt, RailcheckError } from '../errors.js';
-import type { CompiledCircuit } from '../engine/compile.js';
-import { solveOperatingPoint } from '../engine/dcop.js';
-import { opFailure } from '../analysis/dc.js';
-import { applySetting, loadCurrentOf, makeStage, restoreNominal, solveSetting, vout, type DcSetting, type Stage } from './stage.js';
+import type { BenchKind } from '../figure-registry.js';
+import type { Stage } from './stage.js';
 
-/** A stage at its nominal point, ready for figures. */
-export interface Bench {
+/** Where the bench's stage sits: input level (on the bench's axis) and load current. */
+export interface StageSetting {
+  /** Input level: volts on a DC bench, a ratio of the nominal amplitude on a sine-fed bench. */
+  readonly level: number;
+  /** Load current, A (a resistor load becomes Vout_nom / I, open for 0); undefined: the load element at its own value. */
+  readonly loadAmps: number | undefined;
+}
+
+/** Output statistics of one solve: a DC point, or one cycle at periodic steady state. */
+export interface OutputStats {
+  /** Mean output, V: on a DC bench |Vout| on the rail's side (see {@link BenchCommon.railSign}), on a sine-fed bench the signed cycle mean. */
+  readonly mean: number;
+  /** Least and greatest output over the cycle, V (equal to `mean` at a DC point). */
+  readonly min: number;
+  readonly max: number;
+  /** max − min, V (0 at a DC point). */
+  readonly pp: number;
+  /** Absorbed power per element name, W (a cycle average on a sine-fed bench); present when asked for. */
+  readonly power: Readonly<Record<string, number>> | undefined;
+  /** With `feed=` on a sine-fed bench: the feed's peak-to-peak (V) and the least V(feed) − Vout over the cycle (V). */
+  readonly feed: { readonly pp: number; readonly headroomMin: number } | undefined;
+  /** Whole cycles run to reach periodic steady state (0 at a DC point). */
+  readonly cycles: number;
+}
+
+/** A sequence of solves: the first starts from the nominal state, each later one from the one before (DC continuation). */
+export interface SteadyWalk {
+  /** Solves at `setting`; `what` names the solve in error messages; `power` asks for per-element power. Throws RailcheckError. */
+  solve(setting: StageSetting, what: string, power?: boolean): OutputStats;
+}
+
+/** The input axis of a bench: what a {@link StageSetting.level} means. */
+export interface InputAxis {
+  /** `V`: the input source's volts; `ratio`: a ratio of the nominal sine amplitude. */
+  readonly unit: 'V' | 'ratio';
+  /** The nominal level (the input's DC value in V, or 1). */
+  readonly nominal: number;
+  /** Sign of the nominal level (+1, or −1 for a negative input): input differences are taken on magnitudes. */
+  readonly sign: 1 | -1;
+  /** A level in words, for conditions and messages. */
+  describe(level: number): string;
+}
+
+/**
+ * How dropout is judged (figures.md): on a DC bench, where the output
+ * crosses Vout_nom − fall, a continuous function of the input solved to
+ * `tolerance` V; on a sine-fed bench, whether the stage still holds its
+ * output, a yes-or-no per cycle-statistics judged to `resolution` of the
+ * amplitude ratio.
+ */
+export type DropoutRule =
+  | { readonly kind: 'crossing'; readonly target: number; readonly tolerance: number }
+  | { readonly kind: 'holding'; readonly holds: (s: OutputStats) => boolean; readonly resolution: number };
+
+/** Ripple at periodic steady state: the input's and the output's peak-to-peak (V). */
+export interface SteadyRipple {
+  /** Peak-to-peak of the ripple the stage works against, V (undefined when a sine-fed stage names no `feed=`). */
+  readonly inputPp: number | undefined;
+  /** Output peak-to-peak, V. */
+  readonly outputPp: number;
+  /** Whole cycles run to reach periodic steady state. */
+  readonly cycles: number;
+}
+
+/** The shape of an input dip (figures.md, sag); times in s, `ripple` V peak at `freq` Hz. */
+export interface DipShape {
+  readonly edge: number;
+  readonly dur: number;
+  /** Ripple added to a DC input all along, V peak (0: none). */
+  readonly ripple: number;
+  readonly freq: number;
+}
+
+/** Dips of one shape, as a bench runs them. */
+export interface DipPlan {
+  /** Start of the dip, s: the run reaches steady state first. */
+  readonly t0: number;
+  /** Time at the bottom as run, s (whole cycles on a sine-fed bench). */
+  readonly dur: number;
+  /** Length of one ripple cycle, s: the windows of sag.out_pp and sag.out_pp_before. */
+  readonly period: number;
+  /** True when the output carries a ripple to watch (a DC input with `ripple` > 0; a sine-fed stage always). */
+  readonly rippled: boolean;
+  /** Runs one dip of `depth` (a ratio of the nominal level) until `tEnd` s, handing every accepted point's time (s) and output (V, rail side) to `observe`. Throws RailcheckError. */
+  run(depth: number, tEnd: number, observe: (timeSeconds: number, outputVolts: number) => void): void;
+}
+
+/** What every bench offers the figures. */
+export interface BenchCommon {
+  readonly kind: BenchKind;
+  /** The stage on the bench's own circuit. */
   readonly stage: Stage;
-  /**
-   * +1 for a positive rail, −1 for a negative one. Figures of a negative
-   * rail are taken on magnitudes (|Vout|, |Vin|), so that "the output
-   * droops" and "the input falls" read the same on both.
-   */
-  readonly outputSign: 1 | -1;
-  /** Sign of the nominal input (+1 or −1), for input differences. */
-  readonly inputSign: 1 | -1;
-  /** |Vout| at nominal, V. */
+  readonly input: InputAxis;
+  /** Nominal output as the figures use it, V: |Vout| on a DC bench, the signed cycle mean on a sine-fed bench. */
   readonly voutNominal: number;
+  /** +1 for a positive DC rail or any sine-fed stage, −1 for a negative DC rail: the signed nominal output is railSign·voutNominal. */
+  readonly railSign: 1 | -1;
   /** Nominal load current, A (undefined without a load element). */
   readonly loadNominal: number | undefined;
-  /** The setting whose DC solution is in the workspace now. */
-  current: DcSetting;
-  /** The nominal DC solution, to restart from. */
-  readonly nominalSolution: Float64Array;
-  /** Dropout input found with the default criterion, once asked for (V). */
-  dropoutCache: Map<number, number>;
+  /** The nominal solve's statistics. */
+  readonly nominal: OutputStats;
+  /** A sequence of solves from the nominal state. */
+  walk(): SteadyWalk;
+  /** One solve from the nominal state: `walk().solve(...)`. */
+  solve(setting: StageSetting, what: string, power?: boolean): OutputStats;
+  /** How dropout with an output fall of `fall` V is judged. */
+  dropoutRule(fall: number): DropoutRule;
+  /** −20·log10|Vout/Vin| (dB) at `hertz`, the stage linearised at its nominal DC point; undefined on a bench without one (sine-fed). Throws RailcheckError. */
+  smallSignalRejection(hertz: number): number | undefined;
+  /** Ripple at periodic steady state: a DC bench adds `amp` V peak at `hertz` Hz to the input; a sine-fed stage's ripple is its own at nominal. Throws RailcheckError. */
+  steadyRipple(hertz: number, amp: number): SteadyRipple;
+  /** Plans dips of one shape. Throws RailcheckError. */
+  planDip(shape: DipShape): DipPlan;
 }
 
-/** Solves the nominal DC point of a compiled circuit that has a `.supply` line. Throws RailcheckError. */
-export function createDcBench(c: CompiledCircuit): Bench {
-  const supply = c.flat.supply;
-  if (!supply) throw new RailcheckError([errorAt('no-supply', 'figures need a .supply line naming the stage')]);
-  const stage = makeStage(c, supply);
-  restoreNominal(stage);
-  const outcome = solveOperatingPoint(c);
-  if (!outcome.ok) throw new RailcheckError([opFailure(outcome, 'nominal operating point of the stage', supply.origin)]);
-  const signed = vout(stage);
-  const outputSign = signed < 0 ? -1 : 1;
-  const voutNominal = Math.abs(signed);
-  const loadNominal = loadCurrentOf(stage, voutNominal);
-  return {
-    stage,
-    outputSign,
-    inputSign: stage.nominalInput < 0 ? -1 : 1,
-    voutNominal,
-    loadNominal,
-    current: { vin: stage.nominalInput, loadAmps: loadNominal },
-    nominalSolution: new Float64Array(c.ws.x),
-    dropoutCache: new Map(),
-  };
+/** A DC-fed stage's bench. */
+export interface DcBench extends BenchCommon {
+  readonly kind: 'dc';
 }
 
-/** Solves at `target` by continuation from the present point and returns the output on the rail's side, outputSign·Vout (V). */
-export function voutAt(bench: Bench, target: DcSetting, what: string): number {
-  solveSetting(bench.stage, bench.current, target, bench.voutNominal, what);
-  bench.current = target;
-  return bench.outputSign * vout(bench.stage);
+/** A sine-fed stage's bench: the source's amplitude (V peak) and frequency (Hz). */
+export interface SineFedBench extends BenchCommon {
+  readonly kind: 'sine-fed';
+  readonly amplitude: number;
+  readonly frequency: number;
 }
 
-/** Puts the bench back at nominal (devices and solution). */
-export function backToNominal(bench: Bench): void {
-  restoreNominal(bench.stage);
-  bench.stage.compiled.ws.x.set(bench.nominalSolution);
-  bench.current = { vin: bench.stage.nominalInput, loadAmps: bench.loadNominal };
-  applySetting(bench.stage, bench.current, bench.voutNominal);
+/** A bench: a DC or a sine-fed one. */
+export type Bench = DcBench | SineFedBench;
+
+/** The corner times of a dip starting at `t0` (s), with edges of `edge` s and `dur` s at the bottom. */
+export function dipCorners(t0: number, edge: number, dur: number): number[] {
+  return [0, t0, t0 + edge, t0 + edge + dur, t0 + 2 * edge + dur];
+}
+
+/** End of the last whole ripple cycle at the bottom of a dip, s. */
+export function dipBottomEnd(plan: DipPlan, edge: number): number {
+  return Math.floor((plan.t0 + edge + plan.dur) / plan.period + 1e-9) * plan.period;
 }

@@ -3,21 +3,23 @@
  * "dissipation"): the power each absorbs at nominal and at the worst
  * corners of the line and load ranges (highest input with the lowest and
  * with the highest load), the largest of these per element, and the
- * efficiency at nominal, P_load / P_in.
+ * efficiency at nominal, P_load / P_in. On a sine-fed bench the powers are
+ * cycle averages at periodic steady state.
  */
 import { warningAt, type Diagnostic } from '../errors.js';
-import { readSolution } from '../analysis/solution.js';
-import { formatSI } from '../units.js';
-import { backToNominal, voutAt, type Bench } from './bench.js';
-import type { DcSetting } from './stage.js';
 import type { FlatElement } from '../elaborate/flat.js';
+import type { CardOrigin } from '../netlist/ast.js';
+import { formatSI } from '../units.js';
+import type { Bench, StageSetting } from './bench.js';
 
 /** Options: the ranges over which corners are taken. */
 export interface DissipationOptions {
-  /** Highest input, V (default: the line figure's `to`, else 1.1 × nominal). */
-  readonly highInput?: number | undefined;
+  /** Highest input level (default: the line figure's `to`, else 1.1 × nominal). */
+  readonly highLevel?: number | undefined;
   /** Lowest and highest load current, A (default: the load figure's range, else 0 and nominal). */
   readonly loadRange?: readonly [number, number] | undefined;
+  /** The line a missing efficiency is reported at (default: the `.supply` line). */
+  readonly origin?: CardOrigin | undefined;
 }
 
 /** Power per element and efficiency. */
@@ -26,10 +28,11 @@ export interface Dissipation {
   readonly pd: Readonly<Record<string, number>>;
   /** Element name → dissipation at nominal, W. */
   readonly nominal: Readonly<Record<string, number>>;
-  /** `efficiency`: power into the load / power out of the input source at nominal (undefined without a load). */
+  /** `efficiency`: power into the load / power out of the input source at nominal (undefined without a load, or when the input delivers no power). */
   readonly efficiency: number | undefined;
-  /** The settings that were solved. */
-  readonly corners: readonly DcSetting[];
+  /** The settings that were solved, nominal first. */
+  readonly corners: readonly StageSetting[];
+  /** Ratings exceeded, and why efficiency is missing. */
   readonly warnings: readonly Diagnostic[];
 }
 
@@ -41,39 +44,34 @@ export function dissipates(el: FlatElement): boolean {
 /** Measures dissipation. Throws RailcheckError when a corner cannot be solved. */
 export function dissipation(bench: Bench, opts: DissipationOptions = {}): Dissipation {
   const { stage } = bench;
-  const c = stage.compiled;
-  const high = opts.highInput ?? 1.1 * stage.nominalInput;
+  const elements = stage.compiled.elements;
+  const nominalLevel = bench.input.nominal;
+  const high = opts.highLevel ?? 1.1 * nominalLevel;
   const range = opts.loadRange ?? (bench.loadNominal === undefined ? undefined : ([0, bench.loadNominal] as const));
-  const corners: DcSetting[] = [{ vin: stage.nominalInput, loadAmps: bench.loadNominal }];
-  if (range) corners.push({ vin: high, loadAmps: Math.min(...range) }, { vin: high, loadAmps: Math.max(...range) });
-  else corners.push({ vin: high, loadAmps: undefined });
+  const corners: StageSetting[] = [{ level: nominalLevel, loadAmps: bench.loadNominal }];
+  if (range) corners.push({ level: high, loadAmps: Math.min(...range) }, { level: high, loadAmps: Math.max(...range) });
+  else corners.push({ level: high, loadAmps: undefined });
+  const powers = corners.map((corner, k) => bench.solve(corner, `dissipation corner ${k}`, true).power!);
   const pd: Record<string, number> = {};
   const nominal: Record<string, number> = {};
-  let efficiency: number | undefined;
-  try {
-    corners.forEach((corner, k) => {
-      if (k > 0) backToNominal(bench);
-      voutAt(bench, corner, `dissipation corner ${k}`);
-      const sol = readSolution(c);
-      for (const el of c.elements) {
-        if (!dissipates(el)) continue;
-        const p = sol.power[el.name] ?? 0;
-        if (k === 0) nominal[el.name] = p;
-        pd[el.name] = Math.max(pd[el.name] ?? -Infinity, p);
-      }
-      if (k === 0 && stage.load) {
-        const pin = -(sol.power[stage.input.name] ?? 0);
-        const pload = sol.power[stage.load.name] ?? 0;
-        efficiency = pin > 0 ? pload / pin : undefined;
-      }
-    });
-  } finally {
-    backToNominal(bench);
+  for (const el of elements) {
+    if (!dissipates(el)) continue;
+    nominal[el.name] = powers[0]![el.name] ?? 0;
+    pd[el.name] = Math.max(...powers.map((p) => p[el.name] ?? 0));
   }
-  return { pd, nominal, efficiency, corners, warnings: ratingWarnings(c.elements, pd) };
+  const warnings = ratingWarnings(elements, pd);
+  let efficiency: number | undefined;
+  const origin = opts.origin ?? stage.supply.origin;
+  if (!stage.load) warnings.push(warningAt('no-efficiency', 'efficiency needs the load element on the .supply line (load=...)', origin.pos, origin.lineText));
+  else {
+    const pin = -(powers[0]![stage.input.name] ?? 0);
+    if (pin > 0) efficiency = (powers[0]![stage.load.name] ?? 0) / pin;
+    else warnings.push(warningAt('no-efficiency', `efficiency: the input source ${stage.input.name} delivers no power at nominal (${formatSI(-pin, 'W')} absorbed)`, origin.pos, origin.lineText));
+  }
+  return { pd, nominal, efficiency, corners, warnings };
 }
 
-/** A warning for every element whose dissipation exceeds its rating (`pmax=` or the model's PMAX). */
+/** A warning for every element whose dissipation (W) exceeds its rating (`pmax=` or the model's PMAX). */
 export function ratingWarnings(elements: readonly FlatElement[], pd: Readonly<Record<string, number>>): Diagnostic[] {
   const out: Diagnostic[] = [];
   for (const el of elements) {

@@ -1,26 +1,33 @@
 /**
- * Dropout of a DC-fed stage (figures.md): the input at which the output
- * has fallen by `fall` (default 100 mV, the customary regulator-datasheet
- * criterion) below its nominal value, the load held at nominal. Found by
- * continuation downward from nominal to bracket the crossing, then the
- * Illinois variant of regula falsi (Dowell and Jarratt, BIT 11, 1971),
- * which keeps the bracket and converges superlinearly.
+ * Dropout (figures.md): lower the input from nominal, at nominal load,
+ * until the stage no longer holds its output; the lowest input that still
+ * does. The bench says how holding is judged ({@link DropoutRule}): on a
+ * DC bench, the input at which Vout = Vout_nom − fall (default 100 mV, the
+ * customary regulator-datasheet criterion, common practice), bracketed by
+ * steps down from nominal and narrowed by Illinois regula falsi to 0.1 mV;
+ * on a sine-fed bench, the lowest amplitude ratio at which the mean output
+ * stays within `fall` of nominal and the ripple below twice its nominal
+ * value, by bisection to 0.5 %.
  */
+import { match } from 'ts-pattern';
 import { errorAt, RailcheckError } from '../errors.js';
-import { formatSI } from '../units.js';
-import { backToNominal, voutAt, type Bench } from './bench.js';
 import type { FlatFigure } from '../elaborate/flat.js';
+import { formatSI } from '../units.js';
+import type { Bench, DropoutRule } from './bench.js';
+import { bisectBoundary, illinois } from './search.js';
 
 /** The dropout figures. */
 export interface Dropout {
   /** The fall that defines dropout, V. */
   readonly fall: number;
-  /** `dropout.vin`: input at which Vout = Vout_nom − fall, V. */
-  readonly vin: number;
-  /** `dropout.v` = vin − Vout(vin), V: the input-output differential (magnitudes on a negative rail). */
-  readonly v: number;
-  /** `dropout.headroom` = nominal input − vin, V. */
+  /** The lowest input level that holds: `dropout.vin` (V) on a DC bench, `dropout.ratio` (ratio) on a sine-fed one. */
+  readonly level: number;
+  /** `dropout.v` = level − Vout(level), V, the input-output differential (magnitudes on a negative rail); DC benches only. */
+  readonly v: number | undefined;
+  /** `dropout.headroom` = nominal − level: V on a DC bench (magnitudes on a negative rail), a ratio on a sine-fed one. */
   readonly headroom: number;
+  /** `headroom.min`: the least V(feed) − Vout over the nominal cycle, V (a sine-fed bench with `feed=`). */
+  readonly headroomMin: number | undefined;
 }
 
 /** Default fall, V (figures.md). */
@@ -33,63 +40,46 @@ export function fallVolts(f: FlatFigure | undefined, voutNominal: number): numbe
   return f!.percentKeys.has('fall') ? v * voutNominal : v;
 }
 
-/** Bracketing steps down from nominal to zero (each a continuation solve). */
+/** Bracketing steps from nominal down to zero input (each a solve continuing from the last). */
 const BRACKET_STEPS = 40;
 
-/** Width of the final bracket, V: well inside the 1 mV figures.md asks for. */
-const INPUT_TOLERANCE = 1e-4;
-
-/** Finds the dropout input. `fall` (V) defaults to 100 mV. Throws RailcheckError if the output never falls that far. */
-export function dropout(bench: Bench, fall = DEFAULT_DROPOUT_FALL): Dropout {
+/** The crossing of Vout = target, walking down from nominal; the level and the output there. */
+function crossing(bench: Bench, rule: Extract<DropoutRule, { kind: 'crossing' }>, fall: number): { level: number; output: number } {
   const origin = bench.stage.supply.origin;
-  const nominal = bench.stage.nominalInput;
-  const target = bench.voutNominal - fall;
-  const load = bench.loadNominal;
-  const f = (vin: number): number => voutAt(bench, { vin, loadAmps: load }, 'dropout search') - target;
-  try {
-    let hi = nominal;
-    let fHi = bench.voutNominal - target;
-    let lo = Number.NaN;
-    let fLo = Number.NaN;
-    for (let k = 1; k <= BRACKET_STEPS; k++) {
-      const vin = nominal * (1 - k / BRACKET_STEPS);
-      const fv = f(vin);
-      if (fv < 0) {
-        lo = vin;
-        fLo = fv;
-        break;
-      }
-      hi = vin;
-      fHi = fv;
+  const nominal = bench.input.nominal;
+  const walk = bench.walk();
+  const f = (level: number): number => walk.solve({ level, loadAmps: bench.loadNominal }, 'dropout search').mean - rule.target;
+  let pos = nominal;
+  let fPos = bench.voutNominal - rule.target;
+  for (let k = 1; k <= BRACKET_STEPS; k++) {
+    const level = nominal * (1 - k / BRACKET_STEPS);
+    const fv = f(level);
+    if (fv < 0) {
+      // `neg` is where the output has fallen too far, `pos` where it has not; on a negative rail neg > pos.
+      const level0 = illinois(f, { neg: level, fNeg: fv, pos, fPos }, rule.tolerance);
+      return { level: level0, output: f(level0) + rule.target };
     }
-    if (Number.isNaN(lo)) {
-      throw new RailcheckError([errorAt('no-dropout', `the output never falls by ${formatSI(fall, 'V')} below its nominal ${formatSI(bench.voutNominal, 'V')}, even with the input at 0 V`, origin.pos, origin.lineText, 'a stage whose output depends on its input, or a smaller fall=')]);
-    }
-    // Illinois: regula falsi that halves the stale end's weight. `lo` is the end where the output has
-    // fallen too far (f < 0), `hi` the end where it has not; on a negative rail lo > hi.
-    let side = 0;
-    for (let iter = 0; iter < 100 && Math.abs(hi - lo) > INPUT_TOLERANCE; iter++) {
-      let vin = (lo * fHi - hi * fLo) / (fHi - fLo);
-      if (!(vin > Math.min(lo, hi) && vin < Math.max(lo, hi))) vin = 0.5 * (lo + hi);
-      const fv = f(vin);
-      if (fv < 0) {
-        lo = vin;
-        fLo = fv;
-        if (side === -1) fHi /= 2;
-        side = -1;
-      } else {
-        hi = vin;
-        fHi = fv;
-        if (side === 1) fLo /= 2;
-        side = 1;
-      }
-    }
-    const vinStar = Math.abs(fLo) < Math.abs(fHi) ? lo : hi;
-    const voutStar = f(vinStar) + target;
-    // On a negative rail both are magnitudes: |Vin*| − |Vout|, |Vin_nom| − |Vin*|.
-    const s = bench.inputSign;
-    return { fall, vin: vinStar, v: s * vinStar - voutStar, headroom: s * (nominal - vinStar) };
-  } finally {
-    backToNominal(bench);
+    pos = level;
+    fPos = fv;
   }
+  throw new RailcheckError([errorAt('no-dropout', `the output never falls by ${formatSI(fall, 'V')} below its nominal ${formatSI(bench.voutNominal, 'V')}, even with the input at 0 V`, origin.pos, origin.lineText, 'a stage whose output depends on its input, or a smaller fall=')]);
+}
+
+/** The lowest level in [0, nominal] that holds, by bisection. */
+function lowestHolding(bench: Bench, rule: Extract<DropoutRule, { kind: 'holding' }>): number {
+  const holds = (level: number): boolean => rule.holds(bench.solve({ level, loadAmps: bench.loadNominal }, 'dropout search'));
+  return bisectBoundary(holds, { pass: bench.input.nominal, fail: 0 }, (b) => !(b.pass - b.fail > rule.resolution)).pass;
+}
+
+/** Finds dropout with an output fall of `fall` V (default 100 mV). Throws RailcheckError when a DC stage's output never falls that far. */
+export function dropout(bench: Bench, fall = DEFAULT_DROPOUT_FALL): Dropout {
+  const rule = bench.dropoutRule(fall);
+  const { level, output } = match(rule)
+    .returnType<{ level: number; output: number | undefined }>()
+    .with({ kind: 'crossing' }, (r) => crossing(bench, r, fall))
+    .with({ kind: 'holding' }, (r) => ({ level: lowestHolding(bench, r), output: undefined }))
+    .exhaustive();
+  // On a negative rail both are magnitudes: |Vin*| − |Vout|, |Vin_nom| − |Vin*|.
+  const s = bench.input.sign;
+  return { fall, level, v: output === undefined ? undefined : s * level - output, headroom: s * (bench.input.nominal - level), headroomMin: bench.nominal.feed?.headroomMin };
 }

@@ -1,14 +1,21 @@
 /**
- * Periodic steady state by brute-force integration (figures.md): run the
- * transient whole cycle after whole cycle and stop when the mean and the
- * peak-to-peak of the watched signals over two successive cycles agree
- * within 1 %. Values of the last cycle are returned. Per-cycle statistics
- * are gathered as the stepper goes (onAccept), so no trace is stored.
+ * Periodic steady state by whole-cycle integration: run the transient
+ * cycle after cycle and stop when the mean and the peak-to-peak of the
+ * watched signals over two successive cycles agree within 1 %. Values of
+ * the last cycle are returned. Per-cycle statistics are gathered as the
+ * stepper goes (onAccept), so no trace is stored.
+ *
+ * The periodic run owns the transient's timing: the output interval
+ * (period / 50, which also sets the step after every breakpoint and the
+ * default pulse edge), the end time (maxCycles whole periods), a
+ * breakpoint at every cycle boundary, and the least steps per cycle
+ * ({@link PeriodicOptions.stepsPerCycle}, default 200). Its caller chooses
+ * only where the run starts ({@link PeriodicOptions.initialSolution}).
  */
 import type { LoadContext } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CardOrigin } from '../netlist/ast.js';
-import { runTransient, type TransientOptions } from '../engine/transient.js';
+import { runTransient } from '../engine/transient.js';
 import type { CompiledCircuit } from '../engine/compile.js';
 import { formatSI } from '../units.js';
 
@@ -43,10 +50,23 @@ export interface PeriodicOptions {
   readonly ppFloor?: number;
   /** Time origin of the cycles, s (default 0). */
   readonly start?: number;
+  /** Start the transient from this solution vector instead of the operating point (engine/transient.ts, initialSolution). */
+  readonly initialSolution?: Float64Array | undefined;
+  /**
+   * End the run at the first accepted point at or after this time (s),
+   * settled or not: for runs that watch a window of a waveform (a dip)
+   * rather than look for steady state. Default: run until settled.
+   */
+  readonly endAt?: number;
 }
+
+/** Output intervals per period in a periodic run (the interval also bounds the step after every breakpoint). */
+const OUTPUT_INTERVALS_PER_PERIOD = 50;
 
 /** Result: the statistics of every probe over the last (settled) cycle, and how many cycles it took. */
 export interface PeriodicResult {
+  /** False only for a run ended by {@link PeriodicOptions.endAt} before it settled. */
+  readonly settled: boolean;
   readonly last: readonly CycleStats[];
   readonly previous: readonly CycleStats[];
   readonly cycles: number;
@@ -103,10 +123,11 @@ function agrees(a: CycleStats, b: CycleStats, floor: number): boolean {
 
 /**
  * Runs the circuit's transient (sources as they are set) cycle by cycle
- * until periodic steady state. Throws RailcheckError if the transient
- * fails or does not settle within maxCycles.
+ * until periodic steady state (or until {@link PeriodicOptions.endAt}).
+ * Throws RailcheckError if the transient fails or does not settle within
+ * maxCycles.
  */
-export function runToPeriodicSteadyState(c: CompiledCircuit, opts: PeriodicOptions, what: string, origin: CardOrigin | undefined, base: Partial<TransientOptions> = {}): PeriodicResult {
+export function runToPeriodicSteadyState(c: CompiledCircuit, opts: PeriodicOptions, what: string, origin: CardOrigin | undefined): PeriodicResult {
   const { period, probes } = opts;
   const minCycles = opts.minCycles ?? 3;
   const maxCycles = opts.maxCycles ?? 400;
@@ -119,12 +140,14 @@ export function runToPeriodicSteadyState(c: CompiledCircuit, opts: PeriodicOptio
   let settled = false;
   let end = 0;
   const boundaries = Array.from({ length: maxCycles + 1 }, (_, k) => start + k * period).filter((t) => t > 0);
+  const endAt = opts.endAt ?? Infinity;
+  let ended = false;
   const outcome = runTransient(c, {
-    tstep: period / 50,
+    tstep: period / OUTPUT_INTERVALS_PER_PERIOD,
     tstop: start + maxCycles * period,
     stepsPerCycle: opts.stepsPerCycle ?? 200,
-    ...base,
-    extraBreakpoints: [...(base.extraBreakpoints ?? []), ...boundaries],
+    ...(opts.initialSolution ? { initialSolution: opts.initialSolution } : {}),
+    extraBreakpoints: boundaries,
     keepTrace: false,
     onAccept: (t, ctx) => {
       if (t < start - period * 1e-9) return false;
@@ -142,14 +165,18 @@ export function runToPeriodicSteadyState(c: CompiledCircuit, opts: PeriodicOptio
           return true;
         }
       }
+      if (t >= endAt) {
+        ended = true;
+        return true;
+      }
       return false;
     },
   });
   if (!outcome.ok) {
     throw new RailcheckError([errorAt('transient-failed', `${what}: the transient failed at t = ${formatSI(outcome.time, 's')}`, origin?.pos, origin?.lineText)]);
   }
-  if (!settled) {
+  if (!settled && !ended) {
     throw new RailcheckError([errorAt('not-settled', `${what}: no periodic steady state within ${maxCycles} cycles (mean and peak-to-peak still changing by more than 1 % per cycle)`, origin?.pos, origin?.lineText, 'a stage whose time constants settle within a few hundred cycles')]);
   }
-  return { last, previous, cycles: cycle, end };
+  return { settled, last, previous, cycles: cycle, end };
 }

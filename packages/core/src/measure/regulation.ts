@@ -1,34 +1,36 @@
 /**
- * Line and load regulation of a DC-fed stage (figures.md). Both are DC
- * solutions reached by continuation from the nominal point. Definitions
- * follow the way regulator datasheets state them (e.g. the line- and
- * load-regulation definitions of JEDEC JESD99C, "Terms, Definitions, and
- * Letter Symbols for Microelectronic Devices"): the change of output for a
- * stated change of input or load, the other held at nominal.
+ * Line and load regulation (figures.md): the change of output for a
+ * stated change of input or of load, the other held at nominal. The
+ * definitions follow the way regulator datasheets state them (the line-
+ * and load-regulation definitions of JEDEC JESD99C, "Terms, Definitions,
+ * and Letter Symbols for Microelectronic Devices"). The output is the
+ * bench's: the DC output, or the mean over a cycle at periodic steady
+ * state; the input is the bench's level: volts, or a ratio of the nominal
+ * amplitude.
  */
+import { match } from 'ts-pattern';
 import { errorAt, RailcheckError } from '../errors.js';
-import { backToNominal, voutAt, type Bench } from './bench.js';
+import type { Bench } from './bench.js';
 
-/**
- * Line regulation: output change between two inputs at nominal load. On a
- * negative rail delta and slope are taken on magnitudes (|Vout|, |Vin|).
- */
+/** Line regulation: output change between two input levels at nominal load (magnitudes on a negative rail). */
 export interface LineRegulation {
-  /** Input ends, V. */
+  /** Input levels at the ends: V on a DC bench, amplitude ratios on a sine-fed one. */
   readonly from: number;
   readonly to: number;
   /** Output at each end, V (signed). */
   readonly voutFrom: number;
   readonly voutTo: number;
-  /** `line.delta` = Vout(to) − Vout(from), V (|Vout| on a negative rail). */
+  /** `line.delta` = Vout(to) − Vout(from), V. */
   readonly delta: number;
-  /** `line.slope` = delta / (to − from), V/V. */
-  readonly slope: number;
-  /** `line.pct_per_v` = 100·slope / Vout_nom, %/V. */
-  readonly pctPerV: number;
+  /** `line.slope` = delta / (to − from), V/V (DC benches). */
+  readonly slope: number | undefined;
+  /** `line.pct_per_v` = 100·slope / Vout_nom, %/V (DC benches). */
+  readonly pctPerV: number | undefined;
+  /** `line.pct` = 100·delta / Vout_nom, % (sine-fed benches). */
+  readonly pct: number | undefined;
 }
 
-/** Options of {@link lineRegulation}: input ends in volts (defaults 0.9 and 1.1 × nominal). */
+/** Options of {@link lineRegulation}: input levels (defaults 0.9 and 1.1 × nominal). */
 export interface LineOptions {
   readonly from?: number | undefined;
   readonly to?: number | undefined;
@@ -36,21 +38,24 @@ export interface LineOptions {
 
 /** Measures line regulation (figures.md, "line"). Throws RailcheckError when a point cannot be solved. */
 export function lineRegulation(bench: Bench, opts: LineOptions = {}): LineRegulation {
-  const nominal = bench.stage.nominalInput;
+  const nominal = bench.input.nominal;
   const from = opts.from ?? 0.9 * nominal;
   const to = opts.to ?? 1.1 * nominal;
-  if (from === to) throw new RailcheckError([errorAt('bad-figure', `line regulation needs two different inputs (from = to = ${from} V)`, bench.stage.supply.origin.pos)]);
-  try {
-    const voutFrom = voutAt(bench, { vin: from, loadAmps: bench.loadNominal }, 'line regulation, low input');
-    backToNominal(bench);
-    const voutTo = voutAt(bench, { vin: to, loadAmps: bench.loadNominal }, 'line regulation, high input');
-    const delta = voutTo - voutFrom;
-    const slope = delta / (bench.inputSign * (to - from));
-    const sign = bench.outputSign;
-    return { from, to, voutFrom: sign * voutFrom, voutTo: sign * voutTo, delta, slope, pctPerV: (100 * slope) / bench.voutNominal };
-  } finally {
-    backToNominal(bench);
-  }
+  if (from === to) throw new RailcheckError([errorAt('bad-figure', `line regulation needs two different inputs (from = to = ${bench.input.describe(from)})`, bench.stage.supply.origin.pos)]);
+  const load = bench.loadNominal;
+  const voutFrom = bench.solve({ level: from, loadAmps: load }, 'line regulation, low input').mean;
+  const voutTo = bench.solve({ level: to, loadAmps: load }, 'line regulation, high input').mean;
+  const delta = voutTo - voutFrom;
+  const vnom = bench.voutNominal;
+  const perUnit = match(bench.input.unit)
+    .with('V', () => {
+      const slope = delta / (bench.input.sign * (to - from));
+      return { slope, pctPerV: (100 * slope) / vnom, pct: undefined };
+    })
+    .with('ratio', () => ({ slope: undefined, pctPerV: undefined, pct: (100 * delta) / vnom }))
+    .exhaustive();
+  const sign = bench.railSign;
+  return { from, to, voutFrom: sign * voutFrom, voutTo: sign * voutTo, delta, ...perUnit };
 }
 
 /** Load regulation: output change between two load currents at nominal input. */
@@ -58,6 +63,7 @@ export interface LoadRegulation {
   /** Load currents at the ends, A. */
   readonly from: number;
   readonly to: number;
+  /** Output at each end, V (signed). */
   readonly voutFrom: number;
   readonly voutTo: number;
   /** `load.delta` = Vout(from) − Vout(to), V; positive when the output droops under load. */
@@ -76,7 +82,8 @@ export interface LoadOptions {
 
 /**
  * Measures load regulation (figures.md, "load"). With a resistor load the
- * resistance at each end is Vout_nom / I, open for I = 0.
+ * resistance at each end is Vout_nom / I, open for I = 0. Throws
+ * RailcheckError without a load element or when a point cannot be solved.
  */
 export function loadRegulation(bench: Bench, opts: LoadOptions = {}): LoadRegulation {
   const origin = bench.stage.supply.origin;
@@ -86,15 +93,10 @@ export function loadRegulation(bench: Bench, opts: LoadOptions = {}): LoadRegula
   const from = opts.from ?? 0;
   const to = opts.to ?? bench.loadNominal;
   if (from === to) throw new RailcheckError([errorAt('bad-figure', `load regulation needs two different load currents (from = to = ${from} A)`, origin.pos, origin.lineText)]);
-  try {
-    const vin = bench.stage.nominalInput;
-    const voutFrom = voutAt(bench, { vin, loadAmps: from }, 'load regulation, first load');
-    backToNominal(bench);
-    const voutTo = voutAt(bench, { vin, loadAmps: to }, 'load regulation, second load');
-    const delta = voutFrom - voutTo;
-    const sign = bench.outputSign;
-    return { from, to, voutFrom: sign * voutFrom, voutTo: sign * voutTo, delta, pct: (100 * delta) / voutFrom, rout: delta / (to - from) };
-  } finally {
-    backToNominal(bench);
-  }
+  const level = bench.input.nominal;
+  const voutFrom = bench.solve({ level, loadAmps: from }, 'load regulation, first load').mean;
+  const voutTo = bench.solve({ level, loadAmps: to }, 'load regulation, second load').mean;
+  const delta = voutFrom - voutTo;
+  const sign = bench.railSign;
+  return { from, to, voutFrom: sign * voutFrom, voutTo: sign * voutTo, delta, pct: (100 * delta) / voutFrom, rout: delta / (to - from) };
 }

@@ -1,10 +1,12 @@
 /**
- * A supply stage as the figures see it: the compiled circuit, its input
- * source, its output (against a reference node) and its load, with the
- * means to move input and load and re-solve by continuation from wherever
- * the last solution was.
+ * A supply stage as a bench sees it: a compiled circuit of the bench's
+ * own, its input source, its output (against a reference node), its feed
+ * and its load, and the one way its devices are set: {@link applyDrive}
+ * sets everything a solve depends on (input DC value and waveform, every
+ * source's small-signal drive, the load) before every solve, so no solve
+ * depends on what an earlier one left behind.
  */
-import { isKind, type IndependentSource, type Resistor } from '@railcheck/devices';
+import { isKind, type IndependentSource, type Resistor, type WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CompiledCircuit } from '../engine/compile.js';
 import type { FlatSupply } from '../elaborate/flat.js';
@@ -13,23 +15,22 @@ import { solveOperatingPoint } from '../engine/dcop.js';
 import { opFailure } from '../analysis/dc.js';
 import { formatSI } from '../units.js';
 
-/** The stage's load: a current source (value in A) or a resistor (value in Ω). */
+/** The stage's load: a current source (value in A) or a resistor (value in Ω), with its value as compiled. */
 export type StageLoad =
   | { readonly kind: 'current'; readonly name: string; readonly device: IndependentSource; readonly nominal: number }
   | { readonly kind: 'resistor'; readonly name: string; readonly device: Resistor; readonly nominal: number };
 
-/** A stage ready for measurement. */
+/** A stage on a circuit that belongs to one bench. */
 export interface Stage {
+  /** The bench's own compiled circuit (never the caller's). */
   readonly compiled: CompiledCircuit;
   readonly supply: FlatSupply;
   /** The input voltage source. */
   readonly input: IndependentSource;
-  /** Nominal input: the DC value, or for a stage fed with a sine the sine's amplitude (V). */
-  readonly nominalInput: number;
-  /** The input source's own DC value as compiled (restored after every figure). */
+  /** The input's DC value as compiled, V. */
   readonly inputDc: number;
-  /** True when the input is a `sin` source: figures are taken at periodic steady state. */
-  readonly acFed: boolean;
+  /** The input's waveform as compiled (a `sin` for a sine-fed stage). */
+  readonly inputWaveform: WaveformSpec | undefined;
   readonly load: StageLoad | undefined;
   /** Unknown indices of out, ref and feed (0 = ground). */
   readonly outIndex: number;
@@ -37,7 +38,7 @@ export interface Stage {
   readonly feedIndex: number | undefined;
 }
 
-/** Builds the stage description from a compiled circuit with a `.supply` line. */
+/** Describes the stage of a compiled circuit with a `.supply` line. Throws RailcheckError when `in=` is not a voltage source. */
 export function makeStage(c: CompiledCircuit, supply: FlatSupply): Stage {
   const input = c.sources.get(supply.input);
   if (!input || input.kind !== 'vsource') throw new RailcheckError([errorAt('bad-supply-input', `.supply in=${supply.input} is not a voltage source`, supply.origin.pos, supply.origin.lineText)]);
@@ -47,15 +48,12 @@ export function makeStage(c: CompiledCircuit, supply: FlatSupply): Stage {
     if (d && isKind(d, 'isource')) load = { kind: 'current', name: d.name, device: d, nominal: d.dc };
     else if (d && isKind(d, 'resistor')) load = { kind: 'resistor', name: d.name, device: d, nominal: d.resistance };
   }
-  const w = input.waveform;
-  const acFed = w?.kind === 'sin';
   return {
     compiled: c,
     supply,
     input,
-    nominalInput: w?.kind === 'sin' ? w.va : input.dc,
     inputDc: input.dc,
-    acFed,
+    inputWaveform: input.waveform,
     load,
     outIndex: c.nodeIndex.get(supply.out) ?? 0,
     refIndex: c.nodeIndex.get(supply.ref) ?? 0,
@@ -63,49 +61,65 @@ export function makeStage(c: CompiledCircuit, supply: FlatSupply): Stage {
   };
 }
 
-/** Output voltage (V) in the present solution. */
+/** Output voltage V(out) − V(ref) (V) in solution `x` (default: the workspace's). */
 export function vout(stage: Stage, x: Float64Array = stage.compiled.ws.x): number {
   return x[stage.outIndex]! - x[stage.refIndex]!;
 }
 
-/** Load current (A) a setting stands for: the current source's value, or Vout_nom/R for a resistor. */
+/** Load current (A) the stage's own load stands for: the current source's value, or Vout_nom / R for a resistor. */
 export function loadCurrentOf(stage: Stage, voutNominal: number): number | undefined {
   const l = stage.load;
   if (!l) return undefined;
   return l.kind === 'current' ? l.nominal : voutNominal / l.nominal;
 }
 
-/** Input (V) and load current (A) at which to solve; for a resistor load the current fixes R = Vout_nom / I. */
+/** Everything a solve sets on the stage's circuit. */
+export interface Drive {
+  /** The input source's DC value, V. */
+  readonly dc: number;
+  /** The input source's waveform (undefined: none). */
+  readonly waveform: WaveformSpec | undefined;
+  /** Load current, A: a current load takes it, a resistor load becomes Vout_nom / I (open for 0); undefined leaves the load at its own value. */
+  readonly loadAmps: number | undefined;
+  /** Small-signal drive of the input, V (phase 0); every other source's is 0. Default 0. */
+  readonly inputAc?: number;
+}
+
+/** Sets the input, the small-signal drives and the load for a solve. `voutNominal` (V) turns a load current into a resistance. */
+export function applyDrive(stage: Stage, d: Drive, voutNominal: number): void {
+  for (const s of stage.compiled.sources.values()) {
+    s.acMag = 0;
+    s.acPhaseDeg = 0;
+  }
+  stage.input.acMag = d.inputAc ?? 0;
+  stage.input.waveform = d.waveform;
+  applyDcSetting(stage, { vin: d.dc, loadAmps: d.loadAmps }, voutNominal);
+}
+
+/** Input (V) and load current (A) of a DC solution; for a resistor load the current fixes R = Vout_nom / I. */
 export interface DcSetting {
   readonly vin: number;
   readonly loadAmps: number | undefined;
 }
 
-/** Applies a setting to the devices. Resistor loads: R = voutNominal / I, open for I = 0. */
-export function applySetting(stage: Stage, s: DcSetting, voutNominal: number): void {
+/** Sets the input's DC value and the load; `loadAmps` undefined puts the load back to its own value. */
+function applyDcSetting(stage: Stage, s: DcSetting, voutNominal: number): void {
   stage.input.dc = s.vin;
   const l = stage.load;
-  if (!l || s.loadAmps === undefined) return;
-  if (l.kind === 'current') l.device.dc = s.loadAmps;
-  else l.device.resistance = s.loadAmps === 0 ? Infinity : voutNominal / s.loadAmps;
-}
-
-/** Restores the nominal input and load. */
-export function restoreNominal(stage: Stage): void {
-  stage.input.dc = stage.inputDc;
-  const l = stage.load;
-  if (l?.kind === 'current') l.device.dc = l.nominal;
-  else if (l) l.device.resistance = l.nominal;
+  if (!l) return;
+  if (l.kind === 'current') l.device.dc = s.loadAmps ?? l.nominal;
+  else l.device.resistance = s.loadAmps === undefined ? l.nominal : s.loadAmps === 0 ? Infinity : voutNominal / s.loadAmps;
 }
 
 /** Largest number of halvings of a continuation step before the full operating-point search is tried. */
 const MAX_HALVINGS = 14;
 
 /**
- * Solves the DC point for `target`, by continuation from the setting
- * `from` whose solution is in the workspace: input and load conductance
- * move together along a straight line, the step halving on failure. Falls
- * back to the full operating-point strategy. Throws RailcheckError.
+ * Solves the DC point for `target` by continuation from the setting
+ * `from`, whose solution is in the workspace: input and load conductance
+ * move together along a straight line, the step halving on failure
+ * (engine/continuation.ts). Falls back to the full operating-point
+ * strategy, warm-started. Throws RailcheckError.
  */
 export function solveSetting(stage: Stage, from: DcSetting, target: DcSetting, voutNominal: number, what: string): void {
   const c = stage.compiled;
@@ -119,8 +133,8 @@ export function solveSetting(stage: Stage, from: DcSetting, target: DcSetting, v
     lambda === 1
       ? target
       : { vin: lerp(from.vin, target.vin, lambda), loadAmps: g0 === undefined || g1 === undefined ? target.loadAmps : lerp(g0, g1, lambda) * voutNominal };
-  if (continueAlong(c, (lambda) => applySetting(stage, at(lambda), voutNominal), MAX_HALVINGS)) return;
-  applySetting(stage, target, voutNominal);
+  if (continueAlong(c, (lambda) => applyDcSetting(stage, at(lambda), voutNominal), MAX_HALVINGS)) return;
+  applyDcSetting(stage, target, voutNominal);
   const outcome = solveOperatingPoint(c, true);
   if (!outcome.ok) throw new RailcheckError([opFailure(outcome, `${what} (input ${formatSI(target.vin, 'V')})`, stage.supply.origin)]);
 }

@@ -6,7 +6,7 @@
  * facts about capacitance multipliers.
  */
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import { createDcBench, loadRegulation, type RunReport } from '@railcheck/core';
+import { createBench, loadRegulation, type RunReport } from '@railcheck/core';
 import { VT, npnParams } from './device-equations.js';
 import { capacitanceMultiplier, handFigures, type HandFigures, type HandStage } from './hand-stages.js';
 import { modelOf, numberOf, readExample, valueOf } from './netlist-values.js';
@@ -66,7 +66,7 @@ describe('capacitance multiplier: DC figures against the independent solution', 
   });
 
   test('load regulation by the library between 20 mA and 200 mA, to 1e-4', () => {
-    const bench = createDcBench(report.compiled);
+    const bench = createBench(report.compiled);
     const r = loadRegulation(bench, { from: 0.02, to: stage.loadNominal });
     const delta = stage.solve(stage.vinNominal, 0.02).vout - stage.nominal.vout;
     ledger.add('load.delta 20→200 mA', r.delta, delta);

@@ -1,0 +1,35 @@
+/**
+ * A bench for the stage of a compiled circuit: its own compiled circuit
+ * (compiled again from the caller's flat circuit; compiling is cheap), set
+ * to the temperature of the figures, with the strategy the stage's input
+ * asks for: a `sin` input gets the sine-fed bench, any other the DC bench.
+ */
+import { errorAt, RailcheckError } from '../errors.js';
+import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
+import { setCircuitTemperature } from '../engine/dcop.js';
+import type { Bench } from './bench.js';
+import { createDcBench } from './dc-bench.js';
+import { createSineFedBench } from './sine-fed-bench.js';
+import { makeStage } from './stage.js';
+
+/** Options of {@link createBench}. */
+export interface BenchOptions {
+  /** Temperature of the measurement, °C (default: the circuit's first `.temp`, 27 °C without one; figures.md). */
+  readonly celsius?: number | undefined;
+}
+
+/**
+ * Builds the bench for the stage named by the circuit's `.supply` line and
+ * solves its nominal point. The caller's compiled circuit is only read: the
+ * bench compiles its own from `compiled.flat`. Throws RailcheckError.
+ */
+export function createBench(compiled: CompiledCircuit, options: BenchOptions = {}): Bench {
+  const flat = compiled.flat;
+  const supply = flat.supply;
+  if (!supply) throw new RailcheckError([errorAt('no-supply', 'figures need a .supply line naming the stage')]);
+  const own = compileCircuit(flat);
+  if (!own.ok) throw new RailcheckError(own.errors);
+  setCircuitTemperature(own.circuit, options.celsius ?? flat.temperatures[0] ?? 27);
+  const stage = makeStage(own.circuit, supply);
+  return stage.inputWaveform?.kind === 'sin' ? createSineFedBench(stage) : createDcBench(stage);
+}
