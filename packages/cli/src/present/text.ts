@@ -11,6 +11,7 @@ const METHOD_WORDS: Readonly<Record<OperatingPoint['method'], string>> = {
   newton: 'Newton from a cold start',
   'gmin-stepping': 'gmin stepping (plain Newton did not converge)',
   'source-stepping': 'source stepping (plain Newton and gmin stepping did not converge)',
+  'newton-after-stepping': 'Newton at full sources from the last point source stepping reached (plain Newton, gmin and source stepping did not converge)',
 };
 
 /** Node voltages and the per-element current and power table for one operating point. */

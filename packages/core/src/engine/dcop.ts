@@ -19,8 +19,14 @@ const GMIN_START = 1e-2;
 /** Source stepping: the smallest fraction of a step tried before giving up. */
 const MIN_SOURCE_STEP = 1e-6;
 
-/** How an operating point was reached. */
-export type OpMethod = 'newton' | 'gmin-stepping' | 'source-stepping';
+/**
+ * How an operating point was reached: plain Newton from the starting point
+ * (zero with junctions at their critical voltages, or the given solution
+ * with `warmStart`); gmin stepping; source stepping; or, when both steppings
+ * failed, plain Newton at full sources from the last point source stepping
+ * reached.
+ */
+export type OpMethod = 'newton' | 'gmin-stepping' | 'source-stepping' | 'newton-after-stepping';
 
 /** One unknown that failed to settle, for diagnostics. */
 export interface Straggler {
@@ -164,7 +170,8 @@ export function solveOperatingPoint(c: CompiledCircuit, warmStart = false, opts:
   ctx.sourceScale = 1;
   ctx.gmin = FINAL_GMIN;
   if (s.ok) return { ok: true, method: 'source-stepping', iterations };
+  // Source stepping leaves the last scale it reached in x: one more try at full sources from there.
   const last = newtonSolve(c, opts);
-  if (last.converged) return { ok: true, method: 'newton', iterations: iterations + last.iterations };
+  if (last.converged) return { ok: true, method: 'newton-after-stepping', iterations: iterations + last.iterations };
   return failure(c, last, iterations + last.iterations);
 }

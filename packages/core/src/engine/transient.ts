@@ -23,7 +23,7 @@ export interface TransientOptions {
   readonly tstep: number;
   /** End time, s. */
   readonly tstop: number;
-  /** Largest internal step, s (default (tstop)/50). */
+  /** Largest internal step, s (default tstop/50). The step is also held to the shortest sine period / {@link TransientOptions.stepsPerCycle}. */
   readonly tmax?: number | undefined;
   /** Integration method (default 'trap'; see docs/transient.md for the measurement behind it). */
   readonly method?: IntegrationMethod;
@@ -35,7 +35,7 @@ export interface TransientOptions {
   readonly lteVntol?: number;
   /** Least number of steps per period of any sine source (default 100 for trap, 400 for be; docs/transient.md). */
   readonly stepsPerCycle?: number;
-  /** Newton options per time point. */
+  /** Newton tolerances per time point; `maxIterations` is not taken from here: a time point gets at most 50 iterations before its step is cut. */
   readonly newton?: NewtonOptions;
   /**
    * A fixed step, s: no truncation-error control, every step this long

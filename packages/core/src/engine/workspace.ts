@@ -57,8 +57,8 @@ export interface Workspace {
   readonly x: Float64Array;
   /** Next iterate (solution of the linearised system). */
   readonly xNext: Float64Array;
-  /** Device state at the time point being solved, and at the last accepted ones. */
-  readonly states: Float64Array[];
+  /** Device state (charges and their currents, junction memory): [0] at the point being solved, [1] at the last accepted time point. */
+  readonly states: readonly [Float64Array, Float64Array];
   readonly ctx: EngineLoadContext;
 }
 
@@ -68,9 +68,9 @@ export function createWorkspace(unknowns: number, stateSize: number): Workspace 
   const size = lu.size;
   const rhs = new Float64Array(size);
   const x = new Float64Array(size);
-  // Each state slot pair is (charge, current); a few histories serve higher-order methods later.
-  const states = [0, 1, 2, 3].map(() => new Float64Array(Math.max(stateSize, 1)));
-  const ctx = new EngineLoadContext(lu.matrix, rhs, x, states[0]!, states[1]!);
+  // Each state slot pair is (charge, current); backward Euler and the trapezoidal rule need the present and the last accepted state only.
+  const states = [new Float64Array(Math.max(stateSize, 1)), new Float64Array(Math.max(stateSize, 1))] as const;
+  const ctx = new EngineLoadContext(lu.matrix, rhs, x, states[0], states[1]);
   return { size, unknowns, lu, rhs, x, xNext: new Float64Array(size), states, ctx };
 }
 
