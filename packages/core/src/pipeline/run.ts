@@ -63,6 +63,18 @@ function acDriveWarnings(flat: FlatCircuit): Diagnostic[] {
   return out;
 }
 
+/**
+ * The note on `.spread` lines: they are read and checked, but tolerance
+ * runs (a later `railcheck spread` command) are not implemented yet, so
+ * `run` does not use them. One note, at the first such line.
+ */
+export function spreadNote(flat: FlatCircuit): Diagnostic[] {
+  const first = flat.spreads[0];
+  if (!first) return [];
+  const n = flat.spreads.length;
+  return [warningAt('spread-not-used', `tolerance runs are not implemented yet; .spread lines are read but not used by run (${n} .spread line${n === 1 ? '' : 's'}; a later \`railcheck spread\` command will read them)`, first.origin.pos, first.origin.lineText)];
+}
+
 /** Runs every analysis of a compiled circuit. Throws only RailcheckError (an analysis that fails). */
 export function analyse(c: CompiledCircuit): { operatingPoints: OperatingPoint[]; sweeps: DcSweep[]; transients: TransientResult[]; ac: AcResult[] } {
   const flat = c.flat;
@@ -101,7 +113,7 @@ function runParsed(parsed: ParseResult): RunResult {
   const prepared = prepare(parsed);
   if (!prepared.ok) return prepared;
   const c = prepared.compiled;
-  const warnings = [...prepared.warnings, ...safetyWarnings(c.flat), ...acDriveWarnings(c.flat)];
+  const warnings = [...prepared.warnings, ...safetyWarnings(c.flat), ...acDriveWarnings(c.flat), ...spreadNote(c.flat)];
   try {
     const results = analyse(c);
     setCircuitTemperature(c, c.flat.temperatures[0] ?? 27);
