@@ -106,6 +106,7 @@ export interface DipPlan {
 
 /** What every bench offers the figures. */
 export interface BenchCommon {
+  /** Which strategy: `dc` or `sine-fed` (figure registry). */
   readonly kind: BenchKind;
   /** The stage on the bench's own circuit. */
   readonly stage: Stage;
@@ -140,7 +141,9 @@ export interface DcBench extends BenchCommon {
 /** A sine-fed stage's bench: the source's amplitude (V peak) and frequency (Hz). */
 export interface SineFedBench extends BenchCommon {
   readonly kind: 'sine-fed';
+  /** The source's amplitude as written, V peak. */
   readonly amplitude: number;
+  /** The source's frequency, Hz. */
   readonly frequency: number;
 }
 

@@ -94,9 +94,9 @@ export function createDcBench(stage: Stage): DcBench {
     reset(nominalDrive({ inputAc: amp }));
     const start = smallSignalStart(stage, hertz);
     applyDrive(stage, nominalDrive({ waveform: sine(amp, hertz, stage.inputDc) }), voutNominal);
-    const pss = runToPeriodicSteadyState(c, { period: 1 / hertz, probes: [(x) => vout(stage, x)], ...(ppFloor !== undefined ? { ppFloor } : {}), initialSolution: start }, what, stage.supply.origin);
-    const last = pss.last[0]!;
-    return { start, cycles: pss.cycles, outPp: last.max - last.min };
+    const periodic = runToPeriodicSteadyState(c, { period: 1 / hertz, probes: [(x) => vout(stage, x)], ...(ppFloor !== undefined ? { ppFloor } : {}), initialSolution: start }, what, stage.supply.origin);
+    const last = periodic.last[0]!;
+    return { start, cycles: periodic.cycles, outPp: last.max - last.min };
   };
   const sign: 1 | -1 = stage.inputDc < 0 ? -1 : 1;
 

@@ -9,7 +9,7 @@ import { errorAt, RailcheckError, warningAt, type Diagnostic } from '../errors.j
 import type { CompiledCircuit } from '../engine/compile.js';
 import type { FlatFigure, FlatLimit } from '../elaborate/flat.js';
 import type { LimitOp } from '../netlist/ast.js';
-import { FIGURE_KIND_INFO, figureUnit, type BenchKind, type FigureUnit } from '../figure-registry.js';
+import { FIGURE_KIND_INFO, figureEntry, figureUnit, type BenchKind, type FigureUnit } from '../figure-registry.js';
 import { createBench } from './create-bench.js';
 import { dropout, type Dropout } from './dropout.js';
 import { measureFigure, type MeasuredFigure } from './figure-values.js';
@@ -60,13 +60,20 @@ function compare(actual: number, op: LimitOp, value: number): boolean {
     .exhaustive();
 }
 
-/** Checks the limits against measured values. Throws RailcheckError for a limit whose figure produced no value. */
-export function checkLimits(limits: readonly FlatLimit[], values: Readonly<Record<string, number>>): LimitResult[] {
+/**
+ * Checks the limits against measured values. Throws RailcheckError for a
+ * limit whose figure produced no value; with `bench`, one that kind of
+ * stage never produces (figure registry) is named as such.
+ */
+export function checkLimits(limits: readonly FlatLimit[], values: Readonly<Record<string, number>>, bench?: BenchKind): LimitResult[] {
   const lower = new Map(Object.entries(values).map(([n, v]) => [n.toLowerCase(), v]));
   return limits.map((l) => {
     const actual = lower.get(l.figure.toLowerCase());
     if (actual === undefined) {
-      throw new RailcheckError([errorAt('limit-without-figure', `.limit ${l.figure}: no such value was measured (check the figure's method= or the element name)`, l.origin.pos, l.origin.lineText, `one of: ${[...lower.keys()].join(', ') || '(no figures measured)'}`)]);
+      const why = bench !== undefined && figureEntry(l.figure) !== undefined && figureUnit(l.figure, bench) === undefined
+        ? `a ${bench} stage does not have this value (figures.md)`
+        : "no such value was measured (check the figure's method= or the element name)";
+      throw new RailcheckError([errorAt('limit-without-figure', `.limit ${l.figure}: ${why}`, l.origin.pos, l.origin.lineText, `one of: ${[...lower.keys()].join(', ') || '(no figures measured)'}`)]);
     }
     return { figure: l.figure, op: l.op, value: l.value, actual, pass: compare(actual, l.op, l.value) };
   });
@@ -127,5 +134,5 @@ export function measureFigures(c: CompiledCircuit): FigureReport {
   const figures = measured.map((f) => ({ ...f, units: Object.fromEntries(Object.keys(f.values).map((n) => [n, unitOf(n, kind!)])) }));
   const values: Record<string, number> = {};
   for (const f of figures) Object.assign(values, f.values);
-  return { figures, values, limits: checkLimits(flat.limits, values), warnings, voutNominal, bench: kind };
+  return { figures, values, limits: checkLimits(flat.limits, values, kind), warnings, voutNominal, bench: kind };
 }

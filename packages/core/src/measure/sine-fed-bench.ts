@@ -10,7 +10,6 @@
  */
 import type { WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
-import { formatSI } from '../units.js';
 import { dipCorners, type DipPlan, type DipShape, type OutputStats, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
 import { runToPeriodicSteadyState, type Probe } from './periodic.js';
 import { applyDrive, loadCurrentOf, vout, type Stage } from './stage.js';
@@ -43,7 +42,7 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
   let lastT = Number.NaN;
   let lastCycle = 0;
   applyDrive(stage, { dc: stage.inputDc, waveform: { ...sine, va: sine.va * setting.level }, loadAmps: setting.loadAmps }, voutNominal);
-  const pss = runToPeriodicSteadyState(c, {
+  const periodic = runToPeriodicSteadyState(c, {
     period,
     probes,
     ...(power
@@ -63,7 +62,7 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
         }
       : {}),
   }, what, stage.supply.origin);
-  const [o, feed, margin] = pss.last;
+  const [o, feed, margin] = periodic.last;
   const perElement: Record<string, number> = {};
   names.forEach((n, k) => (perElement[n] = energy[k]! / period));
   return {
@@ -73,7 +72,7 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
     pp: o!.max - o!.min,
     power: power ? perElement : undefined,
     feed: feed && margin ? { pp: feed.max - feed.min, headroomMin: margin.min } : undefined,
-    cycles: pss.cycles,
+    cycles: periodic.cycles,
   };
 }
 
@@ -137,9 +136,4 @@ export function createSineFedBench(stage: Stage): SineFedBench {
       };
     },
   };
-}
-
-/** Words for a sine-fed source: its amplitude as written. */
-export function amplitudeWords(b: SineFedBench): string {
-  return formatSI(b.amplitude, 'V');
 }

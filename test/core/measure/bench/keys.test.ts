@@ -30,3 +30,11 @@ describe('keys a sine-fed stage does not read', () => {
     expect(notes('sin(0 10 50)', '.figure line from=0.8 to=1.2')).toEqual([]);
   });
 });
+
+describe('limits on values a kind of stage does not have', () => {
+  test('.limit line.slope on a sine-fed stage is an error that says a sine-fed stage has no such value', () => {
+    const r = runNetlist(['keys', 'V1 in 0 sin(0 10 50)', 'R1 in out 1k', 'R2 out 0 1k', '.supply in=V1 out=out', '.figure line', '.limit line.slope < 1', '.end', ''].join('\n'));
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.errors.map((e) => e.message).join('\n')).toMatch(/line\.slope: a sine-fed stage does not have this value/);
+  });
+});
