@@ -52,33 +52,40 @@ export function createDcBench(stage: Stage): DcBench {
   const railSign = signed < 0 ? -1 : 1;
   const voutNominal = Math.abs(signed);
   const loadNominal = loadCurrentOf(stage, voutNominal);
-  const snapshot: Snapshot = { x: new Float64Array(ws.x), state: new Float64Array(ws.states[0]!), statePrev: new Float64Array(ws.states[1]!) };
+  const snapshot: Snapshot = { x: new Float64Array(ws.x), state: new Float64Array(ws.states[0]), statePrev: new Float64Array(ws.states[1]) };
   const nominalSetting: DcSetting = { vin: stage.inputDc, loadAmps: loadNominal };
   const nominalDrive = (extra: Partial<Drive> = {}): Drive => ({ dc: stage.inputDc, waveform: stage.inputWaveform, loadAmps: loadNominal, ...extra });
 
-  /** Puts the circuit back in its nominal state with `drive` applied: every solve starts here. */
-  const reset = (drive: Drive): void => {
-    ws.x.set(snapshot.x);
-    ws.states[0]!.set(snapshot.state);
-    ws.states[1]!.set(snapshot.statePrev);
+  /** Puts the circuit in `at` (solution and device state) with `drive` applied. */
+  const restore = (at: Snapshot, drive: Drive): void => {
+    ws.x.set(at.x);
+    ws.states[0].set(at.state);
+    ws.states[1].set(at.statePrev);
     ws.ctx.mode = 'dc';
     ws.ctx.time = 0;
     ws.ctx.gmin = FINAL_GMIN;
     ws.ctx.sourceScale = 1;
     applyDrive(stage, drive, voutNominal);
   };
+  /** Every solve that does not continue a walk starts from the nominal state. */
+  const reset = (drive: Drive): void => restore(snapshot, drive);
   const statsHere = (power: boolean): OutputStats => {
     const v = railSign * vout(stage);
     return { mean: v, min: v, max: v, pp: 0, power: power ? readSolution(c).power : undefined, feed: undefined, cycles: 0 };
   };
+  // A walk keeps its own last state, so walks (and other solves) may interleave on one bench.
   const walk = (): SteadyWalk => {
-    reset(nominalDrive());
+    const here: Snapshot = { x: new Float64Array(snapshot.x), state: new Float64Array(snapshot.state), statePrev: new Float64Array(snapshot.statePrev) };
     let current = nominalSetting;
     return {
       solve(setting: StageSetting, what: string, power = false): OutputStats {
+        restore(here, nominalDrive());
         const target: DcSetting = { vin: setting.level, loadAmps: setting.loadAmps };
         solveSetting(stage, current, target, voutNominal, what);
         current = target;
+        here.x.set(ws.x);
+        here.state.set(ws.states[0]);
+        here.statePrev.set(ws.states[1]);
         return statsHere(power);
       },
     };

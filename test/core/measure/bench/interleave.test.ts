@@ -50,8 +50,9 @@ const alone = (c: CompiledCircuit): Record<Name, unknown> => Object.fromEntries(
 /** The shared circuit's own operating point: benches must leave it as it was. */
 const sharedPoint = (c: CompiledCircuit) => operatingPoint(c, 27);
 
+const reference = alone(follower);
+
 describe('two benches on one compiled circuit', () => {
-  const reference = alone(follower);
   const before = sharedPoint(follower);
 
   test('any interleaving of their figure calls gives each figure as measured alone (fast-check)', () => {
@@ -76,6 +77,27 @@ describe('two benches on one compiled circuit', () => {
       expect(FIGURES[NAMES[k]!](b)).toEqual(reference[NAMES[k]!]);
     }
     expect(sharedPoint(follower)).toEqual(before);
+  });
+});
+
+describe('walks on one bench', () => {
+  test('two walks (each continuing from its own last solve) interleaved give what each gives alone', () => {
+    const levels = { a: [11, 9, 7.5, 6.8], b: [13, 8, 12] };
+    const bench = createBench(follower);
+    const load = bench.loadNominal;
+    const aloneA = (() => { const w = bench.walk(); return levels.a.map((level) => w.solve({ level, loadAmps: load }, 'a')); })();
+    const aloneB = (() => { const w = bench.walk(); return levels.b.map((level) => w.solve({ level, loadAmps: load }, 'b')); })();
+    const [wa, wb] = [bench.walk(), bench.walk()];
+    const mixedA = [];
+    const mixedB = [];
+    for (let k = 0; k < 4; k++) {
+      mixedA.push(wa.solve({ level: levels.a[k]!, loadAmps: load }, 'a'));
+      if (k < levels.b.length) mixedB.push(wb.solve({ level: levels.b[k]!, loadAmps: load }, 'b'));
+      // A figure in between, on the same bench.
+      expect(lineRegulation(bench)).toEqual(reference.line);
+    }
+    expect(mixedA).toEqual(aloneA);
+    expect(mixedB).toEqual(aloneB);
   });
 });
 
