@@ -1,7 +1,9 @@
 /**
  * @railcheck/core: the netlist reader, elaboration, the MNA engine with
- * Newton iteration, and the analyses. Layers: parse → elaborate → compile →
- * analyse (→ measure → present in later layers).
+ * Newton iteration, the analyses, the power-supply figures and the run.
+ * Layers, each importing only those before it (test/core/layers.test.ts):
+ * netlist → elaborate → engine → analysis → measure → pipeline, with the
+ * shared errors.ts, units.ts and figure-registry.ts below them all.
  */
 export { RailcheckError, errorAt, warningAt, formatDiagnostic } from './errors.js';
 export type { Diagnostic, SourcePos } from './errors.js';

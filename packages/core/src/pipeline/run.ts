@@ -1,7 +1,7 @@
 /**
  * The whole pipeline for one netlist: read → elaborate → compile → analyse
- * at every `.temp` temperature. Returns values, never throws for anything a
- * netlist can contain.
+ * at every `.temp` temperature → measure the figures (at the first). Returns
+ * values, never throws for anything a netlist can contain.
  */
 import { warningAt, RailcheckError, type Diagnostic, errorAt } from '../errors.js';
 import { parseNetlist, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
@@ -116,7 +116,7 @@ function runParsed(parsed: ParseResult): RunResult {
   const warnings = [...prepared.warnings, ...safetyWarnings(c.flat), ...acDriveWarnings(c.flat), ...spreadNote(c.flat)];
   try {
     const results = analyse(c);
-    setCircuitTemperature(c, c.flat.temperatures[0] ?? 27);
+    // Figures are measured on a bench of their own at the first .temp (measure/create-bench.ts).
     const figures = c.flat.figures.length > 0 || c.flat.limits.length > 0 ? measureFigures(c) : undefined;
     if (figures) warnings.push(...figures.warnings);
     return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, compiled: c, ...results, figures, warnings } };
