@@ -68,3 +68,5 @@ export { runToPeriodicSteadyState, SETTLE_TOLERANCE } from './measure/periodic.j
 export type { PeriodicOptions, PeriodicResult, CycleStats, Probe } from './measure/periodic.js';
 export { createAcBench, pssAt, measureAcFedFigure } from './measure/acfed.js';
 export type { AcBench, PssPoint } from './measure/acfed.js';
+export { findPeriodicSteadyState, SETTLE_RATIO, STATE_RELTOL } from './analysis/steady-state.js';
+export type { SteadyState, SteadyStateMethod, SteadyStateOptions, SteadyStateOutcome } from './analysis/steady-state.js';
