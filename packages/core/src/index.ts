@@ -71,3 +71,5 @@ export { sagRideThrough } from './measure/sag.js';
 export type { SagOptions, SagRideThrough } from './measure/sag.js';
 export { runToPeriodicSteadyState, SETTLE_TOLERANCE, MinMaxWindow } from './measure/periodic.js';
 export type { PeriodicOptions, PeriodicResult, CycleStats, Probe } from './measure/periodic.js';
+export { findPeriodicSteadyState, SETTLE_RATIO, STATE_RELTOL, DISTANCE_RELTOL } from './analysis/steady-state.js';
+export type { SteadyState, SteadyStateMethod, SteadyStateOptions, SteadyStateOutcome } from './analysis/steady-state.js';

@@ -83,6 +83,10 @@ class BjtImpl implements Bjt {
     this.topo = { dcPaths: paths, voltageDefined: [] };
   }
 
+  chargeSlots(): readonly number[] {
+    return this.hasCharge ? [this.chargeOff, this.chargeOff + 2] : [];
+  }
+
   bind(slots: SlotBinder): void {
     const { ci, bi, ei } = this;
     this.sCC = slots.slot(ci, ci);

@@ -133,4 +133,11 @@ export interface Device {
   topology(): Topology;
   /** Terminal currents and absorbed power at solution `x` (not for the hot loop). */
   report(x: Float64Array, state: Float64Array): DeviceReport;
+  /**
+   * State-vector offsets of the charges (C) and fluxes (Wb) this device
+   * integrates, each followed by its current at offset + 1; valid after
+   * allocate. These are the state of the circuit in the periodic-steady-state
+   * sense (Aprille and Trick 1972). Devices without stored charge omit it.
+   */
+  chargeSlots?(): readonly number[];
 }

@@ -129,6 +129,10 @@ class DiodeImpl implements Diode {
     };
   }
 
+  chargeSlots(): readonly number[] {
+    return this.hasCharge ? [this.chargeOff] : [];
+  }
+
   bind(slots: SlotBinder): void {
     this.junction.bind(slots, this.ja, this.nodes[1]);
     if (this.ja !== this.nodes[0]) this.series.bind(slots, this.nodes[0], this.ja);

@@ -95,6 +95,10 @@ class CapacitorImpl implements Capacitor {
 
   setTemperature(_kelvin: number): void {}
 
+  chargeSlots(): readonly number[] {
+    return [this.offset];
+  }
+
   seedInitialCondition(state: Float64Array): boolean {
     if (this.initialCondition === undefined) return false;
     state[this.offset] = this.capacitance * this.initialCondition;
@@ -175,6 +179,10 @@ class InductorImpl implements Inductor {
   }
 
   setTemperature(_kelvin: number): void {}
+
+  chargeSlots(): readonly number[] {
+    return [this.offset];
+  }
 
   seedInitialCondition(state: Float64Array): boolean {
     if (this.initialCondition === undefined) return false;

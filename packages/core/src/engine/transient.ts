@@ -59,6 +59,24 @@ export interface TransientOptions {
    * it. Used to start a ripple run on its small-signal steady state.
    */
   readonly initialSolution?: Float64Array;
+  /**
+   * Start from this full state vector (charges and their currents, junction
+   * memory) without solving a point at the start: the first step integrates
+   * from these charges, with `guess` (unknowns + 1 entries) as the first
+   * Newton iterate. The point stored and reported at the start time is the
+   * guess. For the one-period map of the periodic-steady-state analysis.
+   */
+  readonly initialState?: { readonly state: Float64Array; readonly guess: Float64Array };
+  /** Time at which the run starts, s (default 0); the run covers [startTime, tstop]. */
+  readonly startTime?: number;
+  /**
+   * Take exactly these times (ascending, after startTime, the last = tstop)
+   * as the accepted points, with no truncation-error control: the
+   * finite-difference sensitivities of the period map need every perturbed
+   * run on the step sequence of the unperturbed one. A time point whose
+   * Newton iteration fails is approached in smaller steps.
+   */
+  readonly replayTimes?: Float64Array;
 }
 
 /** Counters of one run. */
@@ -115,13 +133,14 @@ function pushPoint(trace: TransientTrace, t: number, x: Float64Array): void {
   trace.count++;
 }
 
-function collectBreakpoints(sources: Iterable<IndependentSource>, tstop: number, extra: readonly number[]): Float64Array {
+function collectBreakpoints(sources: Iterable<IndependentSource>, tstart: number, tstop: number, extra: readonly number[]): Float64Array {
   const all: number[] = [...extra];
-  for (const s of sources) s.breakpoints(0, tstop, all);
+  for (const s of sources) s.breakpoints(tstart, tstop, all);
   all.push(tstop);
   all.sort((a, b) => a - b);
   const out: number[] = [];
-  for (const t of all) if (t > 0 && t <= tstop && (out.length === 0 || t - out[out.length - 1]! > tstop * 1e-12)) out.push(t);
+  const gap = tstop * 1e-12;
+  for (const t of all) if (t > tstart + gap && t <= tstop && (out.length === 0 || t - out[out.length - 1]! > gap)) out.push(t);
   return Float64Array.from(out);
 }
 
@@ -159,7 +178,8 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
   for (const s of sources) s.defaultEdge = opts.tstep;
   try {
     const tstop = opts.tstop;
-    const hMax = Math.min(opts.tmax ?? tstop / 50, smallestSinePeriod(sources) / stepsPerCycle);
+    const t0 = opts.startTime ?? 0;
+    const hMax = Math.min(opts.tmax ?? (tstop - t0) / 50, smallestSinePeriod(sources) / stepsPerCycle);
     const hMin = tstop * MIN_STEP_FRACTION;
     const isVoltage = Uint8Array.from(c.unknowns, (u) => (u.kind === 'branch' ? 0 : 1));
     const trace: TransientTrace = { size: ws.size, count: 0, times: new Float64Array(1024), values: new Float64Array(1024 * ws.size) };
@@ -184,11 +204,19 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       stats.newtonIterations += r.iterations;
       if (!r.converged) return fail('initial-point', 0);
       state.set(statePrev);
+    } else if (opts.initialState) {
+      x.set(opts.initialState.guess);
+      x[0] = 0;
+      state.set(opts.initialState.state);
+      statePrev.set(opts.initialState.state);
+      ctx.mode = 'tran';
+      ctx.time = t0;
+      ctx.initJunctions = false;
     } else if (opts.initialSolution) {
       x.set(opts.initialSolution);
       x[0] = 0;
       ctx.mode = 'tran';
-      ctx.time = 0;
+      ctx.time = t0;
       ctx.coefficients.a0 = 0;
       ctx.coefficients.a1 = 0;
       ctx.initJunctions = false;
@@ -207,20 +235,23 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       statePrev.set(state);
     }
     ctx.mode = 'tran';
-    pushPoint(trace, 0, x);
-    opts.onAccept?.(0, ctx);
+    pushPoint(trace, t0, x);
+    opts.onAccept?.(t0, ctx);
     const history = new SolutionHistory(ws.size, 3);
-    history.reset(0, x);
-    const breakpoints = collectBreakpoints(sources, tstop, opts.extraBreakpoints ?? []);
+    history.reset(t0, x);
+    const breakpoints = collectBreakpoints(sources, t0, tstop, opts.extraBreakpoints ?? []);
     const keep = opts.keepTrace ?? true;
+    const replay = opts.replayTimes;
+    let nextReplay = 0;
     let nextBreak = 0;
-    let t = 0;
+    let t = t0;
     const fixed = opts.fixedStep;
-    let h = fixed ?? Math.min(hMax, opts.tstep, breakpoints[0] ?? tstop) / 100;
+    let h = replay ? replay[0]! - t0 : (fixed ?? Math.min(hMax, opts.tstep, (breakpoints[0] ?? tstop) - t0) / 100);
     let firstAfterBreak = true;
     while (t < tstop) {
       const target = breakpoints[nextBreak]!;
       let tNew = t + h;
+      if (replay && tNew >= replay[nextReplay]! - hMin) tNew = replay[nextReplay]!;
       let landing = false;
       if (tNew >= target - (fixed === undefined ? hMin : fixed * 1e-6)) {
         tNew = target;
@@ -242,7 +273,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
         if (h < hMin) return fail('step-too-small', tNew);
         continue;
       }
-      const ratio = fixed === undefined ? history.errorRatio(tNew, x, order, isVoltage, reltol, vntol) : 0;
+      const ratio = fixed === undefined && !replay ? history.errorRatio(tNew, x, order, isVoltage, reltol, vntol) : 0;
       if (ratio > 1 && hStep > hMin * 16) {
         stats.rejectedLte++;
         x.set(history.last);
@@ -272,6 +303,10 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
         if (landing) nextBreak++;
         history.accept(t, x);
         firstAfterBreak = false;
+      }
+      if (replay) {
+        while (nextReplay < replay.length - 1 && replay[nextReplay]! <= t + hMin) nextReplay++;
+        h = replay[nextReplay]! - t;
       }
     }
     return { ok: true, trace, stats };
