@@ -11,6 +11,7 @@ import { describe, expect, test } from 'vitest';
 import { cli, netlistFile } from './support.js';
 
 interface OpJson {
+  readonly basis: string;
   readonly nodes: Record<string, number>;
   readonly currents: Record<string, number>;
   readonly power: Record<string, number>;
@@ -48,7 +49,9 @@ describe('--json', () => {
     const { status, json } = await runJson(DIVIDER);
     expect(status).toBe(0);
     expect(json.title).toBe('Bench reference divider');
-    expect(Object.keys(json.op).sort()).toEqual(['currents', 'nodes', 'power']);
+    // figures.md asks for at least nodes, currents and power; basis says what the values are ('dc' here, 'cycle-average' for a sine-fed stage).
+    expect(Object.keys(json.op).sort()).toEqual(['basis', 'currents', 'nodes', 'power']);
+    expect(json.op.basis).toBe('dc');
     expect(typeof json.figures).toBe('object');
     expect(Array.isArray(json.limits)).toBe(true);
     expect(Array.isArray(json.warnings)).toBe(true);

@@ -75,8 +75,9 @@ export const FIGURES: readonly FigureEntry[] = [
   { name: 'sag.fall', kind: 'sag', units: both('V'), better: 'lower', title: 'output fall in the dip', doc: 'Vout_nom − the lowest Vout from the start of the dip until 5·edge after recovery' },
   { name: 'sag.pass', kind: 'sag', units: both('flag'), better: 'higher', title: 'rides through', doc: '1 when sag.fall ≤ fall, else 0', flagWords: { one: 'holds', zero: 'falls too far' } },
   { name: 'sag.max_depth', kind: 'sag', units: both('ratio'), better: 'higher', title: 'deepest dip ridden through', doc: 'the deepest dip of the same shape with sag.fall ≤ fall' },
-  { name: 'sag.out_pp', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple in the dip', doc: 'output peak-to-peak over the last whole ripple cycle of the dip' },
-  { name: 'sag.out_pp_before', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple before the dip', doc: 'output peak-to-peak over the last whole ripple cycle before the dip' },
+  { name: 'sag.out_pp', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple in the dip', doc: 'output peak-to-peak over the last whole ripple cycle of the dip, the drift across the cycle taken out' },
+  { name: 'sag.out_pp_max', kind: 'sag', units: both('V'), better: 'lower', title: 'largest output ripple in the dip', doc: 'the largest such drift-free peak-to-peak over the whole ripple cycles at the bottom of the dip' },
+  { name: 'sag.out_pp_before', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple before the dip', doc: 'output peak-to-peak over the last whole ripple cycle before the dip, the drift across the cycle taken out' },
 ];
 
 /** A numeric `.figure` key: `percent` when it may be written as `5%` (a ratio). */

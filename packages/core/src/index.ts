@@ -56,7 +56,7 @@ export { measureFigures, checkLimits, unusedKeyNotes } from './measure/figures.j
 export type { FigureReport, MeasuredFigure, MeasuredFigureWithUnits, LimitResult } from './measure/figures.js';
 export { createBench } from './measure/create-bench.js';
 export type { BenchOptions } from './measure/create-bench.js';
-export type { Bench, BenchCommon, DcBench, SineFedBench, StageSetting, OutputStats, SteadyWalk, InputAxis, DropoutRule, SteadyRipple, DipShape, DipPlan } from './measure/bench.js';
+export type { CycleOperatingPoint, NodeCycle, Bench, BenchCommon, DcBench, SineFedBench, StageSetting, OutputStats, SteadyWalk, InputAxis, DropoutRule, SteadyRipple, DipShape, DipPlan } from './measure/bench.js';
 export { makeStage, vout } from './measure/stage.js';
 export type { Stage, StageLoad, Drive, DcSetting } from './measure/stage.js';
 export { lineRegulation, loadRegulation } from './measure/regulation.js';
@@ -69,7 +69,7 @@ export { dissipation, ratingWarnings } from './measure/dissipation.js';
 export type { Dissipation, DissipationOptions } from './measure/dissipation.js';
 export { sagRideThrough } from './measure/sag.js';
 export type { SagOptions, SagRideThrough } from './measure/sag.js';
-export { runToPeriodicSteadyState, SETTLE_TOLERANCE, MinMaxWindow } from './measure/periodic.js';
-export type { PeriodicOptions, PeriodicResult, CycleStats, Probe } from './measure/periodic.js';
+export { settleCycle, describeSteady, MinMaxWindow } from './measure/periodic.js';
+export type { PeriodicOptions, PeriodicResult, CycleStats, Probe, SteadyInfo } from './measure/periodic.js';
 export { findPeriodicSteadyState, SETTLE_RATIO, STATE_RELTOL, DISTANCE_RELTOL } from './analysis/steady-state.js';
 export type { SteadyState, SteadyStateMethod, SteadyStateOptions, SteadyStateOutcome } from './analysis/steady-state.js';

@@ -2,7 +2,7 @@
  * The report a person reads: the operating point (node voltages, element
  * currents and dissipation) and DC sweeps, with engineering prefixes.
  */
-import { formatDiagnostic, formatSI, type DcSweep, type Diagnostic, type OperatingPoint, type RunReport } from '@railcheck/core';
+import { describeSteady, formatDiagnostic, formatSI, type CycleOperatingPoint, type DcSweep, type Diagnostic, type OperatingPoint, type RunReport } from '@railcheck/core';
 import { heading, table } from './table.js';
 import { formatAc, formatTransient } from './waves.js';
 import { formatFigures, formatLimits, formatStage } from './figures.js';
@@ -45,6 +45,33 @@ export function formatOperatingPoint(op: OperatingPoint, report: RunReport): str
   return parts.join('\n');
 }
 
+/**
+ * A sine-fed stage's operating point: cycle averages at periodic steady
+ * state, each node with its least and greatest value over the cycle.
+ */
+export function formatCycleOperatingPoint(op: CycleOperatingPoint, report: RunReport): string {
+  const parts: string[] = [];
+  parts.push(heading(`Operating point at ${report.circuit.temperatures[0] ?? 27} °C: averages over one cycle at periodic steady state`));
+  parts.push(`  steady state by ${describeSteady(op.steady)}`);
+  parts.push('');
+  parts.push(table([['node', 'mean', 'min', 'max'], ...Object.entries(op.nodes).map(([n, v]) => [n, formatSI(v.mean, 'V'), formatSI(v.min, 'V'), formatSI(v.max, 'V')])]));
+  parts.push('');
+  const rows: string[][] = [['element', 'mean current', 'mean power', 'rating']];
+  for (const el of report.circuit.elements) {
+    const p = op.power[el.name] ?? 0;
+    const rating = el.pmax === undefined ? '' : `${formatSI(el.pmax, 'W')}${p > el.pmax ? '  OVER' : ''}`;
+    if (el.kind === 'bjt') {
+      const [c, b, e] = ['c', 'b', 'e'].map((t) => formatSI(op.currents[`${el.name}.${t}`] ?? 0, 'A'));
+      rows.push([el.name, `c ${c}  b ${b}  e ${e}`, formatSI(p, 'W'), rating]);
+    } else {
+      rows.push([el.name, formatSI(op.currents[el.name] ?? 0, 'A'), formatSI(p, 'W'), rating]);
+    }
+  }
+  parts.push(table(rows));
+  parts.push('  (cycle averages; currents enter an element at its first node; a source delivering power shows negative current and power)');
+  return parts.join('\n');
+}
+
 /** Largest number of node columns printed for a sweep in text (all are in --json). */
 const SWEEP_COLUMNS = 6;
 
@@ -74,7 +101,10 @@ export function formatReport(report: RunReport): string {
   if (report.figures && report.figures.figures.length > 0) parts.push(formatFigures(report.figures, report.circuit.temperatures[0] ?? 27), '');
   const limits = report.figures ? formatLimits(report.figures.limits, report.figures) : '';
   if (limits) parts.push(limits, '');
-  for (const op of report.operatingPoints) parts.push(formatOperatingPoint(op, report), '');
+  // A sine-fed stage's operating point is its cycle average; the DC solutions at switch-on are only in --json.
+  const cycle = report.figures?.cycleOperatingPoint;
+  if (cycle) parts.push(formatCycleOperatingPoint(cycle, report), '');
+  else for (const op of report.operatingPoints) parts.push(formatOperatingPoint(op, report), '');
   for (const s of report.sweeps) parts.push(formatSweep(s), '');
   for (const t of report.transients) parts.push(formatTransient(t), '');
   for (const a of report.ac) parts.push(formatAc(a), '');

@@ -107,13 +107,26 @@ export interface SteadyState {
 export type SteadyStateOutcome =
   | { readonly ok: true; readonly steady: SteadyState }
   | { readonly ok: false; readonly reason: 'transient-failed'; readonly time: number }
-  | { readonly ok: false; readonly reason: 'not-settled'; readonly periods: number; readonly residual: number };
+  | {
+      readonly ok: false;
+      readonly reason: 'not-settled';
+      readonly periods: number;
+      readonly residual: number;
+      /** The element whose charge or flux was furthest from settling (e.g. a capacitor with no discharge path). */
+      readonly slowest: string | undefined;
+    };
 
-/** Offsets of every stored charge and flux in the state vector. */
-function chargeSlots(c: CompiledCircuit): Int32Array {
+/** Offsets of every stored charge and flux in the state vector, and the name of the element each belongs to. */
+function chargeSlots(c: CompiledCircuit): { slots: Int32Array; owners: string[] } {
   const out: number[] = [];
-  for (const d of c.devices) for (const s of d.chargeSlots?.() ?? []) out.push(s);
-  return Int32Array.from(out);
+  const owners: string[] = [];
+  for (const d of c.devices) {
+    for (const s of d.chargeSlots?.() ?? []) {
+      out.push(s);
+      owners.push(d.name);
+    }
+  }
+  return { slots: Int32Array.from(out), owners };
 }
 
 /** One period run: the state and solution at its end, the extent of every slot over it, and (when asked) its accepted times. */
@@ -129,6 +142,7 @@ type RunStart = { readonly solution: Float64Array } | { readonly state: Float64A
 
 class PeriodRunner {
   readonly slots: Int32Array;
+  readonly owners: readonly string[];
   periods = 0;
   private readonly times: number[] = [];
 
@@ -137,7 +151,9 @@ class PeriodRunner {
     private readonly period: number,
     private readonly opts: SteadyStateOptions,
   ) {
-    this.slots = chargeSlots(c);
+    const found = chargeSlots(c);
+    this.slots = found.slots;
+    this.owners = found.owners;
   }
 
   /** Runs `count` periods from `t0`; returns undefined (and the failure time) when the transient fails. */
@@ -325,6 +341,7 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
     const budget = opts.maxCycles ?? 4000;
     let previous: Float64Array | undefined;
     let residual = Infinity;
+    let slowest: string | undefined;
     for (let k = 0; k < budget; k++) {
       const r = runner.run(t0, { state, guess }, 1, false);
       if ('failedAt' in r) return { ok: false, reason: 'transient-failed', time: r.failedAt };
@@ -336,7 +353,11 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
         const now = Math.abs(f[j]!);
         const rho = previous ? now / Math.max(Math.abs(previous[j]!), 1e-300) : 1;
         const toCome = now <= 1e-2 * tol[j]! ? 0 : rho < 1 ? (now * rho) / (1 - rho) : Infinity;
-        worst = Math.max(worst, now / tol[j]!, toCome / tolDistance[j]!);
+        const ratio = Math.max(now / tol[j]!, toCome / tolDistance[j]!);
+        if (ratio > worst) {
+          worst = ratio;
+          slowest = runner.owners[j];
+        }
       }
       residual = worst;
       previous = f;
@@ -347,7 +368,7 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
         break;
       }
     }
-    if (!settled) return { ok: false, reason: 'not-settled', periods: runner.periods, residual };
+    if (!settled) return { ok: false, reason: 'not-settled', periods: runner.periods, residual, slowest };
   }
 
   // The settled cycle, started from the consistent solution at its start.

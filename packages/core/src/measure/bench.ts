@@ -15,6 +15,7 @@
  * which figures were measured before it.
  */
 import type { BenchKind } from '../figure-registry.js';
+import type { SteadyInfo } from './periodic.js';
 import type { Stage } from './stage.js';
 
 /** Where the bench's stage sits: input level (on the bench's axis) and load current. */
@@ -38,8 +39,32 @@ export interface OutputStats {
   readonly power: Readonly<Record<string, number>> | undefined;
   /** With `feed=` on a sine-fed bench: the feed's peak-to-peak (V) and the least V(feed) − Vout over the cycle (V). */
   readonly feed: { readonly pp: number; readonly headroomMin: number } | undefined;
-  /** Whole cycles run to reach periodic steady state (0 at a DC point). */
-  readonly cycles: number;
+  /** How the periodic steady state was found (undefined at a DC point). */
+  readonly steady: SteadyInfo | undefined;
+}
+
+/** One node's voltage over the settled cycle, V. */
+export interface NodeCycle {
+  readonly mean: number;
+  readonly min: number;
+  readonly max: number;
+}
+
+/**
+ * The operating point of a sine-fed stage as a user reads it: cycle
+ * averages at periodic steady state (node voltages with their least and
+ * greatest value over the cycle, element currents, absorbed power), not the
+ * DC solution at switch-on.
+ */
+export interface CycleOperatingPoint {
+  /** Node name → voltage against ground over the cycle, V. */
+  readonly nodes: Readonly<Record<string, NodeCycle>>;
+  /** Element current (names as in the DC operating point) → its cycle average, A. */
+  readonly currents: Readonly<Record<string, number>>;
+  /** Element name → absorbed power averaged over the cycle, W. */
+  readonly power: Readonly<Record<string, number>>;
+  /** How the steady state was found. */
+  readonly steady: SteadyInfo;
 }
 
 /** A sequence of solves: the first starts from the nominal state, each later one from the one before (DC continuation). */
@@ -69,7 +94,13 @@ export interface InputAxis {
  */
 export type DropoutRule =
   | { readonly kind: 'crossing'; readonly target: number; readonly tolerance: number }
-  | { readonly kind: 'holding'; readonly holds: (s: OutputStats) => boolean; readonly resolution: number };
+  | {
+      readonly kind: 'holding';
+      /** How far the statistics are from losing hold, V: ≥ 0 holds (the smaller of the two margins of figures.md). */
+      readonly margin: (s: OutputStats) => number;
+      /** Width of the final bracket, as a ratio of the nominal amplitude. */
+      readonly resolution: number;
+    };
 
 /** Ripple at periodic steady state: the input's and the output's peak-to-peak (V). */
 export interface SteadyRipple {
@@ -77,8 +108,8 @@ export interface SteadyRipple {
   readonly inputPp: number | undefined;
   /** Output peak-to-peak, V. */
   readonly outputPp: number;
-  /** Whole cycles run to reach periodic steady state. */
-  readonly cycles: number;
+  /** How the periodic steady state was found. */
+  readonly steady: SteadyInfo;
 }
 
 /** The shape of an input dip (figures.md, sag); times in s, `ripple` V peak at `freq` Hz. */
@@ -119,6 +150,8 @@ export interface BenchCommon {
   readonly loadNominal: number | undefined;
   /** The nominal solve's statistics. */
   readonly nominal: OutputStats;
+  /** The operating point at nominal as a cycle average (sine-fed benches; undefined on a DC bench, whose operating point is its DC solution). */
+  readonly cycleOperatingPoint: CycleOperatingPoint | undefined;
   /** A sequence of solves from the nominal state. */
   walk(): SteadyWalk;
   /** One solve from the nominal state: `walk().solve(...)`. */

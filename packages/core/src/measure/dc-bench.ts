@@ -15,7 +15,7 @@ import { opFailure } from '../analysis/dc.js';
 import { readSolution } from '../analysis/solution.js';
 import { formatSI } from '../units.js';
 import { dipBottomEnd, dipCorners, type DcBench, type DipPlan, type DipShape, type OutputStats, type StageSetting, type SteadyRipple, type SteadyWalk } from './bench.js';
-import { runToPeriodicSteadyState } from './periodic.js';
+import { settleCycle, type SteadyInfo } from './periodic.js';
 import { inputTransfer, smallSignalStart } from './small-signal.js';
 import { applyDrive, loadCurrentOf, solveSetting, vout, type DcSetting, type Drive, type Stage } from './stage.js';
 
@@ -71,7 +71,7 @@ export function createDcBench(stage: Stage): DcBench {
   const reset = (drive: Drive): void => restore(snapshot, drive);
   const statsHere = (power: boolean): OutputStats => {
     const v = railSign * vout(stage);
-    return { mean: v, min: v, max: v, pp: 0, power: power ? readSolution(c).power : undefined, feed: undefined, cycles: 0 };
+    return { mean: v, min: v, max: v, pp: 0, power: power ? readSolution(c).power : undefined, feed: undefined, steady: undefined };
   };
   // A walk keeps its own last state, so walks (and other solves) may interleave on one bench.
   const walk = (): SteadyWalk => {
@@ -93,17 +93,16 @@ export function createDcBench(stage: Stage): DcBench {
   const sine = (amp: number, hertz: number, vo: number): WaveformSpec => ({ kind: 'sin', vo, va: amp, freq: hertz, td: 0, theta: 0, phaseDeg: 0 });
   /**
    * `amp` V peak at `hertz` Hz added to the input, run to periodic steady
-   * state from the small-signal periodic state: that start, the cycles it
-   * took, and the output peak-to-peak (V) over the last one. `ppFloor` (V)
-   * is the settling rule's absolute floor.
+   * state from the small-signal periodic state: the settled cycle's start
+   * (time and solution), how it was found, and the output peak-to-peak (V).
    */
-  const rippleSettle = (hertz: number, amp: number, ppFloor: number | undefined, what: string): { start: Float64Array; cycles: number; outPp: number } => {
+  const rippleSettle = (hertz: number, amp: number, what: string): { solution: Float64Array; start: number; steady: SteadyInfo; outPp: number } => {
     reset(nominalDrive({ inputAc: amp }));
     const start = smallSignalStart(stage, hertz);
     applyDrive(stage, nominalDrive({ waveform: sine(amp, hertz, stage.inputDc) }), voutNominal);
-    const periodic = runToPeriodicSteadyState(c, { period: 1 / hertz, probes: [(x) => vout(stage, x)], ...(ppFloor !== undefined ? { ppFloor } : {}), initialSolution: start }, what, stage.supply.origin);
+    const periodic = settleCycle(c, { period: 1 / hertz, probes: [(x: Float64Array) => vout(stage, x)], initialSolution: start }, what, stage.supply.origin);
     const last = periodic.last[0]!;
-    return { start, cycles: periodic.cycles, outPp: last.max - last.min };
+    return { solution: periodic.solution, start: periodic.start, steady: periodic.steady, outPp: last.max - last.min };
   };
   const sign: 1 | -1 = stage.inputDc < 0 ? -1 : 1;
 
@@ -114,7 +113,8 @@ export function createDcBench(stage: Stage): DcBench {
     voutNominal,
     railSign,
     loadNominal,
-    nominal: { mean: voutNominal, min: voutNominal, max: voutNominal, pp: 0, power: undefined, feed: undefined, cycles: 0 },
+    nominal: { mean: voutNominal, min: voutNominal, max: voutNominal, pp: 0, power: undefined, feed: undefined, steady: undefined },
+    cycleOperatingPoint: undefined,
     walk,
     solve: (setting, what, power) => walk().solve(setting, what, power),
     dropoutRule: (fall) => ({ kind: 'crossing', target: voutNominal - fall, tolerance: DROPOUT_INPUT_TOLERANCE }),
@@ -123,17 +123,17 @@ export function createDcBench(stage: Stage): DcBench {
       return -20 * Math.log10(inputTransfer(stage, hertz));
     },
     steadyRipple(hertz: number, amp: number): SteadyRipple {
-      // The settling rule is judged on the output p-p, which may be far below the default 1 µV floor: 1e-7 of the input's.
-      const r = rippleSettle(hertz, amp, Math.max(1e-9, amp * 1e-7), 'ripple rejection (transient)');
+      const r = rippleSettle(hertz, amp, 'ripple rejection (transient)');
       // A sine's p-p is 2·|amp| on a negative rail too.
-      return { inputPp: 2 * Math.abs(amp), outputPp: r.outPp, cycles: r.cycles };
+      return { inputPp: 2 * Math.abs(amp), outputPp: r.outPp, steady: r.steady };
     },
     planDip(shape: DipShape): DipPlan {
       const period = 1 / shape.freq;
       const rippled = shape.ripple > 0;
       // With a ripple the dip starts at a whole ripple cycle once the ripple is steady; without, from the DC point at once.
-      const settled = rippled ? rippleSettle(shape.freq, shape.ripple, undefined, 'sag: ripple before the dip') : undefined;
-      const t0 = settled ? settled.cycles * period : Math.max(shape.edge, 1e-6);
+      const settled = rippled ? rippleSettle(shape.freq, shape.ripple, 'sag: ripple before the dip') : undefined;
+      // One settled ripple cycle before the dip: the window of sag.out_pp_before.
+      const t0 = settled ? settled.start + period : Math.max(shape.edge, 1e-6);
       const plan: DipPlan = {
         t0,
         dur: shape.dur,
@@ -152,7 +152,7 @@ export function createDcBench(stage: Stage): DcBench {
             lteReltol: SAG_LTE_RELTOL,
             tmax: Math.min(shape.edge, shape.dur / 50),
             keepTrace: false,
-            ...(settled ? { initialSolution: settled.start } : {}),
+            ...(settled ? { initialSolution: settled.solution, startTime: settled.start } : {}),
             extraBreakpoints: rippled ? [t0 - period, bottomEnd - period, bottomEnd].filter((t) => t > 0) : [],
             onAccept: (t, ctx) => observe(t, railSign * vout(stage, ctx.x)),
           });

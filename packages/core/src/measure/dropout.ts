@@ -7,14 +7,15 @@
  * steps down from nominal and narrowed by Illinois regula falsi to 0.1 mV;
  * on a sine-fed bench, the lowest amplitude ratio at which the mean output
  * stays within `fall` of nominal and the ripple below twice its nominal
- * value, by bisection to 0.5 %.
+ * value, by the same bracketing and regula falsi on the smaller of the two
+ * margins (V), to 1e-5 of the amplitude.
  */
 import { match } from 'ts-pattern';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { FlatFigure } from '../elaborate/flat.js';
 import { formatSI } from '../units.js';
 import type { Bench, DropoutRule } from './bench.js';
-import { bisectBoundary, illinois } from './search.js';
+import { illinois } from './search.js';
 
 /** The dropout figures. */
 export interface Dropout {
@@ -65,10 +66,26 @@ function crossing(bench: Bench, rule: Extract<DropoutRule, { kind: 'crossing' }>
   throw new RailcheckError([errorAt('no-dropout', `the output never falls by ${formatSI(fall, 'V')} below its nominal ${formatSI(bench.voutNominal, 'V')}, even with the input at 0 V`, origin.pos, origin.lineText, 'a stage whose output depends on its input, or a smaller fall=')]);
 }
 
-/** The lowest level in [0, nominal] that holds, by bisection. */
+/**
+ * The lowest level in [0, nominal] that holds: the margin of the holding
+ * rule (V, ≥ 0 holds) is continuous in the level, so its crossing is
+ * bracketed by steps down from nominal, each solve warm-started from the
+ * last, and narrowed by Illinois regula falsi to the rule's resolution.
+ */
 function lowestHolding(bench: Bench, rule: Extract<DropoutRule, { kind: 'holding' }>): number {
-  const holds = (level: number): boolean => rule.holds(bench.solve({ level, loadAmps: bench.loadNominal }, 'dropout search'));
-  return bisectBoundary(holds, { pass: bench.input.nominal, fail: 0 }, (b) => !(b.pass - b.fail > rule.resolution)).pass;
+  const walk = bench.walk();
+  const f = (level: number): number => rule.margin(walk.solve({ level, loadAmps: bench.loadNominal }, 'dropout search'));
+  const nominal = bench.input.nominal;
+  let pos = nominal;
+  let fPos = rule.margin(bench.nominal);
+  for (let k = 1; k <= BRACKET_STEPS; k++) {
+    const level = nominal * (1 - k / BRACKET_STEPS);
+    const fv = f(level);
+    if (fv < 0) return illinois(f, { neg: level, fNeg: fv, pos, fPos }, rule.resolution * nominal);
+    pos = level;
+    fPos = fv;
+  }
+  return 0;
 }
 
 /** Finds dropout with an output fall of `fall` V (default 100 mV). Throws RailcheckError when a DC stage's output never falls that far. */

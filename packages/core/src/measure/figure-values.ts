@@ -13,6 +13,7 @@ import { formatSI } from '../units.js';
 import type { Bench } from './bench.js';
 import { dissipation } from './dissipation.js';
 import { fallVolts, type Dropout } from './dropout.js';
+import { describeSteady } from './periodic.js';
 import { lineRegulation, loadRegulation } from './regulation.js';
 import { rippleRejection } from './ripple.js';
 import { sagRideThrough } from './sag.js';
@@ -86,12 +87,12 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
         .with({ kind: 'dc' }, () => ({
           kind: 'ripple',
           values: defined({ 'ripple.rr': r.smallSignal, 'ripple.rr_tran': r.steady, 'ripple.out_pp': r.outPp }),
-          conditions: `${formatSI(r.freq, 'Hz')}, ${volts(r.amp)} peak on the input${r.cycles ? `, steady after ${r.cycles} cycles` : ''}`,
+          conditions: `${formatSI(r.freq, 'Hz')}, ${volts(r.amp)} peak on the input${r.steadyState ? `, periodic steady state by ${describeSteady(r.steadyState)}` : ''}`,
         }))
         .with({ kind: 'sine-fed' }, (b) => ({
           kind: 'ripple',
           values: defined({ 'ripple.out_pp': r.outPp, 'ripple.feed_pp': r.inputPp, 'ripple.rr': r.steady }),
-          conditions: `at ${volts(b.amplitude)} amplitude, ${formatSI(b.frequency, 'Hz')} source, periodic steady state`,
+          conditions: `at ${volts(b.amplitude)} amplitude, ${formatSI(b.frequency, 'Hz')} source, periodic steady state by ${describeSteady(b.nominal.steady!)}`,
         }))
         .exhaustive();
     })
@@ -112,6 +113,7 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
     })
     .with('sag', () => {
       const r = sagRideThrough(bench, { depth: k.get('depth'), dur: k.get('dur'), edge: k.get('edge'), fall: fallVolts(f, bench.voutNominal), ripple: k.get('ripple'), freq: k.get('freq') });
+      for (const t of r.failedTrials) ctx.warnings.push(warningAt('sag-trial-failed', `sag: a dip of ${(t.depth * 100).toFixed(1)} % could not be simulated (${t.reason}); counted as one the stage does not ride through, so sag.max_depth lies below it`, f.origin.pos, f.origin.lineText));
       const pct = (r.depth * 100).toFixed(1);
       const dip = match(bench)
         .with({ kind: 'dc' }, () => `dip of ${pct} % for ${formatSI(r.dur, 's')}`)
@@ -119,7 +121,7 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
         .exhaustive();
       return {
         kind: 'sag',
-        values: defined({ 'sag.fall': r.fall, 'sag.pass': r.pass, 'sag.max_depth': r.maxDepth, 'sag.out_pp': r.outPp, 'sag.out_pp_before': r.outPpBefore }),
+        values: defined({ 'sag.fall': r.fall, 'sag.pass': r.pass, 'sag.max_depth': r.maxDepth, 'sag.out_pp': r.outPp, 'sag.out_pp_max': r.outPpMax, 'sag.out_pp_before': r.outPpBefore }),
         conditions: `${dip}, edges ${formatSI(r.edge, 's')}, pass if the fall ≤ ${volts(r.criterion)}`,
       };
     })

@@ -11,6 +11,7 @@ import type { FlatFigure, FlatLimit } from '../elaborate/flat.js';
 import type { LimitOp } from '../netlist/ast.js';
 import { FIGURE_KIND_INFO, figureEntry, figureUnit, type BenchKind, type FigureUnit } from '../figure-registry.js';
 import { createBench } from './create-bench.js';
+import type { CycleOperatingPoint } from './bench.js';
 import { dropout, type Dropout } from './dropout.js';
 import { measureFigure, type MeasuredFigure } from './figure-values.js';
 
@@ -42,6 +43,8 @@ export interface FigureReport {
   readonly voutNominal: number | undefined;
   /** The kind of bench the figures were measured on (`sine-fed`: at periodic steady state); undefined without figures. */
   readonly bench: BenchKind | undefined;
+  /** A sine-fed stage's operating point as cycle averages at periodic steady state (undefined for a DC-fed stage). */
+  readonly cycleOperatingPoint: CycleOperatingPoint | undefined;
 }
 
 /** Unit of a measured value from the figure registry; a name the registry does not give for this bench kind is an internal error, never an empty unit. */
@@ -97,6 +100,13 @@ function readableKeys(f: FlatFigure, bench: BenchKind): FlatFigure {
   return { ...f, keys: new Map([...f.keys].filter(([k]) => reads(f, k, bench))), method: reads(f, 'method', bench) ? f.method : undefined };
 }
 
+/** True when the circuit's `.supply` input is a `sin` source: its operating point is a cycle average (figures.md). */
+export function isSineFed(c: CompiledCircuit): boolean {
+  const supply = c.flat.supply;
+  const input = supply ? c.flat.elements.find((e) => e.key === supply.input) : undefined;
+  return input?.kind === 'vsource' && input.spec.waveform?.kind === 'sin';
+}
+
 /**
  * Measures every figure of the compiled circuit's netlist on one bench
  * (create-bench.ts: a circuit of its own, at the first `.temp`
@@ -109,10 +119,12 @@ export function measureFigures(c: CompiledCircuit): FigureReport {
   const measured: MeasuredFigure[] = [];
   let kind: BenchKind | undefined;
   let voutNominal: number | undefined;
-  if (flat.figures.length > 0) {
+  let cycleOperatingPoint: CycleOperatingPoint | undefined;
+  if (flat.figures.length > 0 || isSineFed(c)) {
     const bench = createBench(c);
     kind = bench.kind;
     voutNominal = bench.railSign * bench.voutNominal;
+    cycleOperatingPoint = bench.cycleOperatingPoint;
     const dropouts = new Map<number, Dropout | RailcheckError>();
     const dropoutAt = (fall: number): Dropout => {
       if (!dropouts.has(fall)) {
@@ -134,5 +146,5 @@ export function measureFigures(c: CompiledCircuit): FigureReport {
   const figures = measured.map((f) => ({ ...f, units: Object.fromEntries(Object.keys(f.values).map((n) => [n, unitOf(n, kind!)])) }));
   const values: Record<string, number> = {};
   for (const f of figures) Object.assign(values, f.values);
-  return { figures, values, limits: checkLimits(flat.limits, values, kind), warnings, voutNominal, bench: kind };
+  return { figures, values, limits: checkLimits(flat.limits, values, kind), warnings, voutNominal, bench: kind, cycleOperatingPoint };
 }

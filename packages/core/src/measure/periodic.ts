@@ -1,22 +1,16 @@
 /**
- * Periodic steady state by whole-cycle integration: run the transient
- * cycle after cycle and stop when the mean and the peak-to-peak of the
- * watched signals over two successive cycles agree within 1 %. Values of
- * the last cycle are returned. Per-cycle statistics are gathered as the
- * stepper goes (onAccept), so no trace is stored.
- *
- * The periodic run owns the transient's timing: the output interval
- * (period / 50, which also sets the step after every breakpoint and the
- * default pulse edge), the end time (maxCycles whole periods), a
- * breakpoint at every cycle boundary, and the least steps per cycle
- * ({@link PeriodicOptions.stepsPerCycle}, default 200). Its caller chooses
- * only where the run starts ({@link PeriodicOptions.initialSolution}).
+ * Cycle statistics at periodic steady state, for the figures: the steady
+ * state itself is found by the shooting method with a whole-cycle fallback
+ * (analysis/steady-state.ts; Aprille and Trick, Proc. IEEE 60(1), 1972),
+ * and this module watches the settled cycle through probes, turning it
+ * into the mean, least and greatest value of each, and says how the state
+ * was found. A failure is a located RailcheckError.
  */
 import type { LoadContext } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CardOrigin } from '../netlist/ast.js';
-import { runTransient } from '../engine/transient.js';
 import type { CompiledCircuit } from '../engine/compile.js';
+import { findPeriodicSteadyState, type SteadyStateMethod } from '../analysis/steady-state.js';
 import { formatSI } from '../units.js';
 
 /** Statistics of one signal over one cycle (trapezoidal mean over accepted points). */
@@ -29,49 +23,40 @@ export interface CycleStats {
 /** Something to watch: a function of the solution vector (e.g. Vout = x[out] − x[ref]). */
 export type Probe = (x: Float64Array) => number;
 
-/** Settling rule: relative agreement of mean and peak-to-peak between successive cycles (figures.md: 1 %). */
-export const SETTLE_TOLERANCE = 0.01;
+/** How a periodic steady state was found, for reports (analysis/steady-state.ts). */
+export interface SteadyInfo {
+  /** `shooting` (Newton on the period map) or `cycles` (whole-cycle simulation, the fallback). */
+  readonly method: SteadyStateMethod;
+  /** Newton iterations of the shooting method (0 for cycles). */
+  readonly iterations: number;
+  /** Source periods simulated in all. */
+  readonly periods: number;
+  /** Largest change of a state entry over the settled cycle, as a ratio of its tolerance (≤ 1: settled). */
+  readonly residual: number;
+}
 
-/** Options of a periodic run. */
+/** Options of {@link settleCycle}. */
 export interface PeriodicOptions {
   /** Cycle length, s. */
   readonly period: number;
-  /** Signals whose cycle statistics decide settling; the first is the output. */
+  /** Signals to watch over the settled cycle. */
   readonly probes: readonly Probe[];
-  /** Fewest cycles before settling is judged (default 3). */
-  readonly minCycles?: number;
-  /** Most cycles before giving up (default 400). */
-  readonly maxCycles?: number;
-  /** Least steps per cycle (default 200: peak-to-peak within about 0.01 % of a sine's). */
-  readonly stepsPerCycle?: number;
-  /** Called at every accepted point from `start` on, with the 0-based index of the cycle it falls in. */
-  readonly onPoint?: (timeSeconds: number, cycle: number, ctx: LoadContext) => void;
-  /** Absolute floor for the peak-to-peak comparison, V (default 1 µV). */
-  readonly ppFloor?: number;
+  /** Called at every accepted point of the settled cycle. */
+  readonly onPoint?: (timeSeconds: number, ctx: LoadContext) => void;
   /** Time origin of the cycles, s (default 0). */
   readonly start?: number;
-  /** Start the transient from this solution vector instead of the operating point (engine/transient.ts, initialSolution). */
+  /** Start from this solution at `start` instead of the operating point (a warm start, or a small-signal steady state). */
   readonly initialSolution?: Float64Array | undefined;
-  /**
-   * End the run at the first accepted point at or after this time (s),
-   * settled or not: for runs that watch a window of a waveform (a dip)
-   * rather than look for steady state. Default: run until settled.
-   */
-  readonly endAt?: number;
 }
 
-/** Output intervals per period in a periodic run (the interval also bounds the step after every breakpoint). */
-const OUTPUT_INTERVALS_PER_PERIOD = 50;
-
-/** Result: the statistics of every probe over the last (settled) cycle, and how many cycles it took. */
+/** The settled cycle: statistics of every probe, how the state was found, and where the cycle starts. */
 export interface PeriodicResult {
-  /** False only for a run ended by {@link PeriodicOptions.endAt} before it settled. */
-  readonly settled: boolean;
   readonly last: readonly CycleStats[];
-  readonly previous: readonly CycleStats[];
-  readonly cycles: number;
-  /** Time at the end of the last cycle, s. */
-  readonly end: number;
+  readonly steady: SteadyInfo;
+  /** Start of the settled cycle, s (a whole number of periods after the time origin). */
+  readonly start: number;
+  /** Solution at `start`: a warm start for a neighbouring setting, or the start of a run from steady state. */
+  readonly solution: Float64Array;
 }
 
 /** Least and greatest value of a signal over a time window [from, to] (s), gathered point by point. */
@@ -103,80 +88,47 @@ class CycleAccumulator {
     this.lastV = v;
   }
 
-  close(period: number): CycleStats {
-    const s = { min: this.min, max: this.max, mean: this.integral / period };
-    // The boundary point belongs to both cycles.
-    this.min = this.lastV;
-    this.max = this.lastV;
-    this.integral = 0;
-    return s;
+  stats(period: number): CycleStats {
+    return { min: this.min, max: this.max, mean: this.integral / period };
   }
 }
 
-function agrees(a: CycleStats, b: CycleStats, floor: number): boolean {
-  const ppA = a.max - a.min;
-  const ppB = b.max - b.min;
-  const meanOk = Math.abs(a.mean - b.mean) <= SETTLE_TOLERANCE * Math.max(Math.abs(a.mean), Math.abs(b.mean), floor);
-  const ppOk = Math.abs(ppA - ppB) <= SETTLE_TOLERANCE * Math.max(ppA, ppB) + floor;
-  return meanOk && ppOk;
+/** How a steady state was found, in words ("shooting, 3 iterations, 41 periods, residual 0.02"). */
+export function describeSteady(s: SteadyInfo): string {
+  const how = s.method === 'shooting' ? `shooting, ${s.iterations} iteration${s.iterations === 1 ? '' : 's'}` : 'whole cycles';
+  return `${how}, ${s.periods} periods simulated, residual ${Number(s.residual.toPrecision(2))} of tolerance`;
 }
 
 /**
- * Runs the circuit's transient (sources as they are set) cycle by cycle
- * until periodic steady state (or until {@link PeriodicOptions.endAt}).
- * Throws RailcheckError if the transient fails or does not settle within
- * maxCycles.
+ * Finds the periodic steady state of the circuit with its sources as they
+ * are set and returns the statistics of every probe over the settled
+ * cycle. Throws RailcheckError when the transient fails or no steady
+ * state is found.
  */
-export function runToPeriodicSteadyState(c: CompiledCircuit, opts: PeriodicOptions, what: string, origin: CardOrigin | undefined): PeriodicResult {
+export function settleCycle(c: CompiledCircuit, opts: PeriodicOptions, what: string, origin: CardOrigin | undefined): PeriodicResult {
   const { period, probes } = opts;
-  const minCycles = opts.minCycles ?? 3;
-  const maxCycles = opts.maxCycles ?? 400;
-  const floor = opts.ppFloor ?? 1e-6;
-  const start = opts.start ?? 0;
   const acc = probes.map(() => new CycleAccumulator());
-  let previous: CycleStats[] = [];
-  let last: CycleStats[] = [];
-  let cycle = 0;
-  let settled = false;
-  let end = 0;
-  const boundaries = Array.from({ length: maxCycles + 1 }, (_, k) => start + k * period).filter((t) => t > 0);
-  const endAt = opts.endAt ?? Infinity;
-  let ended = false;
-  const outcome = runTransient(c, {
-    tstep: period / OUTPUT_INTERVALS_PER_PERIOD,
-    tstop: start + maxCycles * period,
-    stepsPerCycle: opts.stepsPerCycle ?? 200,
+  const r = findPeriodicSteadyState(c, {
+    period,
+    ...(opts.start !== undefined ? { start: opts.start } : {}),
     ...(opts.initialSolution ? { initialSolution: opts.initialSolution } : {}),
-    extraBreakpoints: boundaries,
-    keepTrace: false,
-    onAccept: (t, ctx) => {
-      if (t < start - period * 1e-9) return false;
-      const x = ctx.x;
-      for (let k = 0; k < probes.length; k++) acc[k]!.add(t, probes[k]!(x));
-      opts.onPoint?.(t, cycle, ctx);
-      const boundary = start + (cycle + 1) * period;
-      if (Math.abs(t - boundary) <= period * 1e-9) {
-        previous = last;
-        last = acc.map((a) => a.close(period));
-        cycle++;
-        end = t;
-        if (cycle >= minCycles && previous.length > 0 && last.every((s, k) => agrees(s, previous[k]!, floor))) {
-          settled = true;
-          return true;
-        }
-      }
-      if (t >= endAt) {
-        ended = true;
-        return true;
-      }
-      return false;
+    onCycle: (t, ctx) => {
+      for (let k = 0; k < probes.length; k++) acc[k]!.add(t, probes[k]!(ctx.x));
+      opts.onPoint?.(t, ctx);
     },
   });
-  if (!outcome.ok) {
-    throw new RailcheckError([errorAt('transient-failed', `${what}: the transient failed at t = ${formatSI(outcome.time, 's')}`, origin?.pos, origin?.lineText)]);
+  if (!r.ok) {
+    if (r.reason === 'transient-failed') {
+      throw new RailcheckError([errorAt('transient-failed', `${what}: the transient failed at t = ${formatSI(r.time, 's')}`, origin?.pos, origin?.lineText)]);
+    }
+    const slowest = r.slowest ? `; slowest to settle: the charge of ${r.slowest}` : '';
+    throw new RailcheckError([errorAt('not-settled', `${what}: no periodic steady state after ${r.periods} periods (shooting did not converge, and whole cycles still changed by ${Number(r.residual.toPrecision(2))}× their tolerance${slowest})`, origin?.pos, origin?.lineText, 'a stage whose slowest time constant is at most a few thousand source periods (a reservoir with no load and no bleeder never settles: it creeps towards the peak)')]);
   }
-  if (!settled && !ended) {
-    throw new RailcheckError([errorAt('not-settled', `${what}: no periodic steady state within ${maxCycles} cycles (mean and peak-to-peak still changing by more than 1 % per cycle)`, origin?.pos, origin?.lineText, 'a stage whose time constants settle within a few hundred cycles')]);
-  }
-  return { settled, last, previous, cycles: cycle, end };
+  const s = r.steady;
+  return {
+    last: acc.map((a) => a.stats(period)),
+    steady: { method: s.method, iterations: s.iterations, periods: s.periods, residual: s.residual },
+    start: s.start,
+    solution: s.solution,
+  };
 }

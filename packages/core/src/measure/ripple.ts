@@ -12,6 +12,7 @@
  */
 import { warningAt, type Diagnostic } from '../errors.js';
 import { formatSI } from '../units.js';
+import type { SteadyInfo } from './periodic.js';
 import type { Bench } from './bench.js';
 
 /** Options of {@link rippleRejection}. A sine-fed stage's ripple is its own: `freq` and `amp` are not used there, and `method=ac` measures nothing (it has no small-signal method). */
@@ -38,8 +39,8 @@ export interface RippleRejection {
   readonly inputPp: number | undefined;
   /** `ripple.out_pp`: output peak-to-peak at periodic steady state, V. */
   readonly outPp: number | undefined;
-  /** Cycles the periodic run needed to settle. */
-  readonly cycles: number | undefined;
+  /** How the periodic steady state was found (undefined when no periodic run was made). */
+  readonly steadyState: SteadyInfo | undefined;
   readonly warnings: readonly Diagnostic[];
 }
 
@@ -59,5 +60,5 @@ export function rippleRejection(bench: Bench, opts: RippleOptions = {}): RippleR
     const o = bench.stage.supply.origin;
     warnings.push(warningAt('ripple-disagree', `ripple rejection at ${formatSI(freq, 'Hz')}: the small-signal (${smallSignal.toFixed(2)} dB) and transient (${steady.toFixed(2)} dB) methods differ by more than ${RIPPLE_AGREEMENT_DB} dB; the ripple amplitude ${formatSI(amp, 'V')} may be large enough to drive the stage out of its linear range`, o.pos, o.lineText));
   }
-  return { freq, amp, smallSignal, steady, inputPp: r?.inputPp, outPp: r?.outputPp, cycles: r?.cycles, warnings };
+  return { freq, amp, smallSignal, steady, inputPp: r?.inputPp, outPp: r?.outputPp, steadyState: r?.steady, warnings };
 }

@@ -11,7 +11,7 @@ import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
 import { dcSweep, operatingPoint, type DcSweep, type OperatingPoint } from '../analysis/dc.js';
 import { safetyWarnings } from '../analysis/safety.js';
-import { measureFigures, type FigureReport } from '../measure/figures.js';
+import { isSineFed, measureFigures, type FigureReport } from '../measure/figures.js';
 import { transient, type TransientResult } from '../analysis/tran.js';
 import { acFrequencies, acSweep, type AcResult } from '../analysis/ac.js';
 
@@ -117,7 +117,7 @@ function runParsed(parsed: ParseResult): RunResult {
   try {
     const results = analyse(c);
     // Figures are measured on a bench of their own at the first .temp (measure/create-bench.ts).
-    const figures = c.flat.figures.length > 0 || c.flat.limits.length > 0 ? measureFigures(c) : undefined;
+    const figures = c.flat.figures.length > 0 || c.flat.limits.length > 0 || isSineFed(c) ? measureFigures(c) : undefined;
     if (figures) warnings.push(...figures.warnings);
     return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, compiled: c, ...results, figures, warnings } };
   } catch (e) {

@@ -102,8 +102,9 @@ describe('walks on one bench', () => {
 });
 
 describe('two sine-fed benches on one compiled circuit', () => {
-  // A half-wave rectifier into a reservoir and a resistor load: cheap to bring to periodic steady state.
-  const rectifier = compile(['half-wave reservoir', 'V1 a 0 sin(0 12 50)', 'D1 a res DR', 'C1 res 0 220u', 'R1 res out 10', 'RL out 0 470', '.model DR D (IS=1e-9 N=1.8)', '.supply in=V1 out=out load=RL feed=res', '.end', ''].join('\n'));
+  // A half-wave rectifier into a reservoir with a bleeder and a resistor load: cheap to bring to periodic
+  // steady state (without the bleeder the reservoir has no discharge path at zero load and never settles).
+  const rectifier = compile(['half-wave reservoir', 'V1 a 0 sin(0 12 50)', 'D1 a res DR', 'C1 res 0 220u', 'RBL res 0 4.7k', 'R1 res out 10', 'RL out 0 470', '.model DR D (IS=1e-9 N=1.8)', '.supply in=V1 out=out load=RL feed=res', '.end', ''].join('\n'));
   const some: Name[] = ['line', 'load', 'ripple', 'dissipation'];
 
   test('figures interleaved on two benches equal each measured alone', () => {
