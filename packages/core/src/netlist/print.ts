@@ -42,8 +42,9 @@ function waveform(w: Waveform): string {
 }
 
 function element(e: ElementCard): string {
-  const head = [e.name, ...e.nodes];
   const pmax = optional('pmax', e.pmax);
+  if (e.kind === 'K') return [e.name, ...e.inductors, printValue(e.coupling), ...pmax].join(' ');
+  const head = [e.name, ...e.nodes];
   switch (e.kind) {
     case 'R': case 'C': case 'L':
       return [...head, printValue(e.value), ...optional('ic', e.ic), ...pmax].join(' ');
