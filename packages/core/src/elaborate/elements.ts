@@ -33,7 +33,7 @@ function rangeError(env: ElementEnv, at: CardOrigin, message: string, expected: 
 /** Evaluates `v` and checks it against `range`; an error names `what` and the value. NaN (already reported) passes. */
 function ranged(env: ElementEnv, card: DeviceCard, v: Value, what: string, range: ValueRange): number {
   const x = env.ev.num(v, env.scope);
-  if (!Number.isNaN(x) && !inRange(range, x)) rangeError(env, card, `${card.name}: the ${what} ${x} is out of range`, `a ${what} ${describeRange(range)}`);
+  if (!Number.isNaN(x) && !inRange(range, x)) rangeError(env, card, `${card.name}: the ${what} ${x} is out of range`, `${what} ${describeRange(range)}`);
   return x;
 }
 

@@ -81,7 +81,7 @@ function checkValue(c: Cursor, name: Token, field: ValueField, value: Value, at:
     c.note('zero-resistance', `${name.text}: value must be non-zero`, at, `a non-zero ${field.what} (use a V source of 0 V for a short)`);
     return;
   }
-  c.note('bad-value', `${name.text}: the ${field.what} ${value.text} is out of range`, at, `a ${field.what} ${describeRange(field.range)}`);
+  c.note('bad-value', `${name.text}: the ${field.what} ${value.text} is out of range`, at, `${field.what} ${describeRange(field.range)}`);
 }
 
 /** The card's main value read with its field's checks. */
