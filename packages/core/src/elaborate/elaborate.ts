@@ -5,9 +5,10 @@
  * every cross-reference (controlling sources, `.dc` and `.supply` names)
  * checked. Errors are collected, not thrown.
  */
-import { match } from 'ts-pattern';
+import { kindOfLetter } from '@railcheck/devices';
+import { match, P } from 'ts-pattern';
 import { warningAt, type Diagnostic } from '../errors.js';
-import type { AnalysisCard, Card, InstanceCard, SupplyCard } from '../netlist/ast.js';
+import type { AnalysisCard, Card, DeviceCard, InstanceCard, SupplyCard } from '../netlist/ast.js';
 import type { FlatCircuit, FlatElement, FlatNode } from './flat.js';
 import { GROUND_KEY } from './flat.js';
 import { createEvaluator, type Evaluator } from './evaluate.js';
@@ -42,6 +43,11 @@ interface Walk {
   full: boolean;
   /** Range errors reported so far (each once). */
   readonly reported: Set<string>;
+}
+
+/** True for the element cards of the registry's letters (every element but X). */
+function isDeviceCard(card: Card): card is DeviceCard {
+  return kindOfLetter(card.kind) !== undefined;
 }
 
 /** Registers the definitions of one level (models, subcircuits), then its parameters in order. */
@@ -80,7 +86,7 @@ function walkLevel(w: Walk, scope: Scope, cards: readonly Card[]): void {
         else w.directives.push(c);
       })
       .with({ kind: 'X' }, (c) => instantiate(w, scope, c))
-      .with({ kind: 'R' }, { kind: 'C' }, { kind: 'L' }, { kind: 'K' }, { kind: 'V' }, { kind: 'I' }, { kind: 'D' }, { kind: 'Q' }, { kind: 'E' }, { kind: 'G' }, { kind: 'F' }, { kind: 'H' }, (c) => {
+      .with(P.when(isDeviceCard), (c) => {
         const el = flattenElement({ scope, ev: w.ev, noteNode, reported: w.reported }, c);
         if (!el) return;
         const clash = w.names.get(el.key);

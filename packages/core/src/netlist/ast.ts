@@ -3,7 +3,7 @@
  * spelling, values stay unevaluated where they hold expressions). The reader
  * (parse) produces these; the elaborator turns them into a flat circuit.
  */
-import type { DeviceLetter, ModelType as RegistryModelType } from '@railcheck/devices';
+import type { CardFamily, DeviceLetter, ModelType as RegistryModelType } from '@railcheck/devices';
 import type { SourcePos } from '../errors.js';
 
 /** Where a card came from: its position and the quoted logical line. */
@@ -131,6 +131,16 @@ export type ElementCard = PassiveCard | SourceCard | DiodeCard | BjtCard | Volta
 /** The element cards that become devices (all but X), one card letter per registry entry. */
 export type DeviceCard = Exclude<ElementCard, InstanceCard>;
 
+/** The card type of each of the registry's card families (what the reader builds, the printer writes). */
+export interface CardOfFamily {
+  passive: PassiveCard;
+  source: SourceCard;
+  semiconductor: DiodeCard | BjtCard;
+  'voltage-controlled': VoltageControlledCard;
+  'current-controlled': CurrentControlledCard;
+  coupling: CouplingCard;
+}
+
 /** Device type named on a `.model` line (the registry's model types). */
 export type ModelType = RegistryModelType;
 
@@ -204,3 +214,7 @@ type SameLetters<A, B> = [A] extends [B] ? ([B] extends [A] ? true : never) : ne
 export type DeviceCardsMatchRegistry = SameLetters<DeviceCard['kind'], DeviceLetter>;
 const lettersAgree: DeviceCardsMatchRegistry = true;
 void lettersAgree;
+/** Compile-time check that {@link CardOfFamily} covers the registry's families exactly. */
+export type FamiliesMatchRegistry = SameLetters<keyof CardOfFamily, CardFamily>;
+const familiesAgree: FamiliesMatchRegistry = true;
+void familiesAgree;
