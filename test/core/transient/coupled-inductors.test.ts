@@ -12,6 +12,8 @@
  * (Hairer and Wanner's extrapolation code), the ideal-transformer relations
  * and the stored energy ½L1·i1² + M·i1·i2 + ½L2·i2² (same chapter).
  */
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
 import { describe, expect, test } from 'vitest';
 import { add, complex, divide, multiply, type Complex } from 'mathjs';
 import { linearise, operatingPoint, setCircuitTemperature, solveAt } from '@railcheck/core';
@@ -180,33 +182,16 @@ describe('transient', () => {
 });
 
 describe('a mains transformer written as two coupled windings feeding a bridge rectifier', () => {
-  // Our own scenario: a model-railway accessory supply, 230 V 50 Hz mains stepped down to about 16 V rms,
-  // a bridge, a 2200 µF reservoir and a 47 Ω accessory load. The winding values are invented for the test:
-  // a magnetising inductance of 20 H, the secondary's L2 = n²·L1 for n = 16/230, k = 0.995 (leakage),
-  // 15 Ω and 0.4 Ω of winding resistance. The bridge diodes carry junction capacitance: without it, the
-  // floating secondary of a bridge with every diode off is held only by gmin, and the stepper fails at the
-  // first turn-off (seen with an ideal source in place of the windings too). Rdamp across the secondary
-  // damps the ringing of the leakage inductance with that capacitance (about 1 MHz and a Q of 10⁴
-  // undamped, which the trapezoidal rule would follow in 50 ns steps), as a snubber does on the bench.
+  // examples/railway-accessory-transformer.cir, our own scenario: 230 V 50 Hz mains stepped down to about
+  // 16 V rms (n = 16/230, L2 = n²·L1 with L1 = 20 H, k = 0.995, 15 Ω and 0.4 Ω of winding resistance), a
+  // bridge, a 2200 µF reservoir and a 47 Ω accessory load. The bridge diodes carry junction capacitance:
+  // without it, the floating secondary of a bridge with every diode off is held only by gmin, and the
+  // stepper fails at the first turn-off (seen with an ideal source in place of the windings too). Rdamp
+  // across the secondary damps the ringing of the leakage inductance with that capacitance (about 1 MHz
+  // and a Q of 10⁴ undamped, which the trapezoidal rule would follow in 50 ns steps), as a snubber does.
   const n = 16 / 230;
   const vPeak = 230 * Math.SQRT2;
-  const text = `model-railway accessory supply
-Vmains m 0 sin(0 ${vPeak} 50)
-Rpri m p 15
-Lpri p 0 20
-Lsec sa sx ${20 * n * n}
-Rsec sx sb 0.4
-Kmains Lpri Lsec 0.995
-Rdamp sa sb 1k
-D1 sa pos DB
-D2 sb pos DB
-D3 0 sa DB
-D4 0 sb DB
-Cres pos 0 2200u
-Rload pos 0 47
-.model DB D (IS=5n N=1.9 RS=20m CJO=60p)
-.end
-`;
+  const text = readFileSync(fileURLToPath(new URL('../../../examples/railway-accessory-transformer.cir', import.meta.url)), 'utf8');
 
   test('reservoir: charges to the secondary peak less two diode drops, and ripples by about I/(2·f·C)', () => {
     const c = compile(text);
