@@ -55,13 +55,18 @@ export class DeviceHarness {
         stateCount += count;
         return off;
       },
-      controlBranch: (name) => {
+      branchOf: (name) => {
         const idx = this.branchOf.get(name);
-        if (idx === undefined) throw new Error(`harness: no branch for ${name}`);
-        return idx;
+        const device = devices.find((d) => d.name.toLowerCase() === name);
+        if (idx === undefined || !device) throw new Error(`harness: no branch for ${name}`);
+        return { ok: true, index: idx, device };
+      },
+      fail: (message) => {
+        throw new Error(`harness: ${message}`);
       },
     };
-    const ordered = [...devices.filter((d) => d.kind === 'vsource'), ...devices.filter((d) => d.kind !== 'vsource')];
+    const late = (d: Device): boolean => d.kind === 'coupling';
+    const ordered = [...devices.filter((d) => d.kind === 'vsource'), ...devices.filter((d) => d.kind !== 'vsource' && !late(d)), ...devices.filter(late)];
     for (const d of ordered) {
       current = d.name.toLowerCase();
       d.allocate(alloc);
@@ -95,6 +100,9 @@ export class DeviceHarness {
       limited: false,
       chargeCurrent: 0,
       chargeConductance: 0,
+      get coefficients() {
+        return { a0: 1 / h.step, a1: 0 };
+      },
       integrate(offset: number, cap: number): void {
         const i = ((h.state[offset] ?? 0) - (h.statePrev[offset] ?? 0)) / h.step;
         h.state[offset + 1] = i;

@@ -5,18 +5,23 @@
  */
 import type { CompiledCircuit, FlatElement } from '@railcheck/core';
 import { readSolution } from '@railcheck/core';
+import { DEVICES } from '@railcheck/devices';
 
-/** Terminal node keys of an element, in the order its report lists currents. */
-function terminals(el: FlatElement): readonly string[] {
-  switch (el.kind) {
-    case 'bjt':
-      return el.nodes;
-    case 'vcvs':
-    case 'vccs':
-      return [el.nodes[0], el.nodes[1]];
-    default:
-      return el.nodes;
+/**
+ * The currents an element draws from each of its nodes, as (node key, amps)
+ * pairs, from its reported currents (`current(label)`, labels as the
+ * registry's report shape gives them): one current '' enters n+ and leaves
+ * at n− (the passive convention of netlist.md); labelled currents (a
+ * transistor's c, b, e) enter their own terminals; a coupling has none.
+ */
+export function terminalCurrents(el: FlatElement, current: (label: string) => number): Array<readonly [string, number]> {
+  const labels: readonly string[] = DEVICES[el.kind].currents;
+  const nodes: readonly string[] = el.nodes;
+  if (labels.length === 1 && labels[0] === '') {
+    const i = current('');
+    return [[nodes[0]!, i], [nodes[1]!, -i]];
   }
+  return labels.map((label, k) => [nodes[k]!, current(label)] as const);
 }
 
 /**
@@ -32,16 +37,7 @@ export function kclImbalance(c: CompiledCircuit): { worst: number; scale: number
     scale.set(key, Math.max(scale.get(key) ?? 0, Math.abs(amps)));
   };
   for (const el of c.elements) {
-    const t = terminals(el);
-    if (el.kind === 'bjt') {
-      add(t[0]!, sol.currents[`${el.name}.c`]!);
-      add(t[1]!, sol.currents[`${el.name}.b`]!);
-      add(t[2]!, sol.currents[`${el.name}.e`]!);
-    } else {
-      const i = sol.currents[el.name]!;
-      add(t[0]!, i);
-      add(t[1]!, -i);
-    }
+    for (const [node, amps] of terminalCurrents(el, (label) => sol.currents[label ? `${el.name}.${label}` : el.name]!)) add(node, amps);
   }
   let worst = 0;
   let worstScale = 0;

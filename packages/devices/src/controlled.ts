@@ -147,7 +147,8 @@ class CccsImpl implements Cccs {
   }
 
   allocate(unknowns: UnknownAllocator): void {
-    this.control = unknowns.controlBranch(this.controlName);
+    const ref = unknowns.branchOf(this.controlName);
+    if (ref.ok) this.control = ref.index;
   }
 
   bind(slots: SlotBinder): void {
@@ -200,7 +201,8 @@ class CcvsImpl implements Ccvs {
 
   allocate(unknowns: UnknownAllocator): void {
     this.branchIndex = unknowns.branch(this.name);
-    this.control = unknowns.controlBranch(this.controlName);
+    const ref = unknowns.branchOf(this.controlName);
+    if (ref.ok) this.control = ref.index;
   }
 
   bind(slots: SlotBinder): void {

@@ -8,25 +8,24 @@
  * discarded), so devices stamp without testing for ground.
  */
 
+import type { DeviceSpecs } from './registry.js';
+
 /** Solution-vector index of the ground node. */
 export const GROUND = 0;
 
-/** Kinds of device, one per element letter that reaches the engine. */
-export type DeviceKind =
-  | 'resistor'
-  | 'capacitor'
-  | 'inductor'
-  | 'vsource'
-  | 'isource'
-  | 'vcvs'
-  | 'vccs'
-  | 'cccs'
-  | 'ccvs'
-  | 'diode'
-  | 'bjt';
+/** Kinds of device, one per element letter that reaches the engine: the keys of the registry's {@link DeviceSpecs}. */
+export type DeviceKind = keyof DeviceSpecs<number>;
 
 /** What the engine is solving when it asks devices to load. */
 export type LoadMode = 'dc' | 'tran';
+
+/**
+ * The answer to a branch look-up by element name: the branch-current unknown
+ * and the device that owns it, or a typed failure (never the ground index).
+ */
+export type BranchRef =
+  | { readonly ok: true; readonly index: number; readonly device: Device }
+  | { readonly ok: false; readonly reason: 'no-such-element' | 'no-branch' };
 
 /** Hands out solution-vector indices while a circuit compiles (phase 1). */
 export interface UnknownAllocator {
@@ -36,14 +35,35 @@ export interface UnknownAllocator {
   branch(label: string): number;
   /** Offset of `count` consecutive slots in the state vectors (charges, their currents). */
   state(count: number): number;
-  /** Branch index of the voltage source named `name` (lower-case flat name), for F and H. */
-  controlBranch(name: string): number;
+  /**
+   * The branch of the element whose lower-case flat name is `key` (the
+   * controlling V of F and H, the inductors of K). Elements that own a branch
+   * are allocated before those that look one up. A failed look-up is recorded
+   * as an error against the asking element by the allocator itself, and the
+   * circuit does not compile; the failure is typed so that no caller can
+   * mistake it for an index.
+   */
+  branchOf(key: string): BranchRef;
+  /** Records a compile error against the element being allocated (e.g. a K whose element is no inductor). */
+  fail(message: string): void;
 }
 
 /** Gives matrix storage offsets once every unknown is known (phase 2). */
 export interface SlotBinder {
   /** Storage offset of matrix entry (row, col); any index may be {@link GROUND}. */
   slot(row: number, col: number): number;
+}
+
+/**
+ * Integration coefficients of the present time step, in 1/s: the current of
+ * a stored charge (or the voltage of a stored flux) is
+ * `i = a0·(q − qPrev) + a1·iPrev`. Backward Euler: a0 = 1/h, a1 = 0; the
+ * trapezoidal rule: a0 = 2/h, a1 = −1 (h the step in seconds; Gear 1971,
+ * ch. 9). The engine sets both to 0 outside transient analyses.
+ */
+export interface IntegrationCoefficients {
+  a0: number;
+  a1: number;
 }
 
 /**
@@ -83,6 +103,13 @@ export interface LoadContext {
   chargeCurrent: number;
   /** Output of {@link integrate}: dI/dV of that current in siemens. */
   chargeConductance: number;
+  /**
+   * The present integration coefficients (read-only to devices): what
+   * {@link integrate} applies, for elements whose stamps couple several
+   * stored quantities (mutual inductance) and must scale rows as the owner
+   * of each row does. Meaningful in transient loads only (0 outside them).
+   */
+  readonly coefficients: Readonly<IntegrationCoefficients>;
 }
 
 /** Capacitance (dq/dv) and source-excitation stamps for small-signal analysis. */
@@ -140,4 +167,12 @@ export interface Device {
    * sense (Aprille and Trick 1972). Devices without stored charge omit it.
    */
   chargeSlots?(): readonly number[];
+  /**
+   * Elements that store energy given by `ic=` (C, L, and K for the mutual
+   * flux) write the state implied by their initial conditions into `state`
+   * (zero state elsewhere) and return true; valid after allocate. Used by a
+   * transient started from the initial conditions. Absent on elements that
+   * store nothing.
+   */
+  seedInitialCondition?(state: Float64Array): boolean;
 }

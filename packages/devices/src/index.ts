@@ -7,9 +7,11 @@
 export { BOLTZMANN, CHARGE, TNOM, ZERO_CELSIUS, thermalVoltage } from './constants.js';
 export { GROUND } from './device.js';
 export type {
+  BranchRef,
   Device,
   DeviceKind,
   DeviceReport,
+  IntegrationCoefficients,
   LoadContext,
   LoadMode,
   ReactiveContext,
@@ -17,9 +19,19 @@ export type {
   Topology,
   UnknownAllocator,
 } from './device.js';
-export { BJT_PARAMS, DIODE_PARAMS, bjtModel, diodeModel, knownParams } from './models.js';
+export { BJT_PARAMS, DIODE_PARAMS, bjtModel, diodeModel } from './models.js';
 export type { BjtModel, DiodeModel, ParamSpec } from './models.js';
 export type { SourceSpec, WaveformSpec } from './sources.js';
+
+export {
+  AREA_RANGE, DEVICES, DEVICE_KINDS, MODEL_KINDS, MODEL_TYPES, RATING_RANGE,
+  buildModel, dissipates, kindOfLetter, knownParams, modelKindOf, paramTable,
+} from './registry.js';
+export type { CardFamily, DeviceByKind, DeviceEntry, DeviceLetter, DeviceSpecs, ModelKind, ModelType, ValueField } from './registry.js';
+export { ANY, COUPLING, GRADING, NON_NEGATIVE, NON_ZERO, POSITIVE, describeRange, inRange } from './ranges.js';
+export type { ValueRange } from './ranges.js';
+export { createCoupling } from './coupling.js';
+export type { Coupling } from './coupling.js';
 
 export { isKind } from './types.js';
 export type {
@@ -29,7 +41,6 @@ export type {
   Ccvs,
   Cccs,
   CurrentSource,
-  DeviceByKind,
   Diode,
   IndependentSource,
   Inductor,
@@ -40,7 +51,7 @@ export type {
   VoltageSource,
 } from './types.js';
 
-export { createCapacitor, createInductor, createResistor } from './passive.js';
+export { branchRowScale, createCapacitor, createInductor, createResistor } from './passive.js';
 export { createCurrentSource, createVoltageSource } from './independent.js';
 export { createCccs, createCcvs, createVccs, createVcvs } from './controlled.js';
 export { createDiode, diodeCharge, diodeCurrent, evalDiode, evalDiodeCharge, scaleDiodeModel } from './diode.js';

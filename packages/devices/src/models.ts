@@ -1,15 +1,24 @@
 /**
  * Model parameter tables for `.model` cards (netlist.md, Models), with the
- * defaults of the published models. The reader checks names against these;
- * the elaborator resolves a card into a fully populated parameter object.
+ * defaults of the published models and the range of valid values of each
+ * (docs/models.md, "Valid ranges"). The reader checks names against these;
+ * the elaborator checks every given value against its range and resolves a
+ * card into a fully populated parameter object.
  */
+import { ANY, GRADING, NON_NEGATIVE, POSITIVE, type ValueRange } from './ranges.js';
 
-/** One model parameter: its name, default (undefined = "none") and unit. */
+/** One model parameter: its name, default (undefined = "none"), unit, meaning and valid range. */
 export interface ParamSpec {
+  /** Upper-case name as written on `.model` lines. */
   readonly name: string;
+  /** Default in the parameter's unit; undefined = none (the term is dropped). */
   readonly default: number | undefined;
+  /** Unit symbol ('' for dimensionless). */
   readonly unit: string;
+  /** What the parameter is, in the trade's words. */
   readonly doc: string;
+  /** Values accepted at elaboration; a value outside is an error naming the parameter. */
+  readonly range: ValueRange;
 }
 
 /** Diode model parameters (Shockley with reverse breakdown). */
@@ -59,52 +68,48 @@ export interface BjtModel {
 
 /** Diode parameter table, defaults per netlist.md. */
 export const DIODE_PARAMS: readonly ParamSpec[] = [
-  { name: 'IS', default: 1e-14, unit: 'A', doc: 'saturation current' },
-  { name: 'N', default: 1, unit: '', doc: 'emission coefficient' },
-  { name: 'RS', default: 0, unit: 'Ω', doc: 'series resistance' },
-  { name: 'BV', default: undefined, unit: 'V', doc: 'reverse breakdown voltage' },
-  { name: 'IBV', default: 1e-3, unit: 'A', doc: 'current at BV' },
-  { name: 'NBV', default: 1, unit: '', doc: 'breakdown emission coefficient' },
-  { name: 'CJO', default: 0, unit: 'F', doc: 'zero-bias junction capacitance' },
-  { name: 'VJ', default: 1, unit: 'V', doc: 'junction potential' },
-  { name: 'M', default: 0.5, unit: '', doc: 'grading coefficient' },
-  { name: 'TT', default: 0, unit: 's', doc: 'transit time' },
-  { name: 'EG', default: 1.11, unit: 'eV', doc: 'band-gap energy' },
-  { name: 'XTI', default: 3, unit: '', doc: 'IS temperature exponent' },
-  { name: 'TBV', default: 0, unit: '1/K', doc: 'temperature coefficient of BV' },
-  { name: 'PMAX', default: undefined, unit: 'W', doc: 'power rating' },
+  { name: 'IS', default: 1e-14, unit: 'A', doc: 'saturation current' , range: POSITIVE },
+  { name: 'N', default: 1, unit: '', doc: 'emission coefficient' , range: POSITIVE },
+  { name: 'RS', default: 0, unit: 'Ω', doc: 'series resistance' , range: NON_NEGATIVE },
+  { name: 'BV', default: undefined, unit: 'V', doc: 'reverse breakdown voltage' , range: POSITIVE },
+  { name: 'IBV', default: 1e-3, unit: 'A', doc: 'current at BV' , range: POSITIVE },
+  { name: 'NBV', default: 1, unit: '', doc: 'breakdown emission coefficient' , range: POSITIVE },
+  { name: 'CJO', default: 0, unit: 'F', doc: 'zero-bias junction capacitance' , range: NON_NEGATIVE },
+  { name: 'VJ', default: 1, unit: 'V', doc: 'junction potential' , range: POSITIVE },
+  { name: 'M', default: 0.5, unit: '', doc: 'grading coefficient' , range: GRADING },
+  { name: 'TT', default: 0, unit: 's', doc: 'transit time' , range: NON_NEGATIVE },
+  { name: 'EG', default: 1.11, unit: 'eV', doc: 'band-gap energy' , range: POSITIVE },
+  { name: 'XTI', default: 3, unit: '', doc: 'IS temperature exponent' , range: ANY },
+  { name: 'TBV', default: 0, unit: '1/K', doc: 'temperature coefficient of BV' , range: ANY },
+  { name: 'PMAX', default: undefined, unit: 'W', doc: 'power rating' , range: POSITIVE },
 ];
 
 /** Bipolar transistor parameter table, defaults per netlist.md. */
 export const BJT_PARAMS: readonly ParamSpec[] = [
-  { name: 'IS', default: 1e-16, unit: 'A', doc: 'transport saturation current' },
-  { name: 'BF', default: 100, unit: '', doc: 'ideal forward beta' },
-  { name: 'BR', default: 1, unit: '', doc: 'ideal reverse beta' },
-  { name: 'NF', default: 1, unit: '', doc: 'forward emission coefficient' },
-  { name: 'NR', default: 1, unit: '', doc: 'reverse emission coefficient' },
-  { name: 'VAF', default: undefined, unit: 'V', doc: 'forward Early voltage' },
-  { name: 'VAR', default: undefined, unit: 'V', doc: 'reverse Early voltage' },
-  { name: 'RB', default: 0, unit: 'Ω', doc: 'base resistance' },
-  { name: 'RC', default: 0, unit: 'Ω', doc: 'collector resistance' },
-  { name: 'RE', default: 0, unit: 'Ω', doc: 'emitter resistance' },
-  { name: 'CJE', default: 0, unit: 'F', doc: 'B-E zero-bias capacitance' },
-  { name: 'CJC', default: 0, unit: 'F', doc: 'B-C zero-bias capacitance' },
-  { name: 'VJE', default: 0.75, unit: 'V', doc: 'B-E junction potential' },
-  { name: 'VJC', default: 0.75, unit: 'V', doc: 'B-C junction potential' },
-  { name: 'MJE', default: 0.33, unit: '', doc: 'B-E grading coefficient' },
-  { name: 'MJC', default: 0.33, unit: '', doc: 'B-C grading coefficient' },
-  { name: 'TF', default: 0, unit: 's', doc: 'forward transit time' },
-  { name: 'TR', default: 0, unit: 's', doc: 'reverse transit time' },
-  { name: 'EG', default: 1.11, unit: 'eV', doc: 'band-gap energy' },
-  { name: 'XTI', default: 3, unit: '', doc: 'IS temperature exponent' },
-  { name: 'XTB', default: 0, unit: '', doc: 'beta temperature exponent' },
-  { name: 'PMAX', default: undefined, unit: 'W', doc: 'power rating' },
+  { name: 'IS', default: 1e-16, unit: 'A', doc: 'transport saturation current' , range: POSITIVE },
+  { name: 'BF', default: 100, unit: '', doc: 'ideal forward beta' , range: POSITIVE },
+  { name: 'BR', default: 1, unit: '', doc: 'ideal reverse beta' , range: POSITIVE },
+  { name: 'NF', default: 1, unit: '', doc: 'forward emission coefficient' , range: POSITIVE },
+  { name: 'NR', default: 1, unit: '', doc: 'reverse emission coefficient' , range: POSITIVE },
+  { name: 'VAF', default: undefined, unit: 'V', doc: 'forward Early voltage' , range: POSITIVE },
+  { name: 'VAR', default: undefined, unit: 'V', doc: 'reverse Early voltage' , range: POSITIVE },
+  { name: 'RB', default: 0, unit: 'Ω', doc: 'base resistance' , range: NON_NEGATIVE },
+  { name: 'RC', default: 0, unit: 'Ω', doc: 'collector resistance' , range: NON_NEGATIVE },
+  { name: 'RE', default: 0, unit: 'Ω', doc: 'emitter resistance' , range: NON_NEGATIVE },
+  { name: 'CJE', default: 0, unit: 'F', doc: 'B-E zero-bias capacitance' , range: NON_NEGATIVE },
+  { name: 'CJC', default: 0, unit: 'F', doc: 'B-C zero-bias capacitance' , range: NON_NEGATIVE },
+  { name: 'VJE', default: 0.75, unit: 'V', doc: 'B-E junction potential' , range: POSITIVE },
+  { name: 'VJC', default: 0.75, unit: 'V', doc: 'B-C junction potential' , range: POSITIVE },
+  { name: 'MJE', default: 0.33, unit: '', doc: 'B-E grading coefficient' , range: GRADING },
+  { name: 'MJC', default: 0.33, unit: '', doc: 'B-C grading coefficient' , range: GRADING },
+  { name: 'TF', default: 0, unit: 's', doc: 'forward transit time' , range: NON_NEGATIVE },
+  { name: 'TR', default: 0, unit: 's', doc: 'reverse transit time' , range: NON_NEGATIVE },
+  { name: 'EG', default: 1.11, unit: 'eV', doc: 'band-gap energy' , range: POSITIVE },
+  { name: 'XTI', default: 3, unit: '', doc: 'IS temperature exponent' , range: ANY },
+  { name: 'XTB', default: 0, unit: '', doc: 'beta temperature exponent' , range: ANY },
+  { name: 'PMAX', default: undefined, unit: 'W', doc: 'power rating' , range: POSITIVE },
 ];
 
-/** Names of the parameters a model type accepts, upper-case. */
-export function knownParams(type: 'D' | 'NPN' | 'PNP'): readonly string[] {
-  return (type === 'D' ? DIODE_PARAMS : BJT_PARAMS).map((p) => p.name);
-}
 
 function populate(table: readonly ParamSpec[], given: ReadonlyMap<string, number>): Record<string, number | undefined> {
   const out: Record<string, number | undefined> = {};

@@ -10,6 +10,20 @@ import type { Capacitor, Inductor, Resistor } from './types.js';
 
 const NO_TOPOLOGY: Topology = { dcPaths: [], voltageDefined: [] };
 
+/**
+ * The factor by which an inductor's branch row is divided through in a
+ * transient step: 1/max(1, G) with G = a0·L the flux companion's
+ * conductance (Ω). Dividing a row changes no solution; with G = L/h large
+ * the unscaled row would win the pivot search over the KCL rows, and
+ * V(p) − V(n) would then come out as the difference of two large terms,
+ * losing every digit. Every element that stamps into an inductor's branch
+ * row (the inductor itself, a K coupling) applies the same factor.
+ * @param conductance G = a0·L, Ω (a0 in 1/s, L in henries)
+ */
+export function branchRowScale(conductance: number): number {
+  return 1 / Math.max(1, conductance);
+}
+
 class ResistorImpl implements Resistor {
   readonly kind = 'resistor' as const;
   readonly nodes: readonly [number, number];
@@ -203,12 +217,10 @@ class InductorImpl implements Inductor {
       return;
     }
     // Branch row: V(p) − V(n) = dφ/dt ≈ chargeCurrent + G·(i_new − i), divided through by
-    // max(1, G). Dividing a row changes no solution, but with G = L/h large the unscaled row
-    // would win the pivot search over the KCL rows, and V(p) − V(n) would then come out as the
-    // difference of two large terms, G·i and G·ic, losing every digit.
+    // max(1, G) (branchRowScale). A K coupling adds its mutual-flux terms to this row.
     ctx.integrate(off, this.inductance);
     const g = ctx.chargeConductance;
-    const scale = 1 / Math.max(1, g);
+    const scale = branchRowScale(g);
     addAt(m, b.pb, 1);
     addAt(m, b.nb, -1);
     addAt(m, b.bp, scale);

@@ -1,9 +1,11 @@
 /**
- * The concrete device interfaces, one per {@link DeviceKind}, and the map
- * from kind to interface that lets the engine narrow a {@link Device}.
+ * The concrete device interfaces of the built-in elements, and the guard
+ * that narrows a {@link Device} by kind (the kind → interface map is the
+ * registry's {@link DeviceByKind}).
  */
 
 import type { Device, DeviceKind } from './device.js';
+import type { DeviceByKind } from './registry.js';
 import type { BjtModel, DiodeModel } from './models.js';
 import type { WaveformSpec } from './sources.js';
 
@@ -147,21 +149,6 @@ export interface Bjt extends Device {
   readonly model: BjtModel;
   /** Area factor (dimensionless). */
   readonly area: number;
-}
-
-/** Interface of each device kind, for narrowing on `device.kind`. */
-export interface DeviceByKind {
-  resistor: Resistor;
-  capacitor: Capacitor;
-  inductor: Inductor;
-  vsource: VoltageSource;
-  isource: CurrentSource;
-  vcvs: Vcvs;
-  vccs: Vccs;
-  cccs: Cccs;
-  ccvs: Ccvs;
-  diode: Diode;
-  bjt: Bjt;
 }
 
 /** Any device this package creates: a union discriminated by `kind`. */

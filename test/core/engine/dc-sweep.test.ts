@@ -8,6 +8,7 @@ import { describe, expect, test } from 'vitest';
 import { dcSweep, operatingPoint, parseNetlist, prepare, runNetlist, type CompiledCircuit, type DcSweep, type FlatElement, type RunReport } from '@railcheck/core';
 import { EXP_LINEAR_LIMIT } from '@railcheck/devices';
 import { seriesDiode, thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';
+import { terminalCurrents } from '../../helpers/laws.js';
 
 const IS = 1e-14;
 const VT = thermalVoltage(T_NOM);
@@ -31,13 +32,7 @@ function sweepKcl(elements: readonly FlatElement[], sweep: DcSweep, k: number): 
     sums.set(node, (sums.get(node) ?? 0) + amps);
   };
   for (const el of elements) {
-    if (el.kind === 'bjt') {
-      ['c', 'b', 'e'].forEach((t, i) => add(el.nodes[i]!, sweep.currents[`${el.name}.${t}`]![k]!));
-    } else {
-      const i = sweep.currents[el.name]![k]!;
-      add(el.nodes[0], i);
-      add(el.nodes[1], -i);
-    }
+    for (const [node, amps] of terminalCurrents(el, (label) => sweep.currents[label ? `${el.name}.${label}` : el.name]![k]!)) add(node, amps);
   }
   sums.delete('0');
   return Math.max(...[...sums.values()].map(Math.abs));

@@ -37,7 +37,7 @@ const CASES: readonly Case[] = [
   { name: 'wrong node count on E', body: 'E1 out 0 in 2', code: 'wrong-node-count', line: 2, column: 14, expected: /nc\+ nc-/ },
   { name: 'too many fields on R', body: 'R1 a b c 1k', code: 'too-many-fields', line: 2, column: 10, expected: /Rname/ },
   { name: 'option not accepted on an element', body: 'R1 a b 1k ic=0', code: 'unknown-key', line: 2, column: 11, expected: /pmax=/ },
-  { name: 'unknown element letter', body: 'Z1 a b 1k', code: 'unknown-element', line: 2, column: 1, expected: /R C L V I D Q E G F H X/ },
+  { name: 'unknown element letter', body: 'Z1 a b 1k', code: 'unknown-element', line: 2, column: 1, expected: /R C L K V I D Q E G F H X/ },
   { name: 'F controlled by a non-source', body: 'F1 a 0 R1 2', code: 'bad-control', line: 2, column: 8, expected: /V element/ },
   { name: 'unknown model parameter lists the known ones', body: '.model z D (IS=1e-14 BVX=5)', code: 'unknown-parameter', line: 2, column: 22, expected: /IS N RS BV IBV NBV CJO VJ M TT EG XTI TBV PMAX/ },
   { name: 'unknown BJT parameter', body: '.model q NPN BF=100 BV=3', code: 'unknown-parameter', line: 2, column: 21, expected: /BF BR NF NR VAF/ },

@@ -85,7 +85,15 @@ function element(name: string): fc.Arbitrary<Card> {
   const mk = (a: fc.Arbitrary<object>) => a.map((o) => clean({ ...origin, kind, name, ...o }) as unknown as Card);
   switch (kind) {
     case 'R': return mk(fc.record({ nodes: n2, value: nonZero, pmax }));
-    case 'C': case 'L': return mk(fc.record({ nodes: n2, value: value(), ic: opt(value()), pmax }));
+    // Values within the ranges the reader checks on plain numbers (docs/models.md): C ≥ 0, L > 0, 0 < k ≤ 1.
+    case 'C': return mk(fc.record({ nodes: n2, value: value(0), ic: opt(value()), pmax }));
+    case 'L': return mk(fc.record({ nodes: n2, value: positive, ic: opt(value()), pmax }));
+    case 'K':
+      return mk(fc.record({
+        inductors: fc.tuple(fc.integer({ min: 1, max: 9 }), fc.integer({ min: 1, max: 9 })).map(([a, b]) => [`L${a}`, `Lp${b}`]),
+        coupling: fc.oneof(fc.double({ min: Number.MIN_VALUE, max: 1, noNaN: true }).map(plain), exprValue),
+        pmax,
+      }));
     case 'V': case 'I':
       return mk(fc.record({ nodes: n2, dc: opt(value()), ac: opt(fc.tuple(value(), opt(value())).map(([mag, phase]) => clean({ mag, phase }))), waveform: opt(waveform), pmax }));
     case 'D': return mk(fc.record({ nodes: n2, model: ident, area: opt(value()), pmax }));
@@ -111,11 +119,11 @@ const model = (name: string) => fc.constantFrom('D', 'NPN', 'PNP').chain((type) 
 
 /** Cards allowed in a scope: elements, models, params and (to `depth`) nested definitions; names unique per kind. */
 function scope(depth: number): fc.Arbitrary<Card[]> {
-  const letters = depth > 0 ? 'RCLVIDQEGFHX' : 'RCLVIDQEGFH';
-  return fc.array(fc.integer({ min: 0, max: 13 }), { maxLength: 6 }).chain((picks) => fc.tuple(...picks.map((p, i): fc.Arbitrary<Card> => {
+  const letters = depth > 0 ? 'RCLVIDQEGFHKX' : 'RCLVIDQEGFHK';
+  return fc.array(fc.integer({ min: 0, max: 14 }), { maxLength: 6 }).chain((picks) => fc.tuple(...picks.map((p, i): fc.Arbitrary<Card> => {
     if (p < letters.length) return element(`${letters[p]}${i}`);
-    if (p === 12) return model(`m${i}`);
-    if (p === 13 && depth > 0) return subckt(`s${i}`, depth - 1);
+    if (p === 13) return model(`m${i}`);
+    if (p === 14 && depth > 0) return subckt(`s${i}`, depth - 1);
     return assignments(1).map((a) => ({ ...origin, kind: 'param', assignments: a }) as unknown as Card);
   })).map((cards) => cards));
 }

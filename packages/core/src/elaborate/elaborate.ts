@@ -5,9 +5,10 @@
  * every cross-reference (controlling sources, `.dc` and `.supply` names)
  * checked. Errors are collected, not thrown.
  */
-import { match } from 'ts-pattern';
+import { kindOfLetter } from '@railcheck/devices';
+import { match, P } from 'ts-pattern';
 import { warningAt, type Diagnostic } from '../errors.js';
-import type { AnalysisCard, Card, InstanceCard, SupplyCard } from '../netlist/ast.js';
+import type { AnalysisCard, Card, DeviceCard, InstanceCard, SupplyCard } from '../netlist/ast.js';
 import type { FlatCircuit, FlatElement, FlatNode } from './flat.js';
 import { GROUND_KEY } from './flat.js';
 import { createEvaluator, type Evaluator } from './evaluate.js';
@@ -40,6 +41,13 @@ interface Walk {
   readonly names: Map<string, FlatElement>;
   /** Set once {@link MAX_FLAT_ELEMENTS} is reached; no further instance is expanded. */
   full: boolean;
+  /** Range errors reported so far (each once). */
+  readonly reported: Set<string>;
+}
+
+/** True for the element cards of the registry's letters (every element but X). */
+function isDeviceCard(card: Card): card is DeviceCard {
+  return kindOfLetter(card.kind) !== undefined;
 }
 
 /** Registers the definitions of one level (models, subcircuits), then its parameters in order. */
@@ -78,8 +86,8 @@ function walkLevel(w: Walk, scope: Scope, cards: readonly Card[]): void {
         else w.directives.push(c);
       })
       .with({ kind: 'X' }, (c) => instantiate(w, scope, c))
-      .with({ kind: 'R' }, { kind: 'C' }, { kind: 'L' }, { kind: 'V' }, { kind: 'I' }, { kind: 'D' }, { kind: 'Q' }, { kind: 'E' }, { kind: 'G' }, { kind: 'F' }, { kind: 'H' }, (c) => {
-        const el = flattenElement({ scope, ev: w.ev, noteNode }, c);
+      .with(P.when(isDeviceCard), (c) => {
+        const el = flattenElement({ scope, ev: w.ev, noteNode, reported: w.reported }, c);
         if (!el) return;
         const clash = w.names.get(el.key);
         if (clash) {
@@ -148,21 +156,56 @@ function instantiate(w: Walk, scope: Scope, card: InstanceCard): void {
   walkLevel(w, inner, def.body);
 }
 
-/** Resolves controlling-source names of F and H elements (instance-local first, then global). */
-function resolveControls(w: Walk): FlatElement[] {
+/**
+ * Finds the element an F, H or K names, written in the instance of `el`:
+ * first within the same instance, then at the top level (docs/netlist.md).
+ * Returns it only when it is of kind `wanted`; otherwise records an error
+ * naming what was written and what was expected.
+ */
+function resolveReference<K extends FlatElement['kind']>(w: Walk, el: FlatElement, written: string, wanted: K, expected: string): Extract<FlatElement, { kind: K }> | undefined {
+  const dot = el.key.lastIndexOf('.');
+  const key = written.toLowerCase();
+  const local = dot >= 0 ? el.key.slice(0, dot + 1) + key : key;
+  const target = w.names.get(local) ?? w.names.get(key);
+  if (target && target.kind === wanted) return target as Extract<FlatElement, { kind: K }>;
+  w.ev.at(el.origin);
+  const what = target ? `a ${target.kind === 'vsource' || target.kind === 'isource' ? 'source' : target.kind}` : 'no element of the circuit';
+  if (el.kind === 'coupling') {
+    w.ev.fail(el.origin, 'unknown-inductor', `${el.name} couples '${written}', which is ${what}, not an inductor`, expected);
+  } else {
+    w.ev.fail(el.origin, 'unknown-control', `${el.name} is controlled by '${written}', which is not a voltage source`, expected);
+  }
+  return undefined;
+}
+
+/**
+ * Resolves the element names F, H and K carry into keys: the controlling V
+ * of F and H, the two inductors of K (each pair coupled at most once).
+ */
+function resolveReferences(w: Walk): FlatElement[] {
+  const pairs = new Map<string, FlatElement>();
   return w.elements.map((el) => {
-    if (el.kind !== 'cccs' && el.kind !== 'ccvs') return el;
-    const dot = el.key.lastIndexOf('.');
-    // el.control is still the name as written (kept for the message); look-ups use keys.
-    const control = el.control.toLowerCase();
-    const local = dot >= 0 ? el.key.slice(0, dot + 1) + control : control;
-    const target = w.names.get(local) ?? w.names.get(control);
-    if (!target || target.kind !== 'vsource') {
-      w.ev.at(el.origin);
-      w.ev.fail(el.origin, 'unknown-control', `${el.name} is controlled by '${el.control}', which is not a voltage source`, 'the name of an independent voltage source (V line) whose current controls it');
+    if (el.kind === 'cccs' || el.kind === 'ccvs') {
+      const target = resolveReference(w, el, el.control, 'vsource', 'the name of an independent voltage source (V line) whose current controls it');
+      return target ? { ...el, control: target.key } : el;
+    }
+    if (el.kind !== 'coupling') return el;
+    const expected = 'the names of two inductors (L lines) of the same instance or the top level';
+    const first = resolveReference(w, el, el.inductors[0], 'inductor', expected);
+    const second = resolveReference(w, el, el.inductors[1], 'inductor', expected);
+    if (!first || !second) return el;
+    if (first.key === second.key) {
+      w.ev.fail(el.origin, 'bad-coupling', `${el.name} couples ${first.name} with itself`, 'two different inductors');
       return el;
     }
-    return { ...el, control: target.key };
+    const pair = [first.key, second.key].sort().join(' ');
+    const earlier = pairs.get(pair);
+    if (earlier) {
+      w.ev.fail(el.origin, 'duplicate-coupling', `${first.name} and ${second.name} are already coupled by ${earlier.name} (line ${earlier.origin.pos.line})`, 'one K element per pair of inductors');
+      return el;
+    }
+    pairs.set(pair, el);
+    return { ...el, inductors: [first.key, second.key] as const };
   });
 }
 
@@ -171,10 +214,10 @@ function resolveControls(w: Walk): FlatElement[] {
  * netlist with errors yields `ok: false`.
  */
 export function elaborate(netlist: Netlist): ElaborateResult {
-  const w: Walk = { ev: createEvaluator(), elements: [], nodes: new Map(), analyses: [], directives: [], names: new Map(), full: false };
+  const w: Walk = { ev: createEvaluator(), elements: [], nodes: new Map(), analyses: [], directives: [], names: new Map(), full: false, reported: new Set() };
   const top = topScope();
   walkLevel(w, top, netlist.cards);
-  const elements = resolveControls(w);
+  const elements = resolveReferences(w);
   const resolved = resolveDirectives(w.ev, w.analyses, w.directives, w.names, w.nodes, top);
   const errors = w.ev.diagnostics.filter((d) => d.severity === 'error');
   const warnings = w.ev.diagnostics.filter((d) => d.severity === 'warning');

@@ -2,9 +2,12 @@
  * Turns one element card into a flat element: evaluates its values in the
  * scope of its instance and binds its model.
  */
-import { bjtModel, diodeModel, type SourceSpec, type WaveformSpec } from '@railcheck/devices';
+import {
+  AREA_RANGE, DEVICES, MODEL_KINDS, RATING_RANGE, buildModel, describeRange, inRange, paramTable,
+  type DeviceKind, type ModelType, type SourceSpec, type ValueField, type ValueRange, type WaveformSpec,
+} from '@railcheck/devices';
 import { match } from 'ts-pattern';
-import type { BjtCard, DiodeCard, ElementCard, ModelCard, Value, Waveform } from '../netlist/ast.js';
+import type { BjtCard, CardOrigin, DeviceCard, DiodeCard, ElementCard, ModelCard, Value, Waveform } from '../netlist/ast.js';
 import type { FlatElement } from './flat.js';
 import { lookupModel, resolveNode, type Scope } from './scope.js';
 import type { Evaluator } from './evaluate.js';
@@ -15,6 +18,34 @@ export interface ElementEnv {
   readonly ev: Evaluator;
   /** Records a node's first spelling. */
   readonly noteNode: (key: string, name: string) => void;
+  /** Range errors already reported (a model used by several devices is reported once per mistake). */
+  readonly reported: Set<string>;
+}
+
+/** Records an out-of-range error once per place and message. */
+function rangeError(env: ElementEnv, at: CardOrigin, message: string, expected: string): void {
+  const key = `${at.pos.file}:${at.pos.line}:${at.pos.column}:${message}`;
+  if (env.reported.has(key)) return;
+  env.reported.add(key);
+  env.ev.fail(at, 'out-of-range', message, expected);
+}
+
+/** Evaluates `v` and checks it against `range`; an error names `what` and the value. NaN (already reported) passes. */
+function ranged(env: ElementEnv, card: DeviceCard, v: Value, what: string, range: ValueRange): number {
+  const x = env.ev.num(v, env.scope);
+  if (!Number.isNaN(x) && !inRange(range, x)) rangeError(env, card, `${card.name}: the ${what} ${x} is out of range`, `${what} ${describeRange(range)}`);
+  return x;
+}
+
+/** The card's main value (resistance, capacitance, gain, coupling coefficient...) checked against the registry's range. */
+function mainValue(env: ElementEnv, card: DeviceCard, kind: DeviceKind, v: Value): number {
+  const field = DEVICES[kind].value as ValueField;
+  if (field.range.nonZero === true) {
+    const x = env.ev.num(v, env.scope);
+    if (x === 0) env.ev.fail(card, 'zero-resistance', `${card.name} has a value of zero`, `a non-zero ${field.what} in ohms`);
+    return x;
+  }
+  return ranged(env, card, v, field.what, field.range);
 }
 
 function nodesOf<T extends readonly string[]>(env: ElementEnv, written: T): { -readonly [K in keyof T]: string } {
@@ -65,21 +96,37 @@ function sourceSpec(env: ElementEnv, card: Extract<ElementCard, { kind: 'V' | 'I
   };
 }
 
+/**
+ * The given parameter values of a `.model` card, evaluated in its scope and
+ * each checked against its range in the model's table (docs/models.md); an
+ * error names the parameter at its own line and column.
+ */
 function modelParams(env: ElementEnv, card: ModelCard, scope: Scope): Map<string, number> {
   const given = new Map<string, number>();
-  for (const a of card.params) given.set(a.name.toUpperCase(), env.ev.num(a.value, scope));
+  const table = paramTable(card.type);
+  for (const a of card.params) {
+    const name = a.name.toUpperCase();
+    const x = env.ev.num(a.value, scope);
+    const spec = table.find((p) => p.name === name);
+    if (spec && !Number.isNaN(x) && !inRange(spec.range, x)) {
+      const at = { pos: a.pos, lineText: a.pos.line === card.pos.line && a.pos.file === card.pos.file ? card.lineText : '' };
+      rangeError(env, at, `.model ${card.name}: ${name}=${x} is out of range (${spec.doc})`, `${name} ${describeRange(spec.range)}`);
+    }
+    given.set(name, x);
+  }
   return given;
 }
 
-function bindModel(env: ElementEnv, card: DiodeCard | BjtCard): { model: ModelCard; scope: Scope } | undefined {
+function bindModel(env: ElementEnv, card: DiodeCard | BjtCard, kind: 'diode' | 'bjt'): { model: ModelCard; scope: Scope } | undefined {
+  const mk = MODEL_KINDS[kind];
+  const wanted: readonly ModelType[] = mk.types;
   const found = lookupModel(env.scope, card.model.toLowerCase());
   if (!found) {
-    env.ev.fail(card, 'unknown-model', `model '${card.model}' of ${card.name} is not defined`, `a .model ${card.model} ${card.kind === 'D' ? 'D' : 'NPN|PNP'} (...) line`);
+    env.ev.fail(card, 'unknown-model', `model '${card.model}' of ${card.name} is not defined`, `a .model ${card.model} ${wanted.join('|')} (...) line`);
     return undefined;
   }
-  const wanted = card.kind === 'D' ? ['D'] : ['NPN', 'PNP'];
   if (!wanted.includes(found.card.type)) {
-    env.ev.fail(card, 'model-type', `${card.name} is a ${card.kind === 'D' ? 'diode' : 'transistor'} but model '${card.model}' is of type ${found.card.type}`, `a model of type ${wanted.join(' or ')}`);
+    env.ev.fail(card, 'model-type', `${card.name} is a ${mk.title} but model '${card.model}' is of type ${found.card.type}`, `a model of type ${wanted.join(' or ')}`);
     return undefined;
   }
   return { model: found.card, scope: found.scope };
@@ -89,36 +136,35 @@ function bindModel(env: ElementEnv, card: DiodeCard | BjtCard): { model: ModelCa
 export function flattenElement(env: ElementEnv, card: Exclude<ElementCard, { kind: 'X' }>): FlatElement | undefined {
   const { ev, scope } = env;
   const name = scope.prefixName + card.name;
-  const base = { name, key: name.toLowerCase(), origin: { pos: card.pos, lineText: card.lineText }, pmax: card.pmax ? ev.num(card.pmax, scope) : undefined };
+  const base = { name, key: name.toLowerCase(), origin: { pos: card.pos, lineText: card.lineText }, pmax: card.pmax ? ranged(env, card, card.pmax, 'power rating (pmax)', RATING_RANGE) : undefined };
   const before = ev.errorCount();
+  const area = (c: DiodeCard | BjtCard): number => (c.area ? ranged(env, c, c.area, 'area', AREA_RANGE) : 1);
   const el = match(card)
     .returnType<FlatElement | undefined>()
-    .with({ kind: 'R' }, (c) => {
-      const ohms = ev.num(c.value, scope);
-      if (ohms === 0) ev.fail(c, 'zero-resistance', `${c.name} has a value of zero`, 'a non-zero resistance in ohms');
-      return { ...base, kind: 'resistor', nodes: nodesOf(env, c.nodes), ohms };
-    })
-    .with({ kind: 'C' }, (c) => ({ ...base, kind: 'capacitor', nodes: nodesOf(env, c.nodes), farads: ev.num(c.value, scope), ic: c.ic ? ev.num(c.ic, scope) : undefined }))
-    .with({ kind: 'L' }, (c) => ({ ...base, kind: 'inductor', nodes: nodesOf(env, c.nodes), henries: ev.num(c.value, scope), ic: c.ic ? ev.num(c.ic, scope) : undefined }))
+    .with({ kind: 'R' }, (c) => ({ ...base, kind: 'resistor', nodes: nodesOf(env, c.nodes), ohms: mainValue(env, c, 'resistor', c.value) }))
+    .with({ kind: 'C' }, (c) => ({ ...base, kind: 'capacitor', nodes: nodesOf(env, c.nodes), farads: mainValue(env, c, 'capacitor', c.value), ic: c.ic ? ev.num(c.ic, scope) : undefined }))
+    .with({ kind: 'L' }, (c) => ({ ...base, kind: 'inductor', nodes: nodesOf(env, c.nodes), henries: mainValue(env, c, 'inductor', c.value), ic: c.ic ? ev.num(c.ic, scope) : undefined }))
+    // Inductor names stay as written here; elaborate.ts resolves them in the instance scope once every element is known.
+    .with({ kind: 'K' }, (c) => ({ ...base, kind: 'coupling', nodes: [], inductors: [c.inductors[0], c.inductors[1]], coupling: mainValue(env, c, 'coupling', c.coupling) }))
     .with({ kind: 'V' }, (c) => ({ ...base, kind: 'vsource', nodes: nodesOf(env, c.nodes), spec: sourceSpec(env, c) }))
     .with({ kind: 'I' }, (c) => ({ ...base, kind: 'isource', nodes: nodesOf(env, c.nodes), spec: sourceSpec(env, c) }))
-    .with({ kind: 'E' }, (c) => ({ ...base, kind: 'vcvs', nodes: nodesOf(env, c.nodes), gain: ev.num(c.gain, scope) }))
-    .with({ kind: 'G' }, (c) => ({ ...base, kind: 'vccs', nodes: nodesOf(env, c.nodes), gain: ev.num(c.gain, scope) }))
-    .with({ kind: 'F' }, (c) => ({ ...base, kind: 'cccs', nodes: nodesOf(env, c.nodes), control: c.control, gain: ev.num(c.gain, scope) }))
-    .with({ kind: 'H' }, (c) => ({ ...base, kind: 'ccvs', nodes: nodesOf(env, c.nodes), control: c.control, gain: ev.num(c.gain, scope) }))
+    .with({ kind: 'E' }, (c) => ({ ...base, kind: 'vcvs', nodes: nodesOf(env, c.nodes), gain: mainValue(env, c, 'vcvs', c.gain) }))
+    .with({ kind: 'G' }, (c) => ({ ...base, kind: 'vccs', nodes: nodesOf(env, c.nodes), gain: mainValue(env, c, 'vccs', c.gain) }))
+    .with({ kind: 'F' }, (c) => ({ ...base, kind: 'cccs', nodes: nodesOf(env, c.nodes), control: c.control, gain: mainValue(env, c, 'cccs', c.gain) }))
+    .with({ kind: 'H' }, (c) => ({ ...base, kind: 'ccvs', nodes: nodesOf(env, c.nodes), control: c.control, gain: mainValue(env, c, 'ccvs', c.gain) }))
     .with({ kind: 'D' }, (c) => {
       const nodes = nodesOf(env, c.nodes);
-      const bound = bindModel(env, c);
+      const bound = bindModel(env, c, 'diode');
       if (!bound) return undefined;
-      const model = diodeModel(modelParams(env, bound.model, bound.scope));
-      return { ...base, pmax: base.pmax ?? model.PMAX, kind: 'diode', nodes, model, modelName: bound.model.name, area: c.area ? ev.num(c.area, scope) : 1 };
+      const model = buildModel('D', modelParams(env, bound.model, bound.scope));
+      return { ...base, pmax: base.pmax ?? model.PMAX, kind: 'diode', nodes, model, modelName: bound.model.name, area: area(c) };
     })
     .with({ kind: 'Q' }, (c) => {
       const nodes = nodesOf(env, c.nodes);
-      const bound = bindModel(env, c);
+      const bound = bindModel(env, c, 'bjt');
       if (!bound) return undefined;
-      const model = bjtModel(bound.model.type === 'PNP' ? 'pnp' : 'npn', modelParams(env, bound.model, bound.scope));
-      return { ...base, pmax: base.pmax ?? model.PMAX, kind: 'bjt', nodes, model, modelName: bound.model.name, area: c.area ? ev.num(c.area, scope) : 1 };
+      const model = buildModel(bound.model.type === 'PNP' ? 'PNP' : 'NPN', modelParams(env, bound.model, bound.scope));
+      return { ...base, pmax: base.pmax ?? model.PMAX, kind: 'bjt', nodes, model, modelName: bound.model.name, area: area(c) };
     })
     .exhaustive();
   return ev.errorCount() === before ? el : undefined;

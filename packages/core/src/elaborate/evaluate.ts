@@ -38,7 +38,8 @@ export function createEvaluator(): Evaluator {
       current = card;
     },
     fail(card, code, message, expected) {
-      push(errorAt(code, message, card.pos, card.lineText, expected));
+      // An empty line text (a place on a continuation line the card does not quote) is not quoted.
+      push(errorAt(code, message, card.pos, card.lineText === '' ? undefined : card.lineText, expected));
     },
     num(v, scope) {
       if (v.kind === 'number') return v.value;

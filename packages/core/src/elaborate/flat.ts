@@ -3,7 +3,7 @@
  * models bound. Names are flat (`X1.R2`, `X1.mid`) and keep their first
  * spelling; `key`s are the lower-case forms used for look-up.
  */
-import type { BjtModel, DiodeModel, SourceSpec } from '@railcheck/devices';
+import type { DeviceKind, DeviceSpecs } from '@railcheck/devices';
 import type { CardOrigin, FigureKind, LimitOp } from '../netlist/ast.js';
 
 /** Key of the ground node. */
@@ -26,16 +26,15 @@ interface FlatBase {
   readonly pmax: number | undefined;
 }
 
-/** One element of the flat circuit, discriminated by `kind`; node fields hold node keys. */
-export type FlatElement =
-  | (FlatBase & { readonly kind: 'resistor'; readonly nodes: readonly [string, string]; readonly ohms: number })
-  | (FlatBase & { readonly kind: 'capacitor'; readonly nodes: readonly [string, string]; readonly farads: number; readonly ic: number | undefined })
-  | (FlatBase & { readonly kind: 'inductor'; readonly nodes: readonly [string, string]; readonly henries: number; readonly ic: number | undefined })
-  | (FlatBase & { readonly kind: 'vsource' | 'isource'; readonly nodes: readonly [string, string]; readonly spec: SourceSpec })
-  | (FlatBase & { readonly kind: 'vcvs' | 'vccs'; readonly nodes: readonly [string, string, string, string]; readonly gain: number })
-  | (FlatBase & { readonly kind: 'cccs' | 'ccvs'; readonly nodes: readonly [string, string]; readonly control: string; readonly gain: number })
-  | (FlatBase & { readonly kind: 'diode'; readonly nodes: readonly [string, string]; readonly model: DiodeModel; readonly modelName: string; readonly area: number })
-  | (FlatBase & { readonly kind: 'bjt'; readonly nodes: readonly [string, string, string]; readonly model: BjtModel; readonly modelName: string; readonly area: number });
+/**
+ * One element of the flat circuit, discriminated by `kind`: the registry's
+ * {@link DeviceSpecs} for that kind with node keys, plus name, origin and
+ * rating. A kind added to the registry is an element here too.
+ */
+export type FlatElement = { [K in DeviceKind]: FlatBase & { readonly kind: K } & DeviceSpecs<string>[K] }[DeviceKind];
+
+/** The flat element of one kind. */
+export type FlatElementOf<K extends DeviceKind> = Extract<FlatElement, { readonly kind: K }>;
 
 /** An analysis request with evaluated numbers (seconds, hertz, volts or amps). */
 export type FlatAnalysis =

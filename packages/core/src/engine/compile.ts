@@ -6,13 +6,11 @@
  * indexes Float64Arrays.
  */
 import {
-  createBjt, createCapacitor, createCccs, createCcvs, createCurrentSource, createDiode, createInductor,
-  createResistor, createVccs, createVcvs, createVoltageSource,
-  type Device, type IndependentSource, type SlotBinder, type UnknownAllocator,
+  DEVICES,
+  type BranchRef, type Device, type DeviceEntry, type DeviceKind, type DeviceSpecs, type IndependentSource, type SlotBinder, type UnknownAllocator,
 } from '@railcheck/devices';
-import { match } from 'ts-pattern';
 import { errorAt, type Diagnostic } from '../errors.js';
-import type { FlatCircuit, FlatElement } from '../elaborate/flat.js';
+import type { FlatCircuit, FlatElement, FlatElementOf } from '../elaborate/flat.js';
 import { GROUND_KEY } from '../elaborate/flat.js';
 import { createWorkspace, type Workspace } from './workspace.js';
 import { checkTopology } from './topology.js';
@@ -43,21 +41,19 @@ export interface CompiledCircuit {
 /** Result of compiling. */
 export type CompileResult = { readonly ok: true; readonly circuit: CompiledCircuit } | { readonly ok: false; readonly errors: readonly Diagnostic[] };
 
-function makeDevice(el: FlatElement, n: (key: string) => number): Device {
-  return match(el)
-    .returnType<Device>()
-    .with({ kind: 'resistor' }, (e) => createResistor(e.name, n(e.nodes[0]), n(e.nodes[1]), e.ohms))
-    .with({ kind: 'capacitor' }, (e) => createCapacitor(e.name, n(e.nodes[0]), n(e.nodes[1]), e.farads, e.ic))
-    .with({ kind: 'inductor' }, (e) => createInductor(e.name, n(e.nodes[0]), n(e.nodes[1]), e.henries, e.ic))
-    .with({ kind: 'vsource' }, (e) => createVoltageSource(e.name, n(e.nodes[0]), n(e.nodes[1]), e.spec))
-    .with({ kind: 'isource' }, (e) => createCurrentSource(e.name, n(e.nodes[0]), n(e.nodes[1]), e.spec))
-    .with({ kind: 'vcvs' }, (e) => createVcvs(e.name, n(e.nodes[0]), n(e.nodes[1]), n(e.nodes[2]), n(e.nodes[3]), e.gain))
-    .with({ kind: 'vccs' }, (e) => createVccs(e.name, n(e.nodes[0]), n(e.nodes[1]), n(e.nodes[2]), n(e.nodes[3]), e.gain))
-    .with({ kind: 'cccs' }, (e) => createCccs(e.name, n(e.nodes[0]), n(e.nodes[1]), e.control, e.gain))
-    .with({ kind: 'ccvs' }, (e) => createCcvs(e.name, n(e.nodes[0]), n(e.nodes[1]), e.control, e.gain))
-    .with({ kind: 'diode' }, (e) => createDiode(e.name, n(e.nodes[0]), n(e.nodes[1]), e.model, e.area))
-    .with({ kind: 'bjt' }, (e) => createBjt(e.name, n(e.nodes[0]), n(e.nodes[1]), n(e.nodes[2]), e.model, e.area))
-    .exhaustive();
+/**
+ * Builds the device of one flat element through its registry entry: the
+ * element's spec with node keys replaced by unknown indices.
+ */
+function makeDevice<K extends DeviceKind>(el: FlatElementOf<K>, n: (key: string) => number): Device {
+  const entry = DEVICES[el.kind as K] as unknown as DeviceEntry<K>;
+  const spec = { ...el, nodes: el.nodes.map(n) } as unknown as DeviceSpecs<number>[K];
+  return entry.create(el.name, spec);
+}
+
+/** The registry's allocation rank (V first, K last); a stable sort keeps element order within a rank. */
+function allocationRank(d: Device): number {
+  return DEVICES[d.kind].allocationRank;
 }
 
 /** Compiles a flat circuit: numbers unknowns, binds stamps, checks topology. */
@@ -72,11 +68,15 @@ export function compileCircuit(flat: FlatCircuit): CompileResult {
   const devices = flat.elements.map((el) => makeDevice(el, index));
   const deviceByKey = new Map(flat.elements.map((el, i) => [el.key, devices[i]!] as const));
 
-  // Branches of voltage sources first, so that F/H can find their controls whatever the element order.
+  // Elements that own branches first, so that F, H and K find them whatever the element order.
   const branchOf = new Map<string, number>();
   let stateSize = 0;
   let owner = '';
+  let ownerElement: FlatElement | undefined;
   const errors: Diagnostic[] = [];
+  const fail = (message: string): void => {
+    errors.push(errorAt('unknown-branch', message, ownerElement?.origin.pos, ownerElement?.origin.lineText, 'the name of an element with a branch current (a V element for F and H, an L element for K)'));
+  };
   // Devices label their unknowns with their own name already (`D1:anode`, `V1`); others get the owner as prefix.
   const labelled = (label: string): string => (!label || label.toLowerCase() === owner.toLowerCase() ? owner : label.toLowerCase().startsWith(owner.toLowerCase()) ? label : `${owner}#${label}`);
   const allocator: UnknownAllocator = {
@@ -94,18 +94,24 @@ export function compileCircuit(flat: FlatCircuit): CompileResult {
       stateSize += count;
       return at;
     },
-    controlBranch: (name) => branchOf.get(name) ?? 0,
+    branchOf: (key): BranchRef => {
+      const target = deviceByKey.get(key);
+      const index = branchOf.get(key);
+      if (target && index !== undefined) return { ok: true, index, device: target };
+      const reason = target ? 'no-branch' : 'no-such-element';
+      fail(`${owner}: '${key}' ${reason === 'no-branch' ? 'has no branch current' : 'names no element of the circuit'}`);
+      return { ok: false, reason };
+    },
+    fail,
   };
-  const order = devices.map((_, i) => i).sort((a, b) => Number(devices[b]!.kind === 'vsource') - Number(devices[a]!.kind === 'vsource'));
+  const order = devices.map((_, i) => i).sort((a, b) => allocationRank(devices[a]!) - allocationRank(devices[b]!));
   for (const i of order) {
     owner = devices[i]!.name;
+    ownerElement = flat.elements[i];
     devices[i]!.allocate(allocator);
   }
-  for (const el of flat.elements) {
-    if ((el.kind === 'cccs' || el.kind === 'ccvs') && !branchOf.has(el.control)) {
-      errors.push(errorAt('unknown-control', `${el.name}: controlling source '${el.control}' has no branch`, el.origin.pos, el.origin.lineText));
-    }
-  }
+  // A failed look-up leaves a device without its indices: stop before any slot is bound.
+  if (errors.length > 0) return { ok: false, errors };
   const ws = createWorkspace(unknowns.length - 1, stateSize);
   const binder: SlotBinder = { slot: (row, col) => row * ws.size + col };
   for (const d of devices) d.bind(binder);

@@ -4,7 +4,13 @@
  * factor, solve for the next iterate, test convergence on every unknown.
  * Devices limit their junction voltages themselves (they set
  * `ctx.limited`); an iterate that was limited is never taken as converged.
- * The loop allocates nothing.
+ * An iterate whose update passed the test is taken as the solution only
+ * when the equations hold there too: the devices are loaded at it (the load
+ * the next iteration needs anyway) and the residual A·x − rhs, which for
+ * the companion form is the KCL imbalance of every node and the residual of
+ * every branch equation, must be small against the currents (or voltages)
+ * that meet in each row ({@link residualSettled}). The loop allocates
+ * nothing.
  */
 import { luFactor, luSolve } from './lu.js';
 import type { CompiledCircuit } from './compile.js';
@@ -19,7 +25,22 @@ export interface NewtonOptions {
   readonly abstol: number;
   /** Iteration limit for one solve (default 200). */
   readonly maxIterations: number;
+  /**
+   * Residual test at the final iterate, relative to the largest term of each
+   * row (default {@link RESIDUAL_RELTOL}); the absolute floors are `abstol`
+   * for KCL rows and `vntol` for branch rows.
+   */
+  readonly residualReltol?: number;
 }
+
+/**
+ * Default relative tolerance of the residual test: the customary relative
+ * tolerance of circuit simulators' per-device current test (Nagel 1975,
+ * reltol 1e-3), applied to the whole KCL row. Newton converges
+ * quadratically, so a true solution passes it by many orders; it refuses
+ * iterates that stopped moving without solving the equations.
+ */
+export const RESIDUAL_RELTOL = 1e-3;
 
 /**
  * Defaults. They are tighter than the customary circuit-simulator values
@@ -54,8 +75,40 @@ export function loadAll(c: CompiledCircuit): void {
 }
 
 /**
+ * True when, for every row i of the system loaded at `ws.x`, the residual
+ * |Σj A_ij·x_j − rhs_i| is at most reltol·(largest |A_ij·x_j| or |rhs_i|) +
+ * floor, the floor being `abstol` (A) for a KCL row and `vntol` (V) for a
+ * branch row. For the companion form this residual is the KCL imbalance at
+ * the node (Nagel 1975, ch. 4). Allocates nothing; the matrix must not yet
+ * be factored.
+ */
+export function residualSettled(c: CompiledCircuit, opts: NewtonOptions): boolean {
+  const { ws, unknowns } = c;
+  const a = ws.lu.matrix;
+  const { x, rhs, size } = ws;
+  const rel = opts.residualReltol ?? RESIDUAL_RELTOL;
+  for (let i = 1; i < size; i++) {
+    const row = i * size;
+    const b = rhs[i]!;
+    let sum = -b;
+    let scale = Math.abs(b);
+    for (let j = 1; j < size; j++) {
+      const term = a[row + j]! * x[j]!;
+      sum += term;
+      const m = Math.abs(term);
+      if (m > scale) scale = m;
+    }
+    const floor = unknowns[i]!.kind === 'branch' ? opts.vntol : opts.abstol;
+    if (!(Math.abs(sum) <= rel * scale + floor)) return false;
+  }
+  return true;
+}
+
+/**
  * Iterates from the present `ws.x` until every unknown changes by less than
- * reltol·|x| + (vntol or abstol). On success `ws.x` holds the solution.
+ * reltol·|x| + (vntol or abstol) and the equations hold at the new iterate
+ * ({@link residualSettled}). On success `ws.x` holds the solution and the
+ * devices' state was last loaded at it.
  */
 export function newtonSolve(c: CompiledCircuit, opts: NewtonOptions = DEFAULT_NEWTON): NewtonResult {
   const { ws, unknowns } = c;
@@ -63,9 +116,13 @@ export function newtonSolve(c: CompiledCircuit, opts: NewtonOptions = DEFAULT_NE
   const n = ws.unknowns;
   let worst = 0;
   let lastRatio = Number.POSITIVE_INFINITY;
-  for (let iter = 1; iter <= opts.maxIterations; iter++) {
+  // The last update passed the update test: the load at the new iterate decides.
+  let settled = false;
+  for (let iter = 1; iter <= opts.maxIterations + 1; iter++) {
     loadAll(c);
     ctx.initJunctions = false;
+    if (settled && !ctx.limited && residualSettled(c, opts)) return { converged: true, iterations: iter - 1 };
+    if (iter > opts.maxIterations) break;
     const singular = luFactor(ws.lu);
     if (singular !== 0) return { converged: false, reason: 'singular', iterations: iter, worst: singular, lastRatio };
     luSolve(ws.lu, ws.rhs, xNext);
@@ -84,7 +141,7 @@ export function newtonSolve(c: CompiledCircuit, opts: NewtonOptions = DEFAULT_NE
     }
     x.set(xNext);
     lastRatio = ratio;
-    if (ratio <= 1 && !ctx.limited && iter > 1) return { converged: true, iterations: iter };
+    settled = ratio <= 1 && !ctx.limited && iter > 1;
   }
   return { converged: false, reason: 'iterations', iterations: opts.maxIterations, worst, lastRatio };
 }

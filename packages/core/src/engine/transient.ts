@@ -8,7 +8,7 @@
  * estimate ({@link SolutionHistory}); every pulse/pwl corner is landed on.
  * Nothing is allocated per step except the stored output point.
  */
-import { isKind, type IndependentSource, type LoadContext, type WaveformSpec } from '@railcheck/devices';
+import { type IndependentSource, type LoadContext, type WaveformSpec } from '@railcheck/devices';
 import type { CompiledCircuit } from './compile.js';
 import { DEFAULT_NEWTON, loadAll, newtonSolve, type NewtonOptions } from './newton.js';
 import { SolutionHistory } from './history.js';
@@ -193,7 +193,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       // voltage sources at their ic (0 if absent), inductors as current sources.
       x.fill(0);
       state.fill(0);
-      for (const d of c.devices) if (isKind(d, 'capacitor') || isKind(d, 'inductor')) d.seedInitialCondition(state);
+      for (const d of c.devices) d.seedInitialCondition?.(state);
       statePrev.set(state);
       ctx.mode = 'tran';
       ctx.time = 0;
@@ -314,5 +314,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     sources.forEach((s, i) => (s.defaultEdge = savedEdges[i]!));
     ctx.mode = 'dc';
     ctx.time = 0;
+    ctx.coefficients.a0 = 0;
+    ctx.coefficients.a1 = 0;
   }
 }

@@ -2,18 +2,10 @@
  * The engine's flat storage and the load context devices write into. One
  * workspace per compiled circuit, reused by every analysis.
  */
-import type { LoadContext, LoadMode } from '@railcheck/devices';
+import type { IntegrationCoefficients, LoadContext, LoadMode } from '@railcheck/devices';
 import { createLuWorkspace, type LuWorkspace } from './lu.js';
 
-/**
- * Integration coefficients for charge-storage companion models. The present
- * charge's current is `i = a0·(q − qPrev) + a1·iPrev`; backward Euler has
- * a0 = 1/h, a1 = 0; the trapezoidal rule a0 = 2/h, a1 = −1.
- */
-export interface IntegrationCoefficients {
-  a0: number;
-  a1: number;
-}
+export type { IntegrationCoefficients };
 
 /** The engine's implementation of {@link LoadContext}. */
 class EngineLoadContext implements LoadContext {

@@ -3,6 +3,7 @@
  * spelling, values stay unevaluated where they hold expressions). The reader
  * (parse) produces these; the elaborator turns them into a flat circuit.
  */
+import type { CardFamily, DeviceLetter, ModelType as RegistryModelType } from '@railcheck/devices';
 import type { SourcePos } from '../errors.js';
 import type { FigureKind } from '../figure-registry.js';
 
@@ -108,6 +109,15 @@ export interface CurrentControlledCard extends ElementBase {
   readonly gain: Value;
 }
 
+/** Magnetic coupling `Kname Lname1 Lname2 k` (netlist.md): two inductors and the coupling coefficient. */
+export interface CouplingCard extends ElementBase {
+  readonly kind: 'K';
+  /** Names of the two coupled inductors, as written. */
+  readonly inductors: readonly [string, string];
+  /** Coupling coefficient k, 0 < k ≤ 1. */
+  readonly coupling: Value;
+}
+
 /** Subcircuit instance `Xname node... subckt [name=value ...]`. */
 export interface InstanceCard extends ElementBase {
   readonly kind: 'X';
@@ -117,10 +127,23 @@ export interface InstanceCard extends ElementBase {
 }
 
 /** Any element line. */
-export type ElementCard = PassiveCard | SourceCard | DiodeCard | BjtCard | VoltageControlledCard | CurrentControlledCard | InstanceCard;
+export type ElementCard = PassiveCard | SourceCard | DiodeCard | BjtCard | VoltageControlledCard | CurrentControlledCard | CouplingCard | InstanceCard;
 
-/** Device type named on a `.model` line. */
-export type ModelType = 'D' | 'NPN' | 'PNP';
+/** The element cards that become devices (all but X), one card letter per registry entry. */
+export type DeviceCard = Exclude<ElementCard, InstanceCard>;
+
+/** The card type of each of the registry's card families (what the reader builds, the printer writes). */
+export interface CardOfFamily {
+  passive: PassiveCard;
+  source: SourceCard;
+  semiconductor: DiodeCard | BjtCard;
+  'voltage-controlled': VoltageControlledCard;
+  'current-controlled': CurrentControlledCard;
+  coupling: CouplingCard;
+}
+
+/** Device type named on a `.model` line (the registry's model types). */
+export type ModelType = RegistryModelType;
 
 /** `.model name type (param=value ...)`; parameter names upper-cased and checked against the device's table. */
 export interface ModelCard extends CardOrigin {
@@ -185,3 +208,14 @@ export interface Netlist {
   /** Top-level cards in source order (subcircuit definitions among them). */
   readonly cards: readonly Card[];
 }
+
+/** Compile-time check that the device cards are exactly the registry's letters: a letter missing on either side fails here. */
+type SameLetters<A, B> = [A] extends [B] ? ([B] extends [A] ? true : never) : never;
+/** Holds `true` only while {@link DeviceCard} and the registry agree. */
+export type DeviceCardsMatchRegistry = SameLetters<DeviceCard['kind'], DeviceLetter>;
+const lettersAgree: DeviceCardsMatchRegistry = true;
+void lettersAgree;
+/** Compile-time check that {@link CardOfFamily} covers the registry's families exactly. */
+export type FamiliesMatchRegistry = SameLetters<keyof CardOfFamily, CardFamily>;
+const familiesAgree: FamiliesMatchRegistry = true;
+void familiesAgree;

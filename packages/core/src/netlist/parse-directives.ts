@@ -3,7 +3,7 @@
  * Subcircuits, Includes, Analyses): `.model`, `.param`, `.subckt` headers,
  * `.ends`, `.include`, `.op`, `.dc`, `.tran`, `.ac`, `.temp`.
  */
-import { knownParams } from '@railcheck/devices';
+import { MODEL_TYPES, knownParams } from '@railcheck/devices';
 import type { AnalysisCard, Assignments, ModelCard, ModelType, ParamCard, Value } from './ast.js';
 import type { Cursor } from './cursor.js';
 import { show } from './cursor.js';
@@ -15,7 +15,6 @@ import { leafName } from './parse-supply.js';
 /** Flags a `.tran` line may end with. `fromic`: start from the `ic=` values without an operating point; `be` / `trap`: integration method (backward Euler / trapezoidal, the default). */
 export const TRAN_FLAGS: readonly string[] = ['fromic', 'be', 'trap'];
 
-const MODEL_TYPES: readonly ModelType[] = ['D', 'NPN', 'PNP'];
 
 /** `.model name D|NPN|PNP [(] [param=value ...] [)]`; parameters checked against the device's table. */
 export function parseModel(c: Cursor): ModelCard {
@@ -24,7 +23,7 @@ export function parseModel(c: Cursor): ModelCard {
   c.next();
   const name = c.name('the model name', form);
   const typeTok = c.name('the model type', 'D, NPN or PNP');
-  const type = MODEL_TYPES.find((t) => t === typeTok.text.toUpperCase());
+  const type: ModelType | undefined = MODEL_TYPES.find((t) => t === typeTok.text.toUpperCase());
   if (!type) c.fail('unknown-model-type', `unknown model type "${typeTok.text}"`, typeTok, 'D, NPN or PNP');
   const known = knownParams(type);
   const open = c.peek()?.kind === 'lparen' ? c.next() : undefined;

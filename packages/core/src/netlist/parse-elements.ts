@@ -2,8 +2,11 @@
  * Element lines (netlist.md, Elements): the first letter of the name gives
  * the kind; nodes, values and `key=value` options follow.
  */
+import { DEVICES, DEVICE_KINDS, describeRange, inRange, kindOfLetter, type CardFamily, type DeviceKind, type ValueField } from '@railcheck/devices';
 import type {
   Assignments,
+  CardOrigin,
+  DeviceCard,
   ElementCard,
   InstanceCard,
   SourceCard,
@@ -14,22 +17,12 @@ import type { Cursor } from './cursor.js';
 import { show } from './cursor.js';
 import type { Token } from './lexer.js';
 
-/** Element letters the reader knows. */
-export const ELEMENT_LETTERS = 'RCLVIDQEGFHX';
+/** Element letters the reader knows: every registry letter, then X (subcircuit instances). */
+export const ELEMENT_LETTERS: string = DEVICE_KINDS.map((k) => DEVICES[k].letter).join('') + 'X';
 
-/** The written form of each element line, quoted in messages. */
+/** The written form of each element line, quoted in messages (from the registry, plus X). */
 const FORMS: Readonly<Record<string, string>> = {
-  R: 'Rname n+ n- value [pmax=W]',
-  C: 'Cname n+ n- value [ic=V] [pmax=W]',
-  L: 'Lname n+ n- value [ic=A] [pmax=W]',
-  V: 'Vname n+ n- [[dc] value] [ac mag [phase]] [sin(...)|pulse(...)|pwl(...)] [pmax=W]',
-  I: 'Iname n+ n- [[dc] value] [ac mag [phase]] [sin(...)|pulse(...)|pwl(...)] [pmax=W]',
-  D: 'Dname anode cathode model [area] [pmax=W]',
-  Q: 'Qname collector base emitter model [area] [pmax=W]',
-  E: 'Ename n+ n- nc+ nc- gain [pmax=W]',
-  G: 'Gname n+ n- nc+ nc- transconductance [pmax=W]',
-  F: 'Fname n+ n- vname gain [pmax=W]',
-  H: 'Hname n+ n- vname transresistance [pmax=W]',
+  ...Object.fromEntries(DEVICE_KINDS.map((k) => [DEVICES[k].letter, DEVICES[k].form])),
   X: 'Xname node... subckt [name=value ...]',
 };
 
@@ -81,68 +74,108 @@ function opt<K extends string, V>(key: K, v: V | undefined): { [P in K]?: V } {
   return (v === undefined ? {} : { [key]: v }) as { [P in K]?: V };
 }
 
+/** Reports a plain-number value outside its field's valid range (expressions are checked at elaboration). */
+function checkValue(c: Cursor, name: Token, field: ValueField, value: Value, at: Token | undefined): void {
+  if (value.kind !== 'number' || inRange(field.range, value.value)) return;
+  if (field.range.nonZero === true) {
+    c.note('zero-resistance', `${name.text}: value must be non-zero`, at, `a non-zero ${field.what} (use a V source of 0 V for a short)`);
+    return;
+  }
+  c.note('bad-value', `${name.text}: the ${field.what} ${value.text} is out of range`, at, `${field.what} ${describeRange(field.range)}`);
+}
+
+/** The card's main value read with its field's checks. */
+function mainValue(c: Cursor, name: Token, kind: DeviceKind, form: string): Value {
+  const field = DEVICES[kind].value as ValueField;
+  const at = c.peek();
+  const value = c.value(`the ${field.what}`, form);
+  checkValue(c, name, field, value, at);
+  return value;
+}
+
+/** "2 nodes (anode cathode)" and the like, from the registry's terminal names. */
+function nodesPhrase(kind: DeviceKind): string {
+  const t: readonly string[] = DEVICES[kind].terminals;
+  return t.length === 2 && t[0] === 'n+' ? '2 nodes' : `${t.length} nodes (${t.join(' ')})`;
+}
+
+type FamilyParser = (c: Cursor, name: Token, kind: DeviceKind, origin: CardOrigin) => DeviceCard;
+
+/** One reader per card family of the registry: a family not handled here fails to compile. */
+const FAMILY_PARSERS: Readonly<Record<CardFamily, FamilyParser>> = {
+  passive: (c, name, kind, origin) => {
+    const letter = DEVICES[kind].letter as 'R' | 'C' | 'L';
+    const form = FORMS[letter] ?? '';
+    const what = (DEVICES[kind].value as ValueField).what;
+    checkFields(c, name, 3, 3, `2 nodes and a ${what}`);
+    const ns = nodes(c, 2, form);
+    const value = mainValue(c, name, kind, form);
+    const o = options(c, name, letter === 'R' ? ['pmax'] : ['ic', 'pmax']);
+    return { ...origin, kind: letter, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], value, ...opt('ic', o.get('ic')), ...opt('pmax', o.get('pmax')) };
+  },
+  source: (c, name, kind, origin) => parseSource(c, name, DEVICES[kind].letter as 'V' | 'I', origin),
+  semiconductor: (c, name, kind, origin) => {
+    const letter = DEVICES[kind].letter as 'D' | 'Q';
+    const form = FORMS[letter] ?? '';
+    const n = DEVICES[kind].terminals.length;
+    checkFields(c, name, n + 1, n + 2, `${nodesPhrase(kind)} and a model name`);
+    const ns = nodes(c, n, form);
+    const model = c.name('a model name', form).text;
+    const area = c.isValue(c.peek()) && !c.atAssignment() ? c.value('the area', form) : undefined;
+    const o = options(c, name, area === undefined ? ['area', 'pmax'] : ['pmax']);
+    const common = { ...origin, name: name.text, model, ...opt('area', area ?? o.get('area')), ...opt('pmax', o.get('pmax')) };
+    if (letter === 'D') return { ...common, kind: letter, nodes: [ns[0] ?? '', ns[1] ?? ''] };
+    return { ...common, kind: letter, nodes: [ns[0] ?? '', ns[1] ?? '', ns[2] ?? ''] };
+  },
+  'voltage-controlled': (c, name, kind, origin) => {
+    const letter = DEVICES[kind].letter as 'E' | 'G';
+    const form = FORMS[letter] ?? '';
+    checkFields(c, name, 5, 5, `${nodesPhrase(kind)} and a ${(DEVICES[kind].value as ValueField).what}`);
+    const ns = nodes(c, 4, form);
+    const gain = mainValue(c, name, kind, form);
+    const o = options(c, name, ['pmax']);
+    return { ...origin, kind: letter, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? '', ns[2] ?? '', ns[3] ?? ''], gain, ...opt('pmax', o.get('pmax')) };
+  },
+  'current-controlled': (c, name, kind, origin) => {
+    const letter = DEVICES[kind].letter as 'F' | 'H';
+    const form = FORMS[letter] ?? '';
+    checkFields(c, name, 4, 4, `2 nodes, the controlling voltage source and a ${(DEVICES[kind].value as ValueField).what}`);
+    const ns = nodes(c, 2, form);
+    const control = c.name('the name of the controlling voltage source', form);
+    if (!/^v/i.test(control.text)) c.fail('bad-control', `"${control.text}" is not a voltage source name; the controlling current is the one through a V element`, control, 'a V element name such as Vsense');
+    const gain = mainValue(c, name, kind, form);
+    const o = options(c, name, ['pmax']);
+    return { ...origin, kind: letter, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], control: control.text, gain, ...opt('pmax', o.get('pmax')) };
+  },
+  coupling: (c, name, kind, origin) => {
+    const form = FORMS.K ?? '';
+    checkFields(c, name, 3, 3, 'the names of two inductors and the coupling coefficient');
+    const inductor = (which: string): Token => {
+      const t = c.name(`the ${which} inductor's name`, form);
+      if (!/^l/i.test(t.text)) c.fail('bad-coupling', `"${t.text}" is not an inductor name; K couples two L elements`, t, 'an L element name such as Lpri');
+      return t;
+    };
+    const first = inductor('first');
+    const second = inductor('second');
+    if (first.text.toLowerCase() === second.text.toLowerCase()) c.fail('bad-coupling', `${name.text} couples ${first.text} with itself`, second, 'two different inductors');
+    const coupling = mainValue(c, name, kind, form);
+    const o = options(c, name, ['pmax']);
+    return { ...origin, kind: 'K', name: name.text, inductors: [first.text, second.text], coupling, ...opt('pmax', o.get('pmax')) };
+  },
+};
+
 /** Parses an element line; the cursor stands at its name. */
 export function parseElement(c: Cursor): ElementCard {
   const origin = c.origin();
   const name = c.next() as Token;
-  const kind = (name.text[0] ?? '').toUpperCase();
-  const form = FORMS[kind] ?? '';
-  if (FORMS[kind] !== undefined && name.text.includes('.')) {
+  const letter = (name.text[0] ?? '').toUpperCase();
+  const kind = kindOfLetter(letter);
+  if ((kind !== undefined || letter === 'X') && name.text.includes('.')) {
     c.fail('bad-name', `"${name.text}": element names may not contain "." (it joins instance paths such as X1.Q2)`, name, 'a name of letters, digits and _');
   }
-  switch (kind) {
-    case 'R':
-    case 'C':
-    case 'L': {
-      const what = kind === 'R' ? 'resistance' : kind === 'C' ? 'capacitance' : 'inductance';
-      checkFields(c, name, 3, 3, `2 nodes and a ${what}`);
-      const ns = nodes(c, 2, form);
-      const valueTok = c.peek();
-      const value = c.value(`the ${what}`, form);
-      if (kind === 'R' && value.kind === 'number' && value.value === 0) {
-        c.note('zero-resistance', `${name.text}: value must be non-zero`, valueTok, 'a non-zero resistance (use a V source of 0 V for a short)');
-      }
-      const o = options(c, name, kind === 'R' ? ['pmax'] : ['ic', 'pmax']);
-      return { ...origin, kind, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], value, ...opt('ic', o.get('ic')), ...opt('pmax', o.get('pmax')) };
-    }
-    case 'D':
-    case 'Q': {
-      const n = kind === 'D' ? 2 : 3;
-      checkFields(c, name, n + 1, n + 2, kind === 'D' ? '2 nodes (anode cathode) and a model name' : '3 nodes (collector base emitter) and a model name');
-      const ns = nodes(c, n, form);
-      const model = c.name('a model name', form).text;
-      const area = c.isValue(c.peek()) && !c.atAssignment() ? c.value('the area', form) : undefined;
-      const o = options(c, name, area === undefined ? ['area', 'pmax'] : ['pmax']);
-      const common = { ...origin, name: name.text, model, ...opt('area', area ?? o.get('area')), ...opt('pmax', o.get('pmax')) };
-      if (kind === 'D') return { ...common, kind, nodes: [ns[0] ?? '', ns[1] ?? ''] };
-      return { ...common, kind, nodes: [ns[0] ?? '', ns[1] ?? '', ns[2] ?? ''] };
-    }
-    case 'E':
-    case 'G': {
-      checkFields(c, name, 5, 5, `4 nodes (n+ n- nc+ nc-) and a ${kind === 'E' ? 'gain' : 'transconductance'}`);
-      const ns = nodes(c, 4, form);
-      const gain = c.value(kind === 'E' ? 'the gain' : 'the transconductance', form);
-      const o = options(c, name, ['pmax']);
-      return { ...origin, kind, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? '', ns[2] ?? '', ns[3] ?? ''], gain, ...opt('pmax', o.get('pmax')) };
-    }
-    case 'F':
-    case 'H': {
-      checkFields(c, name, 4, 4, `2 nodes, the controlling voltage source and a ${kind === 'F' ? 'gain' : 'transresistance'}`);
-      const ns = nodes(c, 2, form);
-      const control = c.name('the name of the controlling voltage source', form);
-      if (!/^v/i.test(control.text)) c.fail('bad-control', `"${control.text}" is not a voltage source name; the controlling current is the one through a V element`, control, 'a V element name such as Vsense');
-      const gain = c.value(kind === 'F' ? 'the gain' : 'the transresistance', form);
-      const o = options(c, name, ['pmax']);
-      return { ...origin, kind, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], control: control.text, gain, ...opt('pmax', o.get('pmax')) };
-    }
-    case 'V':
-    case 'I':
-      return parseSource(c, name, kind, origin);
-    case 'X':
-      return parseInstance(c, name, origin);
-    default:
-      return c.fail('unknown-element', `"${name.text}" does not name an element: no element kind starts with "${name.text[0] ?? ''}"`, name, `an element line (${ELEMENT_LETTERS.split('').join(' ')}) or a directive (.model, .param, ...)`);
-  }
+  if (kind !== undefined) return FAMILY_PARSERS[DEVICES[kind].family](c, name, kind, origin);
+  if (letter === 'X') return parseInstance(c, name, origin);
+  return c.fail('unknown-element', `"${name.text}" does not name an element: no element kind starts with "${name.text[0] ?? ''}"`, name, `an element line (${ELEMENT_LETTERS.split('').join(' ')}) or a directive (.model, .param, ...)`);
 }
 
 const WAVE_ARGS: Readonly<Record<string, readonly string[]>> = {

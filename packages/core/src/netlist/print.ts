@@ -3,7 +3,8 @@
  * values; positions differ). Includes are already expanded, so the output
  * is one self-contained file.
  */
-import type { Assignments, Card, ElementCard, Netlist, SupplyCard, AnalysisCard, Value, Waveform } from './ast.js';
+import { DEVICES, kindOfLetter, type CardFamily, type DeviceKind } from '@railcheck/devices';
+import type { Assignments, Card, CardOfFamily, DeviceCard, ElementCard, Netlist, SupplyCard, AnalysisCard, Value, Waveform } from './ast.js';
 import { printExpr } from './expr.js';
 import { formatNumber, formatPercent, readNumberWord } from './numbers.js';
 
@@ -41,28 +42,28 @@ function waveform(w: Waveform): string {
   }
 }
 
+/** The fields after the name, per card family of the registry (pmax is added by the caller). */
+const FAMILY_PRINTERS: { readonly [F in CardFamily]: (e: CardOfFamily[F]) => string[] } = {
+  passive: (e) => [...e.nodes, printValue(e.value), ...optional('ic', e.ic)],
+  source: (e) => {
+    const parts: string[] = [...e.nodes];
+    if (e.dc) parts.push('dc', printValue(e.dc));
+    if (e.ac) parts.push('ac', printValue(e.ac.mag), ...(e.ac.phase ? [printValue(e.ac.phase)] : []));
+    if (e.waveform) parts.push(waveform(e.waveform));
+    return parts;
+  },
+  semiconductor: (e) => [...e.nodes, e.model, ...optional('area', e.area)],
+  'voltage-controlled': (e) => [...e.nodes, printValue(e.gain)],
+  'current-controlled': (e) => [...e.nodes, e.control, printValue(e.gain)],
+  coupling: (e) => [...e.inductors, printValue(e.coupling)],
+};
+
 function element(e: ElementCard): string {
-  const head = [e.name, ...e.nodes];
   const pmax = optional('pmax', e.pmax);
-  switch (e.kind) {
-    case 'R': case 'C': case 'L':
-      return [...head, printValue(e.value), ...optional('ic', e.ic), ...pmax].join(' ');
-    case 'V': case 'I': {
-      const parts = [...head];
-      if (e.dc) parts.push('dc', printValue(e.dc));
-      if (e.ac) parts.push('ac', printValue(e.ac.mag), ...(e.ac.phase ? [printValue(e.ac.phase)] : []));
-      if (e.waveform) parts.push(waveform(e.waveform));
-      return [...parts, ...pmax].join(' ');
-    }
-    case 'D': case 'Q':
-      return [...head, e.model, ...optional('area', e.area), ...pmax].join(' ');
-    case 'E': case 'G':
-      return [...head, printValue(e.gain), ...pmax].join(' ');
-    case 'F': case 'H':
-      return [...head, e.control, printValue(e.gain), ...pmax].join(' ');
-    case 'X':
-      return [...head, e.subckt, ...pairs(e.params), ...pmax].join(' ');
-  }
+  if (e.kind === 'X') return [e.name, ...e.nodes, e.subckt, ...pairs(e.params), ...pmax].join(' ');
+  const family = DEVICES[kindOfLetter(e.kind) as DeviceKind].family;
+  const fields = (FAMILY_PRINTERS[family] as (card: DeviceCard) => string[])(e);
+  return [e.name, ...fields, ...pmax].join(' ');
 }
 
 function analysis(a: AnalysisCard): string {

@@ -1,0 +1,81 @@
+/**
+ * Valid ranges of model parameters and element values (docs/models.md,
+ * "Valid ranges"), checked at elaboration with an error at the parameter's
+ * own line and column. The expected table is written out here from the
+ * docs, not read from the code's tables; each bound is probed on both sides.
+ * The ranges are engineering choices (common practice, no source) except
+ * where the equations need them: IS, N, NBV, VJ > 0 (they divide or sit
+ * under a logarithm in models.md), M < 1 (the depletion form's 1/(1 − M)).
+ */
+import { describe, expect, test } from 'vitest';
+import { elaborationErrors, flatten } from './support.js';
+
+/** docs/models.md, "Valid ranges": [parameter, a value just outside, a value just inside]. */
+const DIODE: ReadonlyArray<readonly [string, number, number]> = [
+  ['IS', 0, 1e-20], ['N', 0, 0.5], ['RS', -1, 0], ['BV', -5, 0.1], ['IBV', 0, 1e-9], ['NBV', 0, 0.5],
+  ['CJO', -1e-12, 0], ['VJ', 0, 0.2], ['M', 1, 0.9], ['M', -0.1, 0], ['TT', -1e-9, 0], ['EG', 0, 0.6], ['PMAX', 0, 0.1],
+];
+const BJT: ReadonlyArray<readonly [string, number, number]> = [
+  ['IS', 0, 1e-18], ['BF', 0, 1], ['BR', 0, 0.1], ['NF', 0, 1], ['NR', 0, 1], ['VAF', -50, 10], ['VAR', 0, 5],
+  ['RB', -1, 0], ['RC', -1, 0], ['RE', -1, 0], ['CJE', -1e-12, 0], ['CJC', -1e-12, 0], ['VJE', 0, 0.5], ['VJC', 0, 0.5],
+  ['MJE', 1, 0.5], ['MJC', -0.2, 0.33], ['TF', -1e-9, 0], ['TR', -1e-9, 0], ['EG', 0, 1.1], ['PMAX', -1, 0.5],
+];
+
+const diodeStage = (param: string, value: number): string => `Zener check\nV1 in 0 10\nR1 in a 1k\nD1 a 0 dm\n.model dm D (${param}=${value})\n`;
+const bjtStage = (param: string, value: number): string => `Follower check\nV1 c 0 10\nR1 c b 10k\nQ1 c b e qn\nR2 e 0 1k\n.model qn NPN (${param}=${value})\n`;
+
+describe('model parameters', () => {
+  test('the example of the brief: BV=-5 is an error at the .model line, column of BV', () => {
+    const errs = elaborationErrors('Bad zener\nV1 in 0 10\nR1 in a 1k\nD1 a 0 dm\n.model dm D (BV=-5)\n');
+    expect(errs).toHaveLength(1);
+    expect(errs[0]).toMatchObject({ code: 'out-of-range', pos: { file: 'e.cir', line: 5, column: 14 } });
+    expect(errs[0]!.message).toContain('BV');
+    expect(errs[0]!.message).toContain('.model dm');
+    expect(errs[0]!.expected).toBe('BV > 0');
+  });
+
+  for (const [p, bad, good] of DIODE) {
+    test(`diode ${p}: ${bad} refused, ${good} accepted`, () => {
+      const errs = elaborationErrors(diodeStage(p, bad));
+      expect(errs.map((e) => e.code)).toEqual(['out-of-range']);
+      expect(errs[0]!.message).toContain(`${p}=`);
+      expect(() => flatten(diodeStage(p, good))).not.toThrow();
+    });
+  }
+
+  for (const [p, bad, good] of BJT) {
+    test(`transistor ${p}: ${bad} refused, ${good} accepted`, () => {
+      const errs = elaborationErrors(bjtStage(p, bad));
+      expect(errs.map((e) => e.code)).toEqual(['out-of-range']);
+      expect(() => flatten(bjtStage(p, good))).not.toThrow();
+    });
+  }
+
+  test('XTI, XTB and TBV take any finite value (temperature exponents may be negative)', () => {
+    expect(() => flatten(diodeStage('TBV', -1e-3))).not.toThrow();
+    expect(() => flatten(diodeStage('XTI', -2))).not.toThrow();
+    expect(() => flatten(bjtStage('XTB', -1.5))).not.toThrow();
+  });
+
+  test('a parameter given by an expression is checked once evaluated, and a model used twice is reported once', () => {
+    const errs = elaborationErrors('Expr\n.param bv0=-3\nV1 in 0 10\nR1 in a 1k\nD1 a 0 dm\nD2 a 0 dm\n.model dm D (IS=1e-14 BV={bv0})\n');
+    expect(errs).toHaveLength(1);
+    expect(errs[0]).toMatchObject({ code: 'out-of-range', pos: { line: 7, column: 23 } });
+  });
+});
+
+describe('element values', () => {
+  test('capacitance ≥ 0 and inductance > 0, checked on expressions at elaboration', () => {
+    const c = elaborationErrors('C\n.param c0=-1u\nV1 a 0 1\nR1 a b 1k\nC1 b 0 {c0}\n');
+    expect(c[0]).toMatchObject({ code: 'out-of-range', pos: { line: 5 } });
+    expect(c[0]!.expected).toBe('capacitance ≥ 0');
+    const l = elaborationErrors('L\n.param l0=0\nV1 a 0 1\nR1 a b 1k\nL1 b 0 {l0}\n');
+    expect(l[0]!.expected).toBe('inductance > 0');
+    expect(() => flatten('C0\nV1 a 0 1\nR1 a b 1k\nC1 b 0 0\n')).not.toThrow();
+  });
+
+  test('area > 0 and pmax > 0', () => {
+    expect(elaborationErrors('Area\nV1 a 0 1\nR1 a b 1k\nD1 b 0 dm {-2}\n.model dm D\n')[0]!.expected).toBe('area > 0');
+    expect(elaborationErrors('Rating\nV1 a 0 1\nR1 a b 1k pmax={0}\n')[0]!.expected).toBe('power rating (pmax) > 0');
+  });
+});
