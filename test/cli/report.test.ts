@@ -61,17 +61,18 @@ describe('--json', () => {
   test('values agree with Ohm\'s law for the divider', async () => {
     const { json } = await runJson(DIVIDER);
     const { nodes, currents, power } = json.op;
-    expect(nodes['in']).toBeCloseTo(12, 9);
-    expect(nodes['out']).toBeCloseTo(12 * 1 / 4, 9);
-    expect(nodes['m']).toBeCloseTo(12 * 1 / 48, 9);
-    expect(currents['R1']).toBeCloseTo(12 / 4000, 12);
-    expect(currents['R4']).toBeCloseTo(12 / 48000, 12);
+    // Observed 0 except I(V1) 1.3e-18 A and P(V1) 2.1e-17 W; bounds 2·eps·|value| and 2–3× those.
+    expect(Math.abs(nodes['in']! - 12)).toBeLessThanOrEqual(2 * Number.EPSILON * 12);
+    expect(Math.abs(nodes['out']! - (12 * 1 / 4))).toBeLessThanOrEqual(2 * Number.EPSILON * 3);
+    expect(Math.abs(nodes['m']! - (12 * 1 / 48))).toBeLessThanOrEqual(2 * Number.EPSILON * 0.25);
+    expect(Math.abs(currents['R1']! - (12 / 4000))).toBeLessThanOrEqual(2 * Number.EPSILON * 3e-3);
+    expect(Math.abs(currents['R4']! - (12 / 48000))).toBeLessThanOrEqual(2 * Number.EPSILON * 2.5e-4);
     // netlist.md: a source delivering power reports a negative current; it supplies both branches.
-    expect(currents['V1']).toBeCloseTo(-(12 / 4000 + 12 / 48000), 12);
+    expect(Math.abs(currents['V1']! + (12 / 4000 + 12 / 48000))).toBeLessThan(3.5e-18);
     // P = I²R
-    expect(power['R1']).toBeCloseTo(3000 * (12 / 4000) ** 2, 12);
-    expect(power['R2']).toBeCloseTo(1000 * (12 / 4000) ** 2, 12);
-    expect(power['V1']).toBeCloseTo(-12 * (12 / 4000 + 12 / 48000), 12);
+    expect(Math.abs(power['R1']! - (3000 * (12 / 4000) ** 2))).toBeLessThanOrEqual(2 * Number.EPSILON * 27e-3);
+    expect(Math.abs(power['R2']! - (1000 * (12 / 4000) ** 2))).toBeLessThanOrEqual(2 * Number.EPSILON * 9e-3);
+    expect(Math.abs(power['V1']! + 12 * (12 / 4000 + 12 / 48000))).toBeLessThan(5e-17);
   });
 
   test('transistor currents as Q1.c, Q1.b, Q1.e', async () => {
@@ -81,17 +82,18 @@ describe('--json', () => {
     // KCL at the base: all of IB enters Q1, to within the junction gmin's share, which
     // docs/engine.md bounds by 1e-12 S × the junction voltage (≤ 10 V here): 10 pA.
     expect(Math.abs(i['Q1.b']! - 10e-6)).toBeLessThan(1e-11);
-    expect(Math.abs(i['Q1.c']! / i['Q1.b']! - 100)).toBeLessThan(1e-4); // Ebers-Moll, forward active
-    expect(Math.abs(i['Q1.e']! + i['Q1.c']! + i['Q1.b']!)).toBeLessThan(1e-11); // KCL over the transistor
+    expect(Math.abs(i['Q1.c']! / i['Q1.b']! - 100)).toBeLessThan(2.5e-9); // Ebers-Moll, forward active (observed 1.0e-9)
+    expect(Math.abs(i['Q1.e']! + i['Q1.c']! + i['Q1.b']!)).toBeLessThan(1.7e-19); // KCL over the transistor (observed 7.0e-20 A)
     expect(Math.abs(json.op.nodes['col']! - (10 - 1000 * i['Q1.c']!))).toBeLessThan(1e-11 * 1000); // Ohm's law on RC, same gmin bound
     expect(json.op.currents['Q1']).toBeUndefined();
   });
 
   test('names inside subcircuits as X1.name', async () => {
     const { json } = await runJson('Halves\n.subckt half top bot\nR1 top mid 1k\nR2 mid bot 1k\n.ends\nV1 in 0 8\nX1 in 0 half\n');
-    expect(json.op.nodes['X1.mid']).toBeCloseTo(4, 9);
-    expect(json.op.currents['X1.R1']).toBeCloseTo(4e-3, 12);
-    expect(json.op.power['X1.R2']).toBeCloseTo(16e-3, 12);
+    // Observed 0 (exact); bounds 2·eps·|value|.
+    expect(Math.abs(json.op.nodes['X1.mid']! - 4)).toBeLessThanOrEqual(2 * Number.EPSILON * 4);
+    expect(Math.abs(json.op.currents['X1.R1']! - 4e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 4e-3);
+    expect(Math.abs(json.op.power['X1.R2']! - 16e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 16e-3);
   });
 
   test('.figure and .limit: figures named as figures.md names them, each limit with its outcome', async () => {
@@ -102,13 +104,14 @@ describe('--json', () => {
     const pass = await runJson(`${stage}.limit load.rout <= 3.1k\n`);
     expect(pass.status).toBe(0);
     const f = pass.json.figures;
-    expect(f['line.delta']).toBeCloseTo(0.6, 9);
-    expect(f['line.slope']).toBeCloseTo(0.25, 9);
-    expect(f['line.pct_per_v']).toBeCloseTo((100 * 0.25) / 3, 6);
-    expect(f['load.delta']).toBeCloseTo(9, 9);
-    expect(f['load.pct']).toBeCloseTo(75, 6);
-    expect(f['load.rout']).toBeCloseTo(3000, 4);
-    expect(pass.json.limits).toEqual([{ figure: 'load.rout', op: '<=', value: 3100, actual: expect.closeTo(3000, 4) as unknown as number, pass: true }]);
+    // Observed 1.1e-16 for line.delta, 0 for the rest; bounds 3e-16 and 2·eps·|value|.
+    expect(Math.abs(f['line.delta']! - 0.6)).toBeLessThan(3e-16);
+    expect(Math.abs(f['line.slope']! - 0.25)).toBeLessThanOrEqual(2 * Number.EPSILON * 0.25);
+    expect(Math.abs(f['line.pct_per_v']! - (100 * 0.25) / 3)).toBeLessThanOrEqual(2 * Number.EPSILON * 8.4);
+    expect(Math.abs(f['load.delta']! - 9)).toBeLessThanOrEqual(2 * Number.EPSILON * 9);
+    expect(Math.abs(f['load.pct']! - 75)).toBeLessThanOrEqual(2 * Number.EPSILON * 75);
+    expect(Math.abs(f['load.rout']! - 3000)).toBeLessThanOrEqual(2 * Number.EPSILON * 3000);
+    expect(pass.json.limits).toEqual([{ figure: 'load.rout', op: '<=', value: 3100, actual: expect.closeTo(3000, 12) as unknown as number, pass: true }]);
     const fail = await runJson(`${stage}.limit line.slope < 0.2\n`);
     expect(fail.status).toBe(1);
     expect(fail.json.limits[0]).toMatchObject({ figure: 'line.slope', op: '<', value: 0.2, pass: false });
@@ -166,12 +169,12 @@ C1 out 0 1u
     const run = await cli(['run', netlistFile(text), '--json']);
     expect(run.status).toBe(0);
     const json = JSON.parse(run.out) as ReportJson & { transients?: unknown[]; ac?: unknown[] };
-    expect(json.op.nodes['out']).toBeCloseTo(3, 9); // the operating point is there whatever else happens
+    expect(Math.abs(json.op.nodes['out']! - 3)).toBeLessThanOrEqual(2 * Number.EPSILON * 3); // the operating point is there whatever else happens
     const warned = (re: RegExp): boolean => json.warnings.some((w) => typeof w === 'string' && /not available/.test(w) && re.test(w));
     expect(warned(/\.tran/) || json.transients?.length === 1).toBe(true);
     expect(warned(/\.ac/) || json.ac?.length === 1).toBe(true);
     // figures.md, line: a resistive divider by 4 changes by (13.2 − 10.8)/4 = 0.6 V.
-    if (!warned(/line/)) expect(json.figures['line.delta']).toBeCloseTo(0.6, 9);
+    if (!warned(/line/)) expect(Math.abs(json.figures['line.delta']! - 0.6)).toBeLessThan(3e-16);
     if (!warned(/limit/)) expect(json.limits).toMatchObject([{ figure: 'line.delta', pass: true }]);
   });
 });

@@ -54,10 +54,12 @@ describe('transistor currents: pure function vs models.md', () => {
         const ref = refBjt(vbe, vbc, m, T, area);
         const got = bjtCurrents(vbe, vbc, m, T, area);
         return (
-          close(got.ic, ref.ic, 1e-12, ref.scale) &&
-          close(got.ib, ref.ib, 1e-12, ref.scale) &&
-          close(got.ie, ref.ie, 1e-12, ref.scale) &&
-          close(got.ic + got.ib + got.ie, 0, 1e-14, ref.scale)
+          // Worst observed 2.0e-16, 2.0e-16, 1.6e-16 and 0 of the scale over FC_SEED 20261201, 1–13, 100–105,
+          // 300 and 424242; bounds 5e-16, 5e-16, 4e-16, 2·eps.
+          close(got.ic, ref.ic, 5e-16, ref.scale) &&
+          close(got.ib, ref.ib, 5e-16, ref.scale) &&
+          close(got.ie, ref.ie, 4e-16, ref.scale) &&
+          close(got.ic + got.ib + got.ie, 0, 2 * Number.EPSILON, ref.scale)
         );
       }),
       runs,
@@ -96,7 +98,8 @@ describe('transistor Jacobian vs central differences', () => {
         // saturation): judge truncation, (h/nVt)²/6 ≤ 5e-8 of each term, against
         // their conductance scale, and round-off eps·|I|/h against the currents.
         const slack = 1e-7 * (scale / (Math.min(m.NF, m.NR) * vt(T))) + (8e-16 * scale) / h;
-        const ok = (fd: number, an: number): boolean => close(fd, an, 2e-6, an, slack);
+        // That model overstates: worst observed 0.023 of it over FC_SEED 20261201, 1–13 and 424242; bound 0.06 of it.
+        const ok = (fd: number, an: number): boolean => close(fd, an, 0.06 * 2e-6, an, 0.06 * slack);
         return (
           ok((pe.ic - me.ic) / (2 * h), at.dIcDvbe) &&
           ok((pc.ic - mc.ic) / (2 * h), at.dIcDvbc) &&
@@ -117,7 +120,8 @@ describe('transistor Jacobian vs central differences', () => {
       const vbc = vbe - vce;
       const k = bjtCurrents(vbe, vbc, m, T_NOM_K, 1);
       const go = -k.dIcDvbc; // dIc/dVce at fixed Vbe
-      expect(go * (60 - vbc)).toBeCloseTo(k.ic, 12);
+      // Observed 1.0e-15 A: the reverse term −Iec/BR ≈ IS/BR = 1e-15 A, which the relation leaves out; bound 2.5e-15 A.
+      expect(Math.abs(go * (60 - vbc) - k.ic)).toBeLessThan(2.5e-15);
     }
   });
 });
@@ -138,9 +142,11 @@ describe('transistor load stamps', () => {
         // The residual M·x − rhs itself rounds by about eps·|J|·|x|, |J| ≤ scale/(n·Vt).
         const absV = ((4e-16 * ref.scale) / (Math.min(m.NF, m.NR) * vt(T_NOM_K))) * (Math.abs(ve) + Math.abs(vb) + Math.abs(vc));
         let ok =
-          close(r[1] ?? NaN, ref.ic, 1e-12, ref.scale, absV) &&
-          close(r[2] ?? NaN, ref.ib, 1e-12, ref.scale, absV) &&
-          close(r[3] ?? NaN, ref.ie, 1e-12, ref.scale, absV);
+          // The model 1e-12·scale + absV overstates: worst observed 0.021, 0.019 and 0.013 of it (c, b, e) over
+          // FC_SEED 20261201, 1–13, 100–105, 300 and 424242; bounds 0.05, 0.05 and 0.035 of it.
+          close(r[1] ?? NaN, ref.ic, 0.05 * 1e-12, ref.scale, 0.05 * absV) &&
+          close(r[2] ?? NaN, ref.ib, 0.05 * 1e-12, ref.scale, 0.05 * absV) &&
+          close(r[3] ?? NaN, ref.ie, 0.035 * 1e-12, ref.scale, 0.035 * absV);
         // Node derivatives by central differences of the independent equations.
         const h = 1e-5;
         const slack = 1e-7 * (ref.scale / (Math.min(m.NF, m.NR) * vt(T_NOM_K))) + (8e-16 * ref.scale) / h;
@@ -158,7 +164,8 @@ describe('transistor load stamps', () => {
           const id = currents(dn);
           for (let i = 0; i < 3; i++) {
             const fd = ((iu[i] ?? 0) - (id[i] ?? 0)) / (2 * h);
-            ok = ok && close(hz.entry(i + 1, j + 1), fd, 2e-6, fd, slack);
+            // The error model (2e-6·|fd| + slack) overstates: worst observed 0.028 of it over FC_SEED 20261201, 1–13 and 424242; bound 0.07 of it.
+            ok = ok && close(hz.entry(i + 1, j + 1), fd, 0.07 * 2e-6, fd, 0.07 * slack);
           }
         }
         return ok;
@@ -175,10 +182,11 @@ describe('transistor load stamps', () => {
       hz.setX({ 1: 5, 2: 0.6, 3: 0 });
       hz.settle();
     }
-    expect(b.entry(2, 2) - a.entry(2, 2)).toBeCloseTo(2e-3, 12);
-    expect(b.entry(2, 3) - a.entry(2, 3)).toBeCloseTo(-1e-3, 12);
-    expect(b.entry(1, 2) - a.entry(1, 2)).toBeCloseTo(-1e-3, 12);
-    expect(b.entry(1, 3) - a.entry(1, 3)).toBeCloseTo(0, 15);
+    // Observed 0 (exact); bounds 2·eps·|value|.
+    expect(Math.abs(b.entry(2, 2) - a.entry(2, 2) - 2e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 2e-3);
+    expect(Math.abs(b.entry(2, 3) - a.entry(2, 3) + 1e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 1e-3);
+    expect(Math.abs(b.entry(1, 2) - a.entry(1, 2) + 1e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 1e-3);
+    expect(Math.abs(b.entry(1, 3) - a.entry(1, 3))).toBe(0);
   });
 
   it('RB, RC, RE (divided by area) sit between terminals and internal nodes; report satisfies KCL and power = Σ V·I', () => {
@@ -189,16 +197,17 @@ describe('transistor load stamps', () => {
     hz.setX({ 1: -3, 2: -0.7, 3: 0, 4: -2.99, 5: -0.69, 6: -0.01 });
     hz.settle();
     const [ci, bi, ei] = [4, 5, 6];
-    expect(hz.entry(1, ci)).toBeCloseTo(-1, 14);
-    expect(hz.entry(2, bi)).toBeCloseTo(-2 / 100, 14);
-    expect(hz.entry(3, ei)).toBeCloseTo(-4, 14);
+    // Observed 0 (exact); bounds 2·eps·|value|.
+    expect(Math.abs(hz.entry(1, ci) + 1)).toBeLessThanOrEqual(2 * Number.EPSILON * 1);
+    expect(Math.abs(hz.entry(2, bi) - (-2 / 100))).toBeLessThanOrEqual(2 * Number.EPSILON * 0.02);
+    expect(Math.abs(hz.entry(3, ei) + 4)).toBeLessThanOrEqual(2 * Number.EPSILON * 4);
     const rep = q.report(hz.x, hz.state);
     const sum = rep.currents.reduce((acc, [, i]) => acc + i, 0);
     const ref = refBjt(-0.69 + 0.01, -0.69 + 2.99, m, T_NOM_K, 2);
     expect(rep.currents.map(([l]) => l)).toEqual(['c', 'b', 'e']);
-    expect(rep.currents[0]?.[1]).toBeCloseTo(ref.ic, 12);
-    expect(Math.abs(sum)).toBeLessThan(1e-15);
-    expect(rep.power).toBeCloseTo(-3 * ref.ic + -0.7 * ref.ib, 12);
+    expect(Math.abs(rep.currents[0]?.[1]! - ref.ic)).toBeLessThanOrEqual(2 * Number.EPSILON * Math.abs(ref.ic));
+    expect(Math.abs(sum)).toBeLessThanOrEqual(2 * Number.EPSILON * Math.abs(ref.ic));
+    expect(Math.abs(rep.power - (-3 * ref.ic + -0.7 * ref.ib))).toBeLessThanOrEqual(2 * Number.EPSILON * Math.abs(rep.power));
   });
 });
 
@@ -219,10 +228,11 @@ describe('transistor charges', () => {
         const qbc = area * refDepletionQ(vbc, 1e-12, 0.75, 0.33) + 20e-9 * iec;
         const cbe = area * refDepletionC(vbe, 2e-12, 0.8, 0.35) + (0.4e-9 * (icc + is)) / vt(T_NOM_K);
         const cbc = area * refDepletionC(vbc, 1e-12, 0.75, 0.33) + (20e-9 * (iec + is)) / vt(T_NOM_K);
-        expect(ch.be.q / qbe).toBeCloseTo(1, 11);
-        expect(ch.bc.q / qbc).toBeCloseTo(1, 11);
-        expect(ch.be.c / cbe).toBeCloseTo(1, 11);
-        expect(ch.bc.c / cbc).toBeCloseTo(1, 11);
+        // Observed 2.2e-16, 2.2e-16, 4.4e-16, 2.2e-16 relative; bounds 5e-16, 5e-16, 1e-15, 5e-16.
+        expect(Math.abs(ch.be.q / qbe - 1)).toBeLessThan(5e-16);
+        expect(Math.abs(ch.bc.q / qbc - 1)).toBeLessThan(5e-16);
+        expect(Math.abs(ch.be.c / cbe - 1)).toBeLessThan(1e-15);
+        expect(Math.abs(ch.bc.c / cbc - 1)).toBeLessThan(5e-16);
       }
     }
   });
@@ -242,14 +252,16 @@ describe('transistor charges', () => {
     const ibc = (c1.bc.q - c0.bc.q) / 1e-8;
     const dc = refBjt(0.66, -4.34, m, T_NOM_K, 1);
     const r = hz.residual();
-    expect(r[2]).toBeCloseTo(dc.ib + ibe + ibc, 14);
-    expect(r[1]).toBeCloseTo(dc.ic - ibc, 14);
+    // Observed 2.0e-20 A, 1.8e-19 A and 0; bounds 5e-20 A, 4.4e-19 A and 2·eps·|I|.
+    expect(Math.abs(r[2]! - (dc.ib + ibe + ibc))).toBeLessThan(5e-20);
+    expect(Math.abs(r[1]! - (dc.ic - ibc))).toBeLessThan(4.4e-19);
     const rep = q.report(hz.x, hz.state);
-    expect(rep.currents[1]?.[1]).toBeCloseTo(dc.ib + ibe + ibc, 14);
+    expect(Math.abs(rep.currents[1]?.[1]! - (dc.ib + ibe + ibc))).toBeLessThanOrEqual(2 * Number.EPSILON * Math.abs(dc.ib + ibe + ibc));
     hz.loadReactive();
-    expect(hz.cap(2, 3) / -c1.be.c).toBeCloseTo(1, 12);
-    expect(hz.cap(2, 1) / -c1.bc.c).toBeCloseTo(1, 12);
-    expect(hz.cap(2, 2) / (c1.be.c + c1.bc.c)).toBeCloseTo(1, 12);
+    // Observed 0; bounds 2·eps.
+    expect(Math.abs(hz.cap(2, 3) / -c1.be.c - 1)).toBeLessThanOrEqual(2 * Number.EPSILON);
+    expect(Math.abs(hz.cap(2, 1) / -c1.bc.c - 1)).toBeLessThanOrEqual(2 * Number.EPSILON);
+    expect(Math.abs(hz.cap(2, 2) / (c1.be.c + c1.bc.c) - 1)).toBeLessThanOrEqual(2 * Number.EPSILON);
   });
 });
 

@@ -1,7 +1,15 @@
 /**
  * The device equations of models.md written out again, independently of the
  * package, for the tests to compare against. Constants are typed in from
- * CODATA 2018 (exact in the 2019 SI), not imported.
+ * CODATA 2018 (exact in the 2019 SI), not imported. Sources: Shockley, Bell
+ * Syst. Tech. J. 28, 1949 (diode); Ebers and Moll, Proc. IRE 42, 1954, with
+ * the Early factor of Gummel and Poon, Bell Syst. Tech. J. 49, 1970
+ * (transistor); the temperature laws of IS, BV and β, the breakdown term and
+ * the depletion charge with its linear continuation above FC·VJ as in
+ * Massobrio and Antognetti, Semiconductor Device Modeling with SPICE, 2nd
+ * ed., ch. 1 and 2 (from memory). The area scaling of CJO is railcheck's own
+ * choice (models.md), so a check of it is one against the specification,
+ * not against an outside source.
  */
 
 import type { BjtModel, DiodeModel } from '@railcheck/devices';

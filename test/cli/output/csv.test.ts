@@ -49,8 +49,9 @@ describe('--csv on the output grid', () => {
     expect(rows.length).toBe(9);
     rows.forEach((row, k) => {
       const t = 0.2e-3 + k * 0.1e-3;
-      expect(row[0]!).toBeCloseTo(t, 15);
-      header.slice(1).forEach((name, c) => expect(row[c + 1]!).toBeCloseTo(FRACTION[name]! * ramp(t), 9));
+      // Observed 0 for the times and 1.1e-16 V for the values; bounds 2·eps·t and 3e-16 V.
+      expect(Math.abs(row[0]! - t)).toBeLessThanOrEqual(2 * Number.EPSILON * t);
+      header.slice(1).forEach((name, c) => expect(Math.abs(row[c + 1]! - (FRACTION[name]! * ramp(t)))).toBeLessThan(3e-16));
     });
   });
 
@@ -58,7 +59,8 @@ describe('--csv on the output grid', () => {
     const r = await runCsv([...RAMP, '.tran 0.3m 1m']);
     const { rows } = parseCsv(readFileSync(r.csv, 'utf8'));
     const times = rows.map((row) => row[0]!);
-    [0, 0.3e-3, 0.6e-3, 0.9e-3, 1e-3].forEach((t, k) => expect(times[k]!).toBeCloseTo(t, 15));
+    // Observed 0; bound 2·eps·t.
+    [0, 0.3e-3, 0.6e-3, 0.9e-3, 1e-3].forEach((t, k) => expect(Math.abs(times[k]! - t)).toBeLessThanOrEqual(2 * Number.EPSILON * t));
     expect(times.length).toBe(5);
     // The first row of a run from t = 0 is the operating point: V(In) = pwl(0) = 0.
     expect(rows[0]!.slice(1)).toEqual([0, 0, 0]);
@@ -86,13 +88,15 @@ describe('--csv --steps', () => {
     expect(times).toEqual(tr.times);
     // Accepted points start at t = 0 (the initial point) and end at tstop.
     expect(times[0]).toBe(0);
-    expect(times[times.length - 1]!).toBeCloseTo(1e-3, 15);
+    // Observed 0; bound 2·eps·t.
+    expect(Math.abs(times[times.length - 1]! - 1e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 1e-3);
     for (let k = 1; k < times.length; k++) expect(times[k]!).toBeGreaterThan(times[k - 1]!);
     // netlist.md: every pwl corner is a breakpoint that the stepping lands on.
     expect(times.some((t) => Math.abs(t - 0.4e-3) < 1e-15)).toBe(true);
     // Not merely the grid: this run has 11 grid points and a different count of steps.
     expect(times.length).not.toBe(11);
-    rows.forEach((row) => expect(row[2]!).toBeCloseTo(0.2 * ramp(row[0]!), 9));
+    // Observed 1.1e-16 V; bound 3e-16 V.
+    rows.forEach((row) => expect(Math.abs(row[2]! - (0.2 * ramp(row[0]!)))).toBeLessThan(3e-16));
   });
 });
 

@@ -120,10 +120,11 @@ describe('complex LU against mathjs lusolve', () => {
         const { singular, x } = engineSolve(a, b);
         expect(singular).toBe(0);
         // Two backward-stable LU solves of a matrix with cond ≲ 10 agree to a few
-        // ulps times n (Golub & Van Loan, Matrix Computations §3.3, from memory); 1e-12 leaves room.
+        // ulps times n (Golub & Van Loan, Matrix Computations §3.3, from memory): worst observed
+        // 2.3e-15 over FC_SEED 20261201, 1–13 and 424242; bound 6e-15.
         const d = relDiff(x, mathjsSolve(a, b));
         worst = Math.max(worst, d);
-        expect(d).toBeLessThan(1e-12);
+        expect(d).toBeLessThan(6e-15);
       }),
       { seed, numRuns: 300 },
     );
@@ -137,11 +138,12 @@ describe('complex LU against mathjs lusolve', () => {
         fc.pre(singular === 0);
         // Normwise backward error ‖Ax − b‖/(‖A‖‖x‖ + ‖b‖) is O(n·eps) for LU with partial
         // pivoting whatever the condition number (Rigal & Gaches 1967; Higham, Accuracy and
-        // Stability of Numerical Algorithms, §7.1, from memory). Growth factor allowance 100.
+        // Stability of Numerical Algorithms, §7.1, from memory). Worst observed 0.41·n·eps·(‖A‖‖x‖ + ‖b‖)
+        // over FC_SEED 20261201, 1–13 and 424242 (the bound had a growth allowance of 100); bound 1·n·eps·(…).
         const r = matVec(a, x).map((v, i) => Math.hypot(v.re - b[i]!.re, v.im - b[i]!.im));
         const normA = Math.max(...a.map((row) => row.reduce((s, v) => s + abs(v), 0)));
         const size = normA * Math.max(...x.map(abs)) + Math.max(...b.map(abs));
-        expect(Math.max(...r)).toBeLessThanOrEqual(100 * a.length * Number.EPSILON * size);
+        expect(Math.max(...r)).toBeLessThanOrEqual(a.length * Number.EPSILON * size);
       }),
       { seed, numRuns: 300 },
     );
@@ -158,7 +160,10 @@ describe('complex LU against mathjs lusolve', () => {
         const plain = engineSolve(a, b);
         const scaled = engineSolve(a.map((row) => row.map(scale)), b.map(scale));
         expect(scaled.singular).toBe(0);
-        expect(relDiff(scaled.x, plain.x)).toBeLessThan(1e-14);
+        // Exact but for entries pushed into the subnormal range by 2^-560, whose loss is far below an ulp
+        // of the largest (worst observed 7.6e-142 over FC_SEED 20261201, 1–13 and 424242, scattered over
+        // decades from seed to seed): bound 2 ulps rather than a multiple of that.
+        expect(relDiff(scaled.x, plain.x)).toBeLessThanOrEqual(2 * Number.EPSILON);
       }),
       { seed, numRuns: 100 },
     );
@@ -176,10 +181,12 @@ describe('complex LU against mathjs lusolve', () => {
     const { singular, x } = engineSolve(a, b);
     expect(singular).toBe(0);
     x.forEach((v, i) => {
-      expect(v.re).toBeCloseTo(i + 1, 13);
+      // Observed 4.4e-16 at most; bound 1e-15.
+      expect(Math.abs(v.re - (i + 1))).toBeLessThan(1e-15);
       expect(v.im === 0).toBe(true); // +0 or −0
     });
-    expect(relDiff(x, mathjsSolve(a, b))).toBeLessThan(1e-14);
+    // Observed 0; bound 2·eps.
+    expect(relDiff(x, mathjsSolve(a, b))).toBeLessThanOrEqual(2 * Number.EPSILON);
   });
 });
 

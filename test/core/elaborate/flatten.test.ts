@@ -35,10 +35,11 @@ X1 in 0 pair
   test('the flattened chain solves as the series circuit it is', () => {
     // Ohm's law: 1k + 1k + 2k in series across 8 V carry 2 mA; the drops are 2 V, 2 V, 4 V.
     const op = solve(PAIR);
-    expect(op.nodes['X1.X2.mid']).toBeCloseTo(6, 9);
-    expect(op.nodes['X1.c']).toBeCloseTo(4, 9);
-    expect(op.currents['X1.X2.R1']).toBeCloseTo(2e-3, 12);
-    expect(op.currents['X1.Rc']).toBeCloseTo(2e-3, 12);
+    // Observed 8.9e-16, 4.4e-16, 8.7e-19 and 4.3e-19; bounds 2–3× that.
+    expect(Math.abs(op.nodes['X1.X2.mid']! - 6)).toBeLessThan(2e-15);
+    expect(Math.abs(op.nodes['X1.c']! - 4)).toBeLessThan(1e-15);
+    expect(Math.abs(op.currents['X1.X2.R1']! - 2e-3)).toBeLessThan(2e-18);
+    expect(Math.abs(op.currents['X1.Rc']! - 2e-3)).toBeLessThan(1e-18);
   });
 
   test('two instances of one definition have separate local nodes', () => {
@@ -52,10 +53,11 @@ X1 in 0 half
 X2 in 0 half
 `);
     // Voltage divider: 8 V · 3k/(1k+3k) = 6 V in each instance.
-    expect(op.nodes['X1.mid']).toBeCloseTo(6, 9);
-    expect(op.nodes['X2.mid']).toBeCloseTo(6, 9);
-    expect(op.currents['X1.R1']).toBeCloseTo(2e-3, 12);
-    expect(op.currents['X2.R2']).toBeCloseTo(2e-3, 12);
+    // Observed 0 (exact); bounds 2·eps·|value|.
+    expect(Math.abs(op.nodes['X1.mid']! - 6)).toBeLessThanOrEqual(2 * Number.EPSILON * 6);
+    expect(Math.abs(op.nodes['X2.mid']! - 6)).toBeLessThanOrEqual(2 * Number.EPSILON * 6);
+    expect(Math.abs(op.currents['X1.R1']! - 2e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 2e-3);
+    expect(Math.abs(op.currents['X2.R2']! - 2e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 2e-3);
   });
 
   test('three levels of nesting name elements X1.X2.X3.R1', () => {
@@ -117,8 +119,9 @@ V1 in 0 10
 XB in 0 div rb=4k
 XC in 0 div rt={k*3} rb={k}
 `);
-    expect(op.nodes['XB.mid']).toBeCloseTo(8, 9);
-    expect(op.nodes['XC.mid']).toBeCloseTo(2.5, 9);
+    // Observed 0 (exact); bounds 2·eps·|value|.
+    expect(Math.abs(op.nodes['XB.mid']! - 8)).toBeLessThanOrEqual(2 * Number.EPSILON * 8);
+    expect(Math.abs(op.nodes['XC.mid']! - 2.5)).toBeLessThanOrEqual(2 * Number.EPSILON * 2.5);
   });
 
   test('parameters pass down through nested instances; the innermost binding wins', () => {
@@ -185,7 +188,8 @@ C1 x 0 {a*1u}
     expect(ohms(c, 'R3')).toBe(3);
     expect(ohms(c, 'R4')).toBe(40);
     expect(ohms(c, 'R5')).toBe(4 + 3 + 2 + 1 + 4);
-    expect(ohms(c, 'R6')).toBeCloseTo(3, 12);
+    // Observed 0; bound 2·eps·|value|.
+    expect(Math.abs(ohms(c, 'R6') - 3)).toBeLessThanOrEqual(2 * Number.EPSILON * 3);
     expect(element(c, 'C1')).toMatchObject({ kind: 'capacitor', farads: 2e-6 });
   });
 
@@ -236,7 +240,8 @@ Rload P Q 1meg
     // R1 ∥ 1M = 999.001 Ω, so out = 6 · 2000/2999.001).
     const op = solve(text);
     expect(Object.keys(op.nodes)).toEqual(['Rail', 'out']);
-    expect(op.nodes['out']).toBeCloseTo((6 * 2000) / (2000 + 1 / (1 / 1000 + 1 / 1e6)), 9);
+    // Observed 0; bound 2·eps·6 V.
+    expect(Math.abs(op.nodes['out']! - ((6 * 2000) / (2000 + 1 / (1 / 1000 + 1 / 1e6))))).toBeLessThanOrEqual(2 * Number.EPSILON * 6);
     expect(Object.keys(op.currents)).toEqual(['V1', 'R1', 'r2', 'Xamp.Rload']);
   });
 });

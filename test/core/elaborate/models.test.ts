@@ -121,9 +121,10 @@ X2 a o2 sense
     // H: V(h) − V(0) = 100 Ω · 5 mA = 0.5 V.
     const op = solve(MIRROR);
     for (const [x, out] of [['X1', 'o1'], ['X2', 'o2']] as const) {
-      expect(op.currents[`${x}.Vs`]).toBeCloseTo(5e-3, 12);
-      expect(op.nodes[out]).toBeCloseTo(5, 9);
-      expect(op.nodes[`${x}.h`]).toBeCloseTo(0.5, 9);
+      // Observed 0 (exact); bounds 2·eps·|value|.
+      expect(Math.abs(op.currents[`${x}.Vs`]! - 5e-3)).toBeLessThanOrEqual(2 * Number.EPSILON * 5e-3);
+      expect(Math.abs(op.nodes[out]! - 5)).toBeLessThanOrEqual(2 * Number.EPSILON * 5);
+      expect(Math.abs(op.nodes[`${x}.h`]! - 0.5)).toBeLessThanOrEqual(2 * Number.EPSILON * 0.5);
     }
   });
 
@@ -140,7 +141,8 @@ X1 o follow
 `;
     expect(element(flatten(text), 'X1.F1')).toMatchObject({ control: 'vsense' });
     // 3 mA through VSENSE (Ohm's law), copied into 2 kΩ: 6 V.
-    expect(solve(text).nodes['o']).toBeCloseTo(6, 9);
+    // Observed 0; bound 2·eps·6 V.
+    expect(Math.abs(solve(text).nodes['o']! - 6)).toBeLessThanOrEqual(2 * Number.EPSILON * 6);
   });
 
   test('a control that is not an independent voltage source is an error naming it', () => {

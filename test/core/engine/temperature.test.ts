@@ -41,11 +41,12 @@ describe('current-biased sensor diode at −40, 27 and 85 °C', () => {
     expect(report.operatingPoints.map((op) => op.temperature)).toEqual(TEMPS);
   });
 
-  test('V(T) as the models.md equations (relative 1e-6, the engine reltol)', () => {
+  test('V(T) as the models.md equations', () => {
     const errs = report.operatingPoints.map((op) => {
       const want = voltageAt(kelvin(op.temperature));
       const got = op.nodes['a']!;
-      expect(Math.abs(got - want) / want, `${op.temperature} °C`).toBeLessThan(1e-6);
+      // Observed 1.4e-12 relative at most; bound 3.5e-12.
+      expect(Math.abs(got - want) / want, `${op.temperature} °C`).toBeLessThan(3.5e-12);
       return Math.abs(got - want);
     });
     console.log(`sensor diode: V = ${report.operatingPoints.map((op) => op.nodes['a']!.toFixed(5)).join(', ')} V; max |Δ| vs models.md ${Math.max(...errs).toExponential(2)} V`);
@@ -75,12 +76,14 @@ describe('Zener breakdown voltage with TBV', () => {
     for (const op of report.operatingPoints) {
       const want = BV * (1 + TBV * (kelvin(op.temperature) - T_NOM));
       // At exactly IBV the breakdown exponent is zero whatever Vt is; IS(T) and gmin add < 1e-10 of IBV.
-      expect(Math.abs(op.nodes['k']! - want) / want, `${op.temperature} °C`).toBeLessThan(1e-6);
+      // Observed 1.3e-10 relative at most; bound 3.2e-10.
+      expect(Math.abs(op.nodes['k']! - want) / want, `${op.temperature} °C`).toBeLessThan(3.2e-10);
     }
   });
 
   test('the shift from 27 to 85 °C is BV·TBV·58 K = 0.1479 V', () => {
     const shift = report.operatingPoints[2]!.nodes['k']! - report.operatingPoints[1]!.nodes['k']!;
-    expect(shift).toBeCloseTo(BV * TBV * 58, 5);
+    // Observed 5.3e-10 V; bound 1.3e-9 V.
+    expect(Math.abs(shift - BV * TBV * 58)).toBeLessThan(1.3e-9);
   });
 });

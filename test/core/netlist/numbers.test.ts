@@ -18,7 +18,8 @@ const TABLE: ReadonlyArray<[string, number]> = [
 
 function close(actual: number | undefined, expected: number): void {
   expect(actual).toBeDefined();
-  expect(Math.abs((actual as number) - expected)).toBeLessThanOrEqual(Math.abs(expected) * 1e-14);
+  // Worst observed 0.76·eps relative over FC_SEED 20261201, 1–13 and 424242; bound 2·eps.
+  expect(Math.abs((actual as number) - expected)).toBeLessThanOrEqual(Math.abs(expected) * 2 * Number.EPSILON);
 }
 
 describe('suffix table (netlist.md)', () => {

@@ -4,14 +4,13 @@
  * RC/RL, ch. 8 for the series RLC; formulas from memory, re-derived below),
  * with the default adaptive stepping of both methods.
  *
- * Two properties are checked, both consequences of local truncation error
- * control rather than numbers taken from a run:
- *  - accumulation bound: each accepted step commits at most about one
- *    tolerance (lteReltol·|x| + lteVntol) of local error, and these circuits
- *    are stable (errors are damped, not amplified), so the global error stays
- *    below steps × tolerance (common practice, no source; the usual bound of
- *    global by summed local error for a contractive problem, e.g.
- *    Hairer, Nørsett and Wanner, Solving ODEs I, §II.3);
+ * Two properties are checked:
+ *  - the largest error over the accepted points, against a bound per case
+ *    set at 2–3× the error observed (the numbers of the table in
+ *    docs/transient.md). They lie far below steps × tolerance
+ *    (lteReltol·|x| + lteVntol per step), the bound that summing the local
+ *    errors of a contractive problem gives (Hairer, Nørsett and Wanner,
+ *    Solving ODEs I, §II.3), which is 6 to 380 times looser here;
  *  - convergence with the tolerance: tightening lteReltol 100× must shrink
  *    the error by at least 100^(1/2)/2 = 5 for backward Euler (error ∝ tol^(1/2)
  *    for an order-1 method whose steps scale as tol^(1/2)) and by at least
@@ -28,7 +27,6 @@ const STEP = `V1 in 0 pulse(0 ${VS} 0 0 0 1)`;
 const TSTEP = 1e-5;
 const TSTOP = 5e-3;
 const DEFAULT_RELTOL = 1e-3;
-const DEFAULT_VNTOL = 1e-6;
 
 interface Case {
   readonly name: string;
@@ -36,6 +34,8 @@ interface Case {
   /** Unknown to compare: a node name or `branch:<element>`. */
   readonly probe: string;
   readonly exact: (t: number) => number;
+  /** Bound on the largest error at the default tolerances (V or A): observed error × 2–3, per method. */
+  readonly bound: { readonly trap: number; readonly be: number };
 }
 
 /** Series RLC step response of the capacitor voltage from zero state (Alexander and Sadiku ch. 8, from memory). */
@@ -58,24 +58,28 @@ const rlc = (r: number): string => `rlc\n${STEP}\nR1 in a ${r}\nL1 a b 10m\nC1 b
 
 const CASES: readonly Case[] = [
   // RC charging, τ = RC = 1 ms: v = VS·(1 − e^(−t/τ)) (Alexander and Sadiku §7.6, from memory).
-  { name: 'RC charging', netlist: `rc\n${STEP}\nR1 in out 1k\nC1 out 0 1u\n.end\n`, probe: 'out', exact: (t) => VS * (1 - Math.exp(-t / 1e-3)) },
+  // Observed 1.39e-3 V (trap), 3.42e-2 V (be).
+  { name: 'RC charging', netlist: `rc\n${STEP}\nR1 in out 1k\nC1 out 0 1u\n.end\n`, probe: 'out', exact: (t) => VS * (1 - Math.exp(-t / 1e-3)), bound: { trap: 3.5e-3, be: 8e-2 } },
   // RL current rise, τ = L/R = 1 ms: i = (VS/R)·(1 − e^(−t/τ)) (Alexander and Sadiku §7.6, from memory).
-  { name: 'RL current rise', netlist: `rl\n${STEP}\nR1 in a 10\nL1 a 0 10m\n.end\n`, probe: 'branch:L1', exact: (t) => (VS / 10) * (1 - Math.exp(-t / 1e-3)) },
+  // Observed 1.40e-4 A (trap), 3.57e-3 A (be).
+  { name: 'RL current rise', netlist: `rl\n${STEP}\nR1 in a 10\nL1 a 0 10m\n.end\n`, probe: 'branch:L1', exact: (t) => (VS / 10) * (1 - Math.exp(-t / 1e-3)), bound: { trap: 3.5e-4, be: 8e-3 } },
   // The voltage across that inductor, VS·e^(−t/τ) for t > 0, is what the step control sees; at t = 0
   // itself the source still has its value from before the step (netlist.md: the DC value is the waveform at 0).
-  { name: 'RL inductor voltage', netlist: `rl\n${STEP}\nR1 in a 10\nL1 a 0 10m\n.end\n`, probe: 'a', exact: (t) => (t === 0 ? 0 : VS * Math.exp(-t / 1e-3)) },
-  { name: 'RLC under-damped (ζ = 0.1)', netlist: rlc(20), probe: 'b', exact: rlcStep(20, 10e-3, 1e-6) },
-  { name: 'RLC critically damped (ζ = 1)', netlist: rlc(200), probe: 'b', exact: rlcStep(200, 10e-3, 1e-6) },
-  { name: 'RLC over-damped (ζ = 5)', netlist: rlc(1000), probe: 'b', exact: rlcStep(1000, 10e-3, 1e-6) },
+  // Observed 1.40e-3 V (trap), 3.57e-2 V (be).
+  { name: 'RL inductor voltage', netlist: `rl\n${STEP}\nR1 in a 10\nL1 a 0 10m\n.end\n`, probe: 'a', exact: (t) => (t === 0 ? 0 : VS * Math.exp(-t / 1e-3)), bound: { trap: 3.5e-3, be: 8e-2 } },
+  // Observed 0.142 V (trap), 0.586 V (be): a lightly damped resonance accumulates error (docs/transient.md).
+  { name: 'RLC under-damped (ζ = 0.1)', netlist: rlc(20), probe: 'b', exact: rlcStep(20, 10e-3, 1e-6), bound: { trap: 0.35, be: 1.5 } },
+  // Observed 5.92e-3 V (trap), 4.03e-2 V (be).
+  { name: 'RLC critically damped (ζ = 1)', netlist: rlc(200), probe: 'b', exact: rlcStep(200, 10e-3, 1e-6), bound: { trap: 15e-3, be: 0.1 } },
+  // Observed 1.29e-3 V (trap), 3.37e-2 V (be).
+  { name: 'RLC over-damped (ζ = 5)', netlist: rlc(1000), probe: 'b', exact: rlcStep(1000, 10e-3, 1e-6), bound: { trap: 3e-3, be: 8e-2 } },
 ];
 
-function errorOf(k: Case, method: IntegrationMethod, lteReltol: number, tmax?: number): { err: number; steps: number; rejected: number; peak: number } {
+function errorOf(k: Case, method: IntegrationMethod, lteReltol: number, tmax?: number): { err: number; steps: number; rejected: number } {
   const c = compile(k.netlist);
   const index = k.probe.startsWith('branch:') ? branch(c, k.probe.slice(7)) : node(c, k.probe);
   const { trace, stats } = run(c, { tstep: TSTEP, tstop: TSTOP, method, lteReltol, tmax });
-  let peak = 0;
-  for (let i = 0; i < trace.count; i++) peak = Math.max(peak, Math.abs(k.exact(trace.times[i]!)));
-  return { err: maxError(trace, index, k.exact), steps: stats.accepted, rejected: stats.rejectedLte, peak };
+  return { err: maxError(trace, index, k.exact), steps: stats.accepted, rejected: stats.rejectedLte };
 }
 
 const table: string[] = [];
@@ -84,10 +88,8 @@ describe.each(['trap', 'be'] as const)('closed-form step responses, method %s', 
   it.each(CASES)('$name', (k) => {
     const loose = errorOf(k, method, DEFAULT_RELTOL);
     table.push(`${method.padEnd(4)} ${k.name.padEnd(32)} steps ${String(loose.steps).padStart(4)} (rej ${String(loose.rejected).padStart(2)}) max err ${loose.err.toExponential(2)}`);
-    // Accumulation bound (see the file comment). Currents carry no LTE check of their own; the
-    // inductor current's error is bounded through its voltage, L·di/dt, and scaled by 1/R here.
-    const scale = k.probe.startsWith('branch:') ? 1 / 10 : 1;
-    expect(loose.err).toBeLessThan(loose.steps * (DEFAULT_RELTOL * loose.peak + DEFAULT_VNTOL * scale));
+    // The bound per case and method (see the file comment).
+    expect(loose.err).toBeLessThan(k.bound[method]);
     expect(loose.err).toBeGreaterThan(0);
     // The default tmax (tstop/50) caps the steps of the smooth cases, so the error is not set by the
     // tolerance alone there; the convergence check lifts the cap (tmax = tstop).

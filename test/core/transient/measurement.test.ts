@@ -14,7 +14,8 @@
  *     z = e^{jωh} (backward Euler: s ← (1 − z⁻¹)/h; trapezoidal:
  *     s ← (2/h)·(1 − z⁻¹)/(1 + z⁻¹), the bilinear map; Oppenheim and Schafer,
  *     Discrete-Time Signal Processing, §7.1 — from memory), and the fitted
- *     amplitude must match that prediction to 0.005 dB.
+ *     amplitude must match that prediction (bounds per setting, 2–3× the
+ *     difference observed: 1e-7 to 1e-4 dB).
  * The printed tables are the ones in docs/transient.md; the assertions pin the
  * claims the document makes, so a change in the stepper that overturns them
  * fails here.
@@ -22,7 +23,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { flatten, lusolve, matrix } from 'mathjs';
 import { at, compile, node, run } from './support.js';
-import { HALF, VPEAK, compareWithOdex, halfCurrent, rhsHalf, type Outcome, type RunConfig } from './rectifier-model.js';
+import { HALF, compareWithOdex, halfCurrent, rhsHalf, type Outcome, type RunConfig } from './rectifier-model.js';
 
 const RECTIFIER_CONFIGS: readonly RunConfig[] = [
   { label: 'trap, defaults (100 steps/cycle)', opts: { method: 'trap' } },
@@ -42,8 +43,22 @@ describe('(a) half-wave rectifier, 1 s of 50 Hz, against ODEX', () => {
   });
   const row = (label: string): Outcome => rows.find((r) => r.label.startsWith(label))!;
 
-  it('every setting stays within 1% of the peak (common practice, no source)', () => {
-    for (const r of rows) expect(r.err).toBeLessThan(0.01 * VPEAK);
+  /**
+   * Largest error per setting (V), 2–3× the error observed (mV: 8.5, 45.1, 13.5, 15.7, 5.5,
+   * 4.9 in the order of RECTIFIER_CONFIGS), all far inside the 1 % of the peak (0.12 V) a supply
+   * designer reads a rail to (common practice, no source).
+   */
+  const ERR_BOUND: Readonly<Record<string, number>> = {
+    'trap, defaults (100 steps/cycle)': 20e-3,
+    'trap, 50 steps/cycle': 0.1,
+    'be, defaults (400 steps/cycle)': 30e-3,
+    'be, LTE only (no per-cycle cap)': 40e-3,
+    'trap, 50 steps/cycle, lteReltol 1e-4': 12e-3,
+    'be, lteReltol 1e-4': 12e-3,
+  };
+
+  it('every setting stays within its bound', () => {
+    for (const r of rows) expect(r.err, r.label).toBeLessThan(ERR_BOUND[r.label]!);
   });
 
   it('at 50 steps per cycle the trapezoidal rule is less accurate than backward Euler at its defaults (why the default is 100)', () => {
@@ -108,16 +123,18 @@ function fittedAmplitude(ts: readonly number[], vs: readonly number[], from: num
 }
 
 describe('(b) small sine on a DC bias through an RC low-pass: amplitude vs the analytic magnitude', () => {
+  // `prediction`: |fitted − predicted| bound, dB, 2–3× the difference observed (4.6e-8, 7.0e-7,
+  // 8.4e-8, 6.7e-7, 4.1e-5 dB in this order).
   const cases = [
-    { label: 'trap, defaults (100 steps/cycle)', method: 'trap' as const, perCycle: undefined, within: true },
-    { label: 'trap, 50 steps/cycle', method: 'trap' as const, perCycle: 50, within: true },
-    { label: 'be, defaults (400 steps/cycle)', method: 'be' as const, perCycle: undefined, within: true },
-    { label: 'be, 200 steps/cycle', method: 'be' as const, perCycle: 200, within: true },
-    { label: 'be, 50 steps/cycle', method: 'be' as const, perCycle: 50, within: false },
+    { label: 'trap, defaults (100 steps/cycle)', method: 'trap' as const, perCycle: undefined, within: true, prediction: 1e-7 },
+    { label: 'trap, 50 steps/cycle', method: 'trap' as const, perCycle: 50, within: true, prediction: 1.5e-6 },
+    { label: 'be, defaults (400 steps/cycle)', method: 'be' as const, perCycle: undefined, within: true, prediction: 2e-7 },
+    { label: 'be, 200 steps/cycle', method: 'be' as const, perCycle: 200, within: true, prediction: 1.5e-6 },
+    { label: 'be, 50 steps/cycle', method: 'be' as const, perCycle: 50, within: false, prediction: 1e-4 },
   ];
   const lines: string[] = [];
 
-  it.each(cases)('$label', ({ label, method, perCycle, within }) => {
+  it.each(cases)('$label', ({ label, method, perCycle, within, prediction }) => {
     const c = compile(SINE_RC);
     const { trace, stats } = run(c, { tstep: 1e-5, tstop: 20e-3, method, ...(perCycle === undefined ? {} : { stepsPerCycle: perCycle }) });
     const out = node(c, 'out');
@@ -127,10 +144,11 @@ describe('(b) small sine on a DC bias through an RC low-pass: amplitude vs the a
     const db = 20 * Math.log10(fittedAmplitude(ts, vs, 10e-3) / AMPLITUDE);
     const window = ts.slice(1).map((t, k) => t - ts[k]!).filter((_, k) => ts[k]! >= 10e-3 && ts[k + 1]! < 20e-3);
     const h = window[0]!;
-    expect(Math.max(...window) - Math.min(...window)).toBeLessThan(1e-9 * h);
+    // The steps are equal to rounding: observed 1.7e-18 s (an ulp of t near 20 ms) in every case; bound 4e-18 s.
+    expect(Math.max(...window) - Math.min(...window)).toBeLessThan(4e-18);
     const predicted = discreteDb(method, h);
     lines.push(`| ${label} | ${stats.accepted} | ${db.toFixed(4)} | ${(db - ANALYTIC_DB).toFixed(4)} | ${(predicted - ANALYTIC_DB).toFixed(4)} |`);
-    expect(Math.abs(db - predicted)).toBeLessThan(0.005);
+    expect(Math.abs(db - predicted)).toBeLessThan(prediction);
     expect(Math.abs(db - ANALYTIC_DB) < 0.1).toBe(within);
   });
 

@@ -20,7 +20,7 @@
  * is mains and is outside these tests (see docs/transient.md).
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import { BRIDGE, CAP, CLIP, FREQ, HALF, IS, RLOAD, VPEAK, bridgeCurrent, compareWithOdex, halfCurrent, junctionWithRs, rhsBridge, rhsHalf, shockley, vs, type Rhs } from './rectifier-model.js';
+import { BRIDGE, CAP, CLIP, FREQ, HALF, IS, RLOAD, bridgeCurrent, compareWithOdex, halfCurrent, junctionWithRs, rhsBridge, rhsHalf, shockley, vs, type Rhs } from './rectifier-model.js';
 
 /** Both methods at their defaults. */
 const compare = (netlist: string, rhs: Rhs, current: (t: number, v: number) => number) => {
@@ -28,10 +28,21 @@ const compare = (netlist: string, rhs: Rhs, current: (t: number, v: number) => n
   return { ...r, results: { trap: r.results[0]!, be: r.results[1]! } };
 };
 
+/**
+ * Bounds per method, 2–3× the error observed (docs/transient.md gives the same runs):
+ * `err` on the rail (V), `ripple` relative to the reference ripple.
+ */
+const BOUNDS = {
+  // Observed 8.55 mV (trap), 13.5 mV (be); ripple 0.32 %, 0.13 % off.
+  half: { trap: { err: 20e-3, ripple: 0.008 }, be: { err: 30e-3, ripple: 0.003 } },
+  // Observed 9.11 mV (trap), 7.44 mV (be); ripple 0.53 %, 0.21 % off.
+  bridge: { trap: { err: 20e-3, ripple: 0.015 }, be: { err: 20e-3, ripple: 0.005 } },
+} as const;
+
 describe.each([
-  { name: 'half-wave rectifier', netlist: HALF, rhs: rhsHalf, current: halfCurrent, pulsesPerSecond: FREQ },
-  { name: 'full-wave bridge', netlist: BRIDGE, rhs: rhsBridge, current: (t: number, v: number) => bridgeCurrent(vs(t), v), pulsesPerSecond: 2 * FREQ },
-])('$name, 1 s of 50 Hz, against ODEX', ({ name, netlist, rhs, current, pulsesPerSecond }) => {
+  { name: 'half-wave rectifier', netlist: HALF, rhs: rhsHalf, current: halfCurrent, pulsesPerSecond: FREQ, bounds: BOUNDS.half },
+  { name: 'full-wave bridge', netlist: BRIDGE, rhs: rhsBridge, current: (t: number, v: number) => bridgeCurrent(vs(t), v), pulsesPerSecond: 2 * FREQ, bounds: BOUNDS.bridge },
+])('$name, 1 s of 50 Hz, against ODEX', ({ name, netlist, rhs, current, pulsesPerSecond, bounds }) => {
   let data: ReturnType<typeof compare>;
   beforeAll(() => {
     data = compare(netlist, rhs, current);
@@ -47,10 +58,11 @@ describe.each([
     const { results, refRipple } = data;
     const r = results[method];
     console.log(`${name}, ${method}: ${r.stats.accepted} steps, ${r.stats.rejectedLte} rejected (LTE), ${r.stats.rejectedNewton} rejected (Newton), ${r.stats.newtonIterations} Newton iterations; max |error| ${(r.err * 1e3).toFixed(2)} mV; ripple ${r.ripple.toFixed(4)} V (reference ${refRipple.toFixed(4)} V); ${r.ms.toFixed(0)} ms`);
-    // 1% of the peak: the accuracy a supply designer reads a rail to (common practice, no source).
-    expect(r.err).toBeLessThan(0.01 * VPEAK);
-    // Ripple from the accepted points alone (no interpolation) within 2% of the reference ripple (common practice, no source).
-    expect(Math.abs(r.ripple - refRipple)).toBeLessThan(0.02 * refRipple);
+    // Set from the error observed (BOUNDS); far inside the 1 % of the peak (120 mV) a supply
+    // designer reads a rail to (common practice, no source).
+    expect(r.err).toBeLessThan(bounds[method].err);
+    // Ripple from the accepted points alone (no interpolation), relative to the reference ripple (BOUNDS).
+    expect(Math.abs(r.ripple - refRipple)).toBeLessThan(bounds[method].ripple * refRipple);
   });
 
   it('ripple is below the handbook estimate I/(pulses·C), by at most 25%', () => {
@@ -70,7 +82,8 @@ it('the ODE right-hand sides solve their diode equations (guards the reference)'
   // Series RS: the drop splits into the junction and RS·I.
   for (const drop of [-12, -0.1, 0, 0.4, 0.9, 3, 12]) {
     const vj = junctionWithRs(drop, 0.05);
-    expect(Math.abs(vj + 0.05 * shockley(vj) - drop)).toBeLessThan(1e-12 * (1 + Math.abs(drop)));
+    // Observed 9.6e-16·(1 + |drop|) at most; bound 2.5e-15·(1 + |drop|).
+    expect(Math.abs(vj + 0.05 * shockley(vj) - drop)).toBeLessThan(2.5e-15 * (1 + Math.abs(drop)));
   }
   // Bridge: KCL at both floating nodes holds at a = (u + v)/2, b = a − u, for either polarity.
   for (const [u, v] of [[12, 9], [-12, 9], [10.5, 9.7], [-3, 9], [0, 0.5]] as const) {
@@ -78,9 +91,11 @@ it('the ODE right-hand sides solve their diode equations (guards the reference)'
     const b = a - u;
     const intoA = shockley(-a) - shockley(a - v); // from D3, minus into D1
     const intoB = shockley(-b) - shockley(b - v);
-    expect(Math.abs(intoA + intoB)).toBeLessThanOrEqual(1e-12 * (Math.abs(shockley(a - v)) + Math.abs(shockley(-b)) + IS));
-    expect(Math.abs(bridgeCurrent(u, v) - (shockley(a - v) + shockley(b - v)))).toBeLessThanOrEqual(1e-15);
+    // Observed 0 in both (the pairs cancel exactly); bounds of 4 and 2 ulps of the terms.
+    expect(Math.abs(intoA + intoB)).toBeLessThanOrEqual(4 * Number.EPSILON * (Math.abs(shockley(a - v)) + Math.abs(shockley(-b)) + IS));
+    expect(Math.abs(bridgeCurrent(u, v) - (shockley(a - v) + shockley(b - v)))).toBeLessThanOrEqual(2 * Number.EPSILON * Math.abs(bridgeCurrent(u, v)));
   }
   expect(bridgeCurrent(12, 9)).toBeGreaterThan(1);
-  expect(Math.abs(bridgeCurrent(-12, 9) - bridgeCurrent(12, 9))).toBeLessThan(1e-9 * bridgeCurrent(12, 9));
+  // Observed 0 (the bridge is symmetric term by term); bound 2 ulps.
+  expect(Math.abs(bridgeCurrent(-12, 9) - bridgeCurrent(12, 9))).toBeLessThanOrEqual(2 * Number.EPSILON * bridgeCurrent(12, 9));
 });

@@ -14,8 +14,12 @@ import { VT, diodeParams } from './device-equations.js';
 import { modelOf, numberOf, readExample, valueOf } from './netlist-values.js';
 import { Ledger, figure, rel, runExample } from './support.js';
 
-/** Relative agreement asked of DC figures (the engine's Newton stops at 1e-6 relative). */
-const REL = 1e-4;
+/**
+ * The dropout input is found to a bracket of 0.1 mV (figures.md) and lands anywhere inside it
+ * (observed 4.7e-9 V and 2.8e-5 V off on the two files), so its bound is that bracket, not a
+ * multiple of a lucky landing.
+ */
+const DROPOUT_BRACKET = 1e-4;
 /** The dropout criterion a file asks for (`fall=` in volts), else the figures.md default of 100 mV. */
 const fallOf = (file: string): number => numberOf(readExample(file).figures.get('dropout')?.get('fall') ?? '100m');
 
@@ -23,11 +27,33 @@ interface Case {
   readonly file: string;
   readonly kind: 'zener' | 'leds';
   readonly names: FollowerNames;
+  /**
+   * Bounds, 2–3× the difference observed against the independent solution (the ledger printed
+   * after the file gives the numbers): `ref`, `out` in volts at nominal, `pass` the pass
+   * transistor's power, `figures` relative per DC figure, `ripple` |rr − rr_tran| in dB.
+   */
+  readonly bounds: { readonly ref: number; readonly out: number; readonly pass: number; readonly figures: Readonly<Record<string, number>>; readonly ripple: number };
 }
 
 const CASES: readonly Case[] = [
-  { file: 'sensor-rail-follower.cir', kind: 'zener', names: { source: 'VBAT', bias: 'RB', reference: ['DZ'], pass: 'Q1', bleed: 'RBLEED', load: 'ILOAD' } },
-  { file: 'follower-led-reference.cir', kind: 'leds', names: { source: 'VBAT', bias: 'RB', reference: ['D1', 'D2'], pass: 'Q1', bleed: 'RBLEED', load: 'ILOAD' } },
+  {
+    file: 'sensor-rail-follower.cir', kind: 'zener', names: { source: 'VBAT', bias: 'RB', reference: ['DZ'], pass: 'Q1', bleed: 'RBLEED', load: 'ILOAD' },
+    // Observed: V(ref) 1.7e-11 V, V(out) 7.4e-11 V, P(Q1) 2.2e-11; line 1.5e-8, load 5.7e-9, pd.RB 9.1e-11,
+    // pd.DZ 1.2e-10, pd.Q1 4.3e-10, pd.RBLEED 1.1e-10, efficiency 7.5e-11; ripple 2.4e-4 dB.
+    bounds: {
+      ref: 4.3e-11, out: 1.9e-10, pass: 5.4e-11, ripple: 6e-4,
+      figures: { 'line.delta': 3.8e-8, 'line.slope': 3.8e-8, 'line.pct_per_v': 3.8e-8, 'load.delta': 1.4e-8, 'load.pct': 1.4e-8, 'load.rout': 1.4e-8, 'pd.RB': 2.3e-10, 'pd.DZ': 3e-10, 'pd.Q1': 1.1e-9, 'pd.RBLEED': 2.7e-10, efficiency: 1.9e-10 },
+    },
+  },
+  {
+    file: 'follower-led-reference.cir', kind: 'leds', names: { source: 'VBAT', bias: 'RB', reference: ['D1', 'D2'], pass: 'Q1', bleed: 'RBLEED', load: 'ILOAD' },
+    // Observed: V(ref) 1.1e-10 V, V(out) 1.8e-10 V, P(Q1) 3.1e-11; line 9.2e-10, load 3.7e-11 (pct 1.5e-11),
+    // pd.RB 2.7e-11, pd.D1 = pd.D2 6.0e-10, pd.Q1 3.0e-11, pd.RBLEED 1.2e-10, efficiency 6.3e-11; ripple 8.5e-4 dB.
+    bounds: {
+      ref: 2.8e-10, out: 4.5e-10, pass: 7.7e-11, ripple: 2.1e-3,
+      figures: { 'line.delta': 2.3e-9, 'line.slope': 2.3e-9, 'line.pct_per_v': 2.3e-9, 'load.delta': 9e-11, 'load.pct': 9e-11, 'load.rout': 9e-11, 'pd.RB': 7e-11, 'pd.D1': 1.5e-9, 'pd.D2': 1.5e-9, 'pd.Q1': 7.5e-11, 'pd.RBLEED': 3e-10, efficiency: 1.6e-10 },
+    },
+  },
 ];
 
 interface Solved {
@@ -52,13 +78,13 @@ afterAll(() => {
   for (const s of solved.values()) s.ledger.print();
 });
 
-describe.each(CASES)('$file: DC figures against the independent solution', ({ file, names }) => {
+describe.each(CASES)('$file: DC figures against the independent solution', ({ file, names, bounds }) => {
   const compare = (name: string, h: number, abs?: number): void => {
     const { report, ledger } = get(file);
     const r = figure(report, name);
     ledger.add(name, r, h, abs === undefined ? '' : `(abs ≤ ${abs} V)`);
-    if (abs === undefined) expect(rel(r, h)).toBeLessThan(REL);
-    else expect(Math.abs(r - h)).toBeLessThan(abs);
+    if (abs === undefined) expect(rel(r, h), name).toBeLessThan(bounds.figures[name]!);
+    else expect(Math.abs(r - h), name).toBeLessThan(abs);
   };
 
   test('nominal operating point: V(ref), V(out), Ic', () => {
@@ -67,9 +93,9 @@ describe.each(CASES)('$file: DC figures against the independent solution', ({ fi
     const n = stage.nominal.nodes;
     ledger.add('V(ref) nominal', op.nodes.ref!, n.ref!);
     ledger.add('V(out) nominal', op.nodes.out!, n.out!);
-    expect(Math.abs(op.nodes.ref! - n.ref!)).toBeLessThan(1e-6);
-    expect(Math.abs(op.nodes.out! - n.out!)).toBeLessThan(1e-6);
-    expect(rel(op.power[names.pass]!, stage.nominal.power[names.pass]!)).toBeLessThan(1e-5);
+    expect(Math.abs(op.nodes.ref! - n.ref!)).toBeLessThan(bounds.ref);
+    expect(Math.abs(op.nodes.out! - n.out!)).toBeLessThan(bounds.out);
+    expect(rel(op.power[names.pass]!, stage.nominal.power[names.pass]!)).toBeLessThan(bounds.pass);
   });
 
   test('line regulation (0.9 → 1.1 × nominal input, nominal load)', () => {
@@ -86,14 +112,14 @@ describe.each(CASES)('$file: DC figures against the independent solution', ({ fi
     compare('load.rout', hand.load.rout);
   });
 
-  test('dropout: own bisection on Vout(Vin) = Vout_nom − 100 mV, within 1 mV', () => {
+  test('dropout: own bisection on Vout(Vin) = Vout_nom − 100 mV, within the 0.1 mV bracket', () => {
     const { hand } = get(file);
-    compare('dropout.vin', hand.dropout.vin, 1e-3);
-    compare('dropout.v', hand.dropout.v, 1e-3);
-    compare('dropout.headroom', hand.dropout.headroom, 1e-3);
+    compare('dropout.vin', hand.dropout.vin, DROPOUT_BRACKET);
+    compare('dropout.v', hand.dropout.v, DROPOUT_BRACKET);
+    compare('dropout.headroom', hand.dropout.headroom, DROPOUT_BRACKET);
   });
 
-  test('dropout definition: re-solved at dropout.vin, Vout = Vout_nom − 100 mV to within 1 mV of input', () => {
+  test('dropout definition: re-solved at dropout.vin, Vout = Vout_nom − 100 mV to within 0.1 mV of input', () => {
     const { report, stage, fall, ledger } = get(file);
     const vin = figure(report, 'dropout.vin');
     const h = 1e-3;
@@ -101,7 +127,7 @@ describe.each(CASES)('$file: DC figures against the independent solution', ({ fi
     const miss = stage.solve(vin, stage.loadNominal).vout - (stage.nominal.vout - fall);
     ledger.note(`at dropout.vin the independent Vout misses Vout_nom − ${fall} V by ${miss.toExponential(2)} V (local slope ${slope.toFixed(4)} V/V)`);
     expect(slope).toBeGreaterThan(0);
-    expect(Math.abs(miss)).toBeLessThanOrEqual(slope * 1e-3);
+    expect(Math.abs(miss)).toBeLessThanOrEqual(slope * DROPOUT_BRACKET);
   });
 
   test('dissipation (Vce·Ic + Vbe·Ib at the terminals, I²R, V·I of each diode) and efficiency', () => {
@@ -112,12 +138,12 @@ describe.each(CASES)('$file: DC figures against the independent solution', ({ fi
     compare('efficiency', hand.efficiency);
   });
 
-  test('ripple: small-signal and transient methods agree within 0.5 dB (figures.md requirement)', () => {
+  test('ripple: small-signal and transient methods agree (figures.md warns beyond 0.5 dB)', () => {
     const { report, ledger } = get(file);
     const rr = figure(report, 'ripple.rr');
     const rrTran = figure(report, 'ripple.rr_tran');
-    ledger.add('ripple.rr_tran vs rr', rrTran, rr, '(≤ 0.5 dB)');
-    expect(Math.abs(rr - rrTran)).toBeLessThan(0.5);
+    ledger.add('ripple.rr_tran vs rr', rrTran, rr, `(≤ ${bounds.ripple} dB)`);
+    expect(Math.abs(rr - rrTran)).toBeLessThan(bounds.ripple);
     expect(report.warnings.some((w) => w.code === 'ripple-disagree')).toBe(false);
   });
 });
@@ -162,20 +188,21 @@ describe('facts of the trade on the followers (common practice, no source)', () 
     expect(margin).toBeLessThanOrEqual(2);
   });
 
-  test('an LED reference regulates worse than a Zener: line.slope larger, in the ratio of r/(RB + r) within 20 %', () => {
+  test('an LED reference regulates worse than a Zener: line.slope larger, in the ratio of r/(RB + r) within 10 % (Zener), 5 % (LEDs)', () => {
     const z = get(ZENER);
     const l = get(LED);
     const ez = slopeEstimate(z.stage, ZENER);
     const el = slopeEstimate(l.stage, LED);
     const sz = figure(z.report, 'line.slope');
     const sl = figure(l.report, 'line.slope');
-    z.ledger.add('line.slope vs r/(RB+r)', sz, ez.slope, `(r = ${ez.r.toFixed(3)} Ω; ≤ 20 %)`);
-    l.ledger.add('line.slope vs r/(RB+r)', sl, el.slope, `(r = ${el.r.toFixed(3)} Ω; ≤ 20 %)`);
-    l.ledger.add('slope ratio LED/Zener', sl / sz, el.slope / ez.slope, '(≤ 20 %)');
+    z.ledger.add('line.slope vs r/(RB+r)', sz, ez.slope, `(r = ${ez.r.toFixed(3)} Ω; ≤ 10 %)`);
+    l.ledger.add('line.slope vs r/(RB+r)', sl, el.slope, `(r = ${el.r.toFixed(3)} Ω; ≤ 5 %)`);
+    l.ledger.add('slope ratio LED/Zener', sl / sz, el.slope / ez.slope, '(≤ 4.5 %)');
     expect(sl).toBeGreaterThan(sz);
-    expect(rel(sz, ez.slope)).toBeLessThan(0.2);
-    expect(rel(sl, el.slope)).toBeLessThan(0.2);
-    expect(rel(sl / sz, el.slope / ez.slope)).toBeLessThan(0.2);
+    // Observed 3.8 %, 2.0 % and 1.8 % (base current and Early effect left out); bounds 10 %, 5 %, 4.5 %.
+    expect(rel(sz, ez.slope)).toBeLessThan(0.1);
+    expect(rel(sl, el.slope)).toBeLessThan(0.05);
+    expect(rel(sl / sz, el.slope / ez.slope)).toBeLessThan(0.045);
   });
 });
 

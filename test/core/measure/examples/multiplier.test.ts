@@ -14,7 +14,6 @@ import { Ledger, figure, rel, runExample } from './support.js';
 
 const FILE = 'railway-capacitance-multiplier.cir';
 const values = readExample(FILE);
-const REL = 1e-4;
 
 let report: RunReport;
 let stage: HandStage;
@@ -33,18 +32,21 @@ describe('capacitance multiplier: DC figures against the independent solution', 
     const op = report.operatingPoints[0]!;
     ledger.add('V(base) nominal', op.nodes.base!, stage.nominal.nodes.base!);
     ledger.add('V(out) nominal', op.nodes.out!, stage.nominal.vout);
-    expect(Math.abs(op.nodes.base! - stage.nominal.nodes.base!)).toBeLessThan(1e-6);
-    expect(Math.abs(op.nodes.out! - stage.nominal.vout)).toBeLessThan(1e-6);
+    // Observed 4.5e-11 V and 6.0e-11 V; bounds 1.1e-10 V and 1.5e-10 V.
+    expect(Math.abs(op.nodes.base! - stage.nominal.nodes.base!)).toBeLessThan(1.1e-10);
+    expect(Math.abs(op.nodes.out! - stage.nominal.vout)).toBeLessThan(1.5e-10);
   });
 
   test('line, dissipation and efficiency by their definitions', () => {
-    const pairs: [string, number][] = [
-      ['line.delta', hand.line.delta], ['line.slope', hand.line.slope], ['line.pct_per_v', hand.line.pctPerV],
-      ['pd.RB', hand.pd.RB!], ['pd.Q1', hand.pd.Q1!], ['efficiency', hand.efficiency],
+    // [figure, independent value, relative bound]: bounds 2–3× the difference observed (6.9e-15, 6.9e-15,
+    // 3.6e-12, 1.6e-10, 3.4e-11, 2.6e-12; the line figure of a follower at unity slope is nearly exact).
+    const pairs: [string, number, number][] = [
+      ['line.delta', hand.line.delta, 1.7e-14], ['line.slope', hand.line.slope, 1.7e-14], ['line.pct_per_v', hand.line.pctPerV, 9e-12],
+      ['pd.RB', hand.pd.RB!, 4e-10], ['pd.Q1', hand.pd.Q1!, 8.5e-11], ['efficiency', hand.efficiency, 6.5e-12],
     ];
-    for (const [name, h] of pairs) {
+    for (const [name, h, bound] of pairs) {
       ledger.add(name, figure(report, name), h);
-      expect(rel(figure(report, name), h)).toBeLessThan(REL);
+      expect(rel(figure(report, name), h), name).toBeLessThan(bound);
     }
     expect(Object.keys(report.figures!.values).filter((k) => k.startsWith('pd.')).sort()).toEqual(['pd.Q1', 'pd.RB']);
   });
@@ -54,8 +56,9 @@ describe('capacitance multiplier: DC figures against the independent solution', 
   // behind the model's RE (0.1 Ω): the rounding of the current through RE, about
   // ε·Vin/RE, moves V(out) by up to ε·Vin/RE / (IS/Vt), about 2 mV, in any
   // double-precision solver (the engine's Newton lands anywhere within
-  // ±1 mV). So the figure's zero-load end is checked to that bound, and the
-  // definition to 1e-4 between two well-conditioned loads.
+  // ±1 mV). So the figure's zero-load end is checked to that bound (observed 2.0e-4 V, where the
+  // rounding happened to land; the bound is the window, not a multiple of one landing), and the
+  // definition between two well-conditioned loads to 2–3× the difference observed.
   test('load regulation: the figure (0 → 200 mA) to the rounding bound of its zero-load end', () => {
     const q = npnParams(modelOf(values, 'Q1', 4));
     const bound = (Number.EPSILON * stage.vinNominal) / q.RE / (q.IS / (q.NF * VT));
@@ -65,14 +68,15 @@ describe('capacitance multiplier: DC figures against the independent solution', 
     expect(Math.abs(figure(report, 'load.pct') - hand.load.pct)).toBeLessThan((100 * bound) / stage.vinNominal * 1.01);
   });
 
-  test('load regulation by the library between 20 mA and 200 mA, to 1e-4', () => {
+  test('load regulation by the library between 20 mA and 200 mA', () => {
     const bench = createBench(report.compiled);
     const r = loadRegulation(bench, { from: 0.02, to: stage.loadNominal });
     const delta = stage.solve(stage.vinNominal, 0.02).vout - stage.nominal.vout;
     ledger.add('load.delta 20→200 mA', r.delta, delta);
     ledger.add('load.rout 20→200 mA', r.rout, delta / (stage.loadNominal - 0.02));
-    expect(rel(r.delta, delta)).toBeLessThan(REL);
-    expect(rel(r.rout, delta / (stage.loadNominal - 0.02))).toBeLessThan(REL);
+    // Observed 4.6e-10 for both; bound 1.2e-9.
+    expect(rel(r.delta, delta)).toBeLessThan(1.2e-9);
+    expect(rel(r.rout, delta / (stage.loadNominal - 0.02))).toBeLessThan(1.2e-9);
   });
 
   test('the line figure warns that it starts below the dropout input (a filter, not a regulator)', () => {
@@ -84,10 +88,11 @@ describe('capacitance multiplier: DC figures against the independent solution', 
 });
 
 describe('capacitance multiplier: ripple rejection', () => {
-  test('small-signal and transient methods agree within 0.5 dB (figures.md requirement)', () => {
+  test('small-signal and transient methods agree (figures.md warns beyond 0.5 dB)', () => {
     const rr = figure(report, 'ripple.rr');
-    ledger.add('ripple.rr_tran vs rr', figure(report, 'ripple.rr_tran'), rr, '(≤ 0.5 dB)');
-    expect(Math.abs(figure(report, 'ripple.rr_tran') - rr)).toBeLessThan(0.5);
+    // Observed 7.0e-4 dB; bound 1.8e-3 dB.
+    ledger.add('ripple.rr_tran vs rr', figure(report, 'ripple.rr_tran'), rr, '(≤ 1.8e-3 dB)');
+    expect(Math.abs(figure(report, 'ripple.rr_tran') - rr)).toBeLessThan(1.8e-3);
   });
 
   test('about the attenuation of the base RC low-pass, 20·log10|1 + jω·RB·CB|, within 0.5 dB', () => {
@@ -125,8 +130,10 @@ describe('facts of the trade on the capacitance multiplier (common practice, no 
     ledger.note(`dip trough ${trough.toFixed(3)} V vs V(base) held ${held.toFixed(3)} V; sag.out_pp ${figure(report, 'sag.out_pp').toExponential(3)} V, before ${figure(report, 'sag.out_pp_before').toExponential(3)} V`);
     // The scenario: the rail's troughs during the dip lie below the base voltage.
     expect(trough).toBeLessThan(held);
-    // Before the dip the output ripple is the transient ripple figure's (same ripple, same point).
-    expect(rel(figure(report, 'sag.out_pp_before'), figure(report, 'ripple.out_pp'))).toBeLessThan(0.02);
+    // Before the dip the output ripple is the transient ripple figure's (same ripple, same point): a
+    // consistency check between two railcheck measurements, not an outside reference (observed 3.8e-7;
+    // bound 1e-6).
+    expect(rel(figure(report, 'sag.out_pp_before'), figure(report, 'ripple.out_pp'))).toBeLessThan(1e-6);
     expect(figure(report, 'sag.out_pp')).toBeGreaterThanOrEqual(3 * figure(report, 'sag.out_pp_before'));
     expect(figure(report, 'sag.pass')).toBe(0);
   });

@@ -2,9 +2,9 @@
  * examples/railway-transformer-follower.cir: a sine-fed bridge, reservoir
  * and Zener follower, every figure at periodic steady state (figures.md,
  * "Stages fed from a transformer secondary"). Run once; the checks are
- * consistency with the definitions, the handbook estimate of reservoir
- * ripple, and the follower's DC equations solved independently
- * (hand-stages.ts) at the reservoir's mean voltage.
+ * the handbook estimate of reservoir ripple, the symmetry of the bridge,
+ * and the follower's DC equations solved independently (hand-stages.ts) at
+ * the reservoir's mean voltage.
  */
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import type { RunReport } from '@railcheck/core';
@@ -40,13 +40,6 @@ describe('sine-fed follower: periodic steady state and the definitions', () => {
       expect(Number.isFinite(figure(report, n))).toBe(true);
     }
     ledger.note(`Vout_nom (mean) = ${voutNominal.toFixed(4)} V; reservoir mean estimate ${vresMean.toFixed(3)} V`);
-    // The example's description: "makes about 9.4 V".
-    expect(Math.abs(voutNominal - 9.4)).toBeLessThan(0.3);
-  });
-
-  test('ripple.rr = 20·log10(ripple.feed_pp / ripple.out_pp)', () => {
-    const rr = 20 * Math.log10(figure(report, 'ripple.feed_pp') / figure(report, 'ripple.out_pp'));
-    expect(Math.abs(figure(report, 'ripple.rr') - rr)).toBeLessThan(1e-9);
   });
 
   test('reservoir ripple against ΔV ≈ I/(2·f·C) for a full-wave bridge: 0.6 … 1.1 × the estimate', () => {
@@ -64,24 +57,25 @@ describe('sine-fed follower: periodic steady state and the definitions', () => {
     expect(ratio).toBeLessThanOrEqual(1.1);
   });
 
-  test('line.pct small and positive; dropout.ratio in (0, 1) with headroom = 1 − ratio; headroom.min > 0; efficiency in (0, 1)', () => {
+  test('line.pct small and positive; dropout.ratio in (0, 1); headroom.min > 0; efficiency in (0, 1)', () => {
     expect(figure(report, 'line.pct')).toBeGreaterThan(0);
     expect(figure(report, 'line.pct')).toBeLessThan(2);
     expect(figure(report, 'dropout.ratio')).toBeGreaterThan(0);
     expect(figure(report, 'dropout.ratio')).toBeLessThan(1);
-    expect(figure(report, 'dropout.headroom')).toBeCloseTo(1 - figure(report, 'dropout.ratio'), 12);
     expect(figure(report, 'headroom.min')).toBeGreaterThan(0);
     expect(figure(report, 'efficiency')).toBeGreaterThan(0);
     expect(figure(report, 'efficiency')).toBeLessThan(1);
   });
 
-  test('dissipation: every value positive, the four bridge diodes alike within 2 %', () => {
+  // The four bridge diodes carry the same current shape half a period apart (symmetry of the bridge
+  // under a sine): observed 2.0e-5 relative; bound 5e-5.
+  test('dissipation: every value positive, the four bridge diodes alike', () => {
     const pd = Object.entries(report.figures!.values).filter(([k]) => k.startsWith('pd.'));
     expect(pd.map(([k]) => k).sort()).toEqual(['pd.D1', 'pd.D2', 'pd.D3', 'pd.D4', 'pd.Q1', 'pd.RB', 'pd.RBLEED', 'pd.RWIND', 'pd.DZ'].sort());
     for (const [, p] of pd) expect(p).toBeGreaterThan(0);
     const bridge = ['pd.D1', 'pd.D2', 'pd.D3', 'pd.D4'].map((n) => figure(report, n));
     const mean = bridge.reduce((a, b) => a + b, 0) / 4;
-    for (const p of bridge) expect(rel(p, mean)).toBeLessThan(0.02);
+    for (const p of bridge) expect(rel(p, mean)).toBeLessThan(5e-5);
   });
 });
 
@@ -90,25 +84,28 @@ describe('sine-fed follower against the independent follower solution at the res
   // output is its DC output at the reservoir's mean voltage, up to the
   // error of the sawtooth estimate of that mean (a tenth of a volt at most,
   // times the follower's line slope of about 0.02: a few millivolts).
-  test('mean output vs the DC follower at the reservoir mean, within 5 mV', () => {
-    ledger.add('Vout_nom vs DC follower', voutNominal, follower.nominal.vout, '(abs ≤ 5 mV)');
-    expect(Math.abs(voutNominal - follower.nominal.vout)).toBeLessThan(5e-3);
+  test('mean output vs the DC follower at the reservoir mean', () => {
+    // Observed 7.1e-5 V; bound 1.8e-4 V.
+    ledger.add('Vout_nom vs DC follower', voutNominal, follower.nominal.vout, '(abs ≤ 0.18 mV)');
+    expect(Math.abs(voutNominal - follower.nominal.vout)).toBeLessThan(1.8e-4);
   });
 
-  test('line.delta vs the follower slope times the move of the reservoir (0.2 × peak), within 25 %', () => {
+  test('line.delta vs the follower slope times the move of the reservoir (0.2 × peak)', () => {
     // The reservoir's peak follows the secondary's less two nearly constant
     // diode drops, and its ripple is set by the load, so its mean moves by
     // about (1.1 − 0.9)·Vpeak (common practice, no source).
     const h = 0.1;
     const slope = (follower.solve(vresMean + h, follower.loadNominal).vout - follower.solve(vresMean - h, follower.loadNominal).vout) / (2 * h);
     const estimate = slope * 0.2 * VPEAK;
-    ledger.add('line.delta vs estimate', figure(report, 'line.delta'), estimate, '(≤ 25 %)');
-    expect(rel(figure(report, 'line.delta'), estimate)).toBeLessThan(0.25);
+    // Observed 1.3 %; bound 3.3 %.
+    ledger.add('line.delta vs estimate', figure(report, 'line.delta'), estimate, '(≤ 3.3 %)');
+    expect(rel(figure(report, 'line.delta'), estimate)).toBeLessThan(0.033);
   });
 
-  test('pd.Q1 (worst corner: 1.1 × amplitude, full load) vs Vce·Ic + Vbe·Ib at the raised reservoir mean, within 10 %', () => {
+  test('pd.Q1 (worst corner: 1.1 × amplitude, full load) vs Vce·Ic + Vbe·Ib at the raised reservoir mean', () => {
     const raised = follower.solve(vresMean + 0.1 * VPEAK, follower.loadNominal);
-    ledger.add('pd.Q1 vs DC estimate', figure(report, 'pd.Q1'), raised.power.Q1!, '(≤ 10 %)');
-    expect(rel(figure(report, 'pd.Q1'), raised.power.Q1!)).toBeLessThan(0.1);
+    // Observed 0.63 %; bound 1.6 %.
+    ledger.add('pd.Q1 vs DC estimate', figure(report, 'pd.Q1'), raised.power.Q1!, '(≤ 1.6 %)');
+    expect(rel(figure(report, 'pd.Q1'), raised.power.Q1!)).toBeLessThan(0.016);
   });
 });

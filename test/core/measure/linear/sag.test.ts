@@ -53,8 +53,9 @@ describe('RC section', () => {
         fc.pre(Math.abs(s.depth - share) > 0.02);
         const { figures } = figuresOf(rcLines(s, `fall=${num(criterion)}`));
         const fall = rcFall(s);
-        // The transient's step control allows local errors of 1e-3 of the signal (its relative LTE tolerance):
-        // ask for 1e-3 of the dip's full swing G·Vin·depth, also when the output hardly follows the dip.
+        // Relative to the dip's full swing G·Vin·depth, also when the output hardly follows the dip: worst
+        // observed 3.3e-4 over FC_SEED 20261201, 1–13 and 424242; bound 1e-3 (the dip transients run at
+        // lteReltol 1e-5, measure/sag.ts).
         const swing = (s.rl / (s.r + s.rl)) * s.vin * s.depth;
         const err = Math.abs(value(figures, 'sag.fall') - fall) / swing;
         worstFall = Math.max(worstFall, err);
@@ -79,7 +80,9 @@ describe('RC section', () => {
     // τ = 90.9 Ω · 220 µF = 20 ms, shorter than the dip: the output nearly reaches G·Vin·0.8.
     const s: RcSag = { vin: 12, r: 100, rl: 1e3, c: 220e-6, depth: 0.2, dur: 0.1, edge: 1e-3 };
     const { figures } = figuresOf(['RC section', 'V1 in 0 12', 'R1 in out 100', 'C1 out 0 220u', 'RL out 0 1k', '.supply in=V1 out=out load=RL', '.figure sag']);
-    expect(relErr(value(figures, 'sag.fall'), rcFall(s))).toBeLessThan(1e-3);
+    // Observed 5.6e-6; bound 1.4e-5. max_depth lands anywhere within the bisection's 0.5 % (up to 0.0034
+    // observed in the property above), so its bound stays that resolution.
+    expect(relErr(value(figures, 'sag.fall'), rcFall(s))).toBeLessThan(1.4e-5);
     expect(value(figures, 'sag.pass')).toBe(0);
     expect(Math.abs(value(figures, 'sag.max_depth') - 0.1 / rcFall(s, 1))).toBeLessThanOrEqual(0.005);
   });
@@ -92,7 +95,8 @@ describe('resistive divider (no storage)', () => {
         const vnom = (vin * r2) / (r1 + r2);
         const criterion = ratio * vnom;
         const { figures } = figuresOf(['divider', `V1 in 0 ${num(vin)}`, `R1 in out ${num(r1)}`, `R2 out 0 ${num(r2)}`, '.supply in=V1 out=out', `.figure sag depth=${num(depth)} fall=${num(criterion)}`]);
-        expect(relErr(value(figures, 'sag.fall'), depth * vnom)).toBeLessThan(1e-9);
+        // Worst observed 6.6e-15 over FC_SEED 20261201, 1–13 and 424242; bound 1.7e-14 (max_depth: the bisection's resolution).
+        expect(relErr(value(figures, 'sag.fall'), depth * vnom)).toBeLessThan(1.7e-14);
         expect(Math.abs(value(figures, 'sag.max_depth') - ratio)).toBeLessThanOrEqual(0.005);
         expect(value(figures, 'sag.max_depth')).toBeLessThanOrEqual(ratio * (1 + 1e-9));
       }),
@@ -103,7 +107,8 @@ describe('resistive divider (no storage)', () => {
   test('a fall written as a percentage is a ratio of Vout_nom', () => {
     // fall=25% of Vout_nom: every dip up to 25 % passes.
     const { figures } = figuresOf(['divider', 'V1 in 0 24', 'R1 in out 1k', 'R2 out 0 1k', '.supply in=V1 out=out', '.figure sag depth=30% fall=25%']);
-    expect(Math.abs(value(figures, 'sag.fall') - 0.3 * 12)).toBeLessThan(1e-9);
+    // Observed 1.8e-15 V; bound 4.5e-15 V (max_depth: the bisection's resolution, 3.9e-4 off here).
+    expect(Math.abs(value(figures, 'sag.fall') - 0.3 * 12)).toBeLessThan(4.5e-15);
     expect(value(figures, 'sag.pass')).toBe(0);
     expect(Math.abs(value(figures, 'sag.max_depth') - 0.25)).toBeLessThanOrEqual(0.005);
   });
@@ -117,8 +122,9 @@ describe('ripple riding on the input', () => {
     const during = value(figures, 'sag.out_pp');
     const before = value(figures, 'sag.out_pp_before');
     console.log(`[sag] ripple ${(pp * 1e3).toFixed(3)} mV p-p by hand; out_pp ${relErr(during, pp).toExponential(2)}, out_pp_before ${relErr(before, pp).toExponential(2)} relative off`);
-    expect(relErr(during, pp)).toBeLessThan(0.03);
-    expect(relErr(before, pp)).toBeLessThan(0.03);
+    // Observed 3.8e-4 and 8.2e-5; bounds 1e-3 and 2e-4.
+    expect(relErr(during, pp)).toBeLessThan(1e-3);
+    expect(relErr(before, pp)).toBeLessThan(2e-4);
   });
 
   test('the dip of the mean is unchanged by the ripple to within the ripple itself', () => {
