@@ -6,6 +6,7 @@ const src = (p: string): string => fileURLToPath(new URL(`./packages/${p}/src/in
 export default defineConfig({
   resolve: {
     alias: {
+      '@railcheck/core/internal': fileURLToPath(new URL('./packages/core/src/internal.ts', import.meta.url)),
       '@railcheck/devices': src('devices'),
       '@railcheck/core': src('core'),
       '@railcheck/cli': src('cli'),

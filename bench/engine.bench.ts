@@ -6,7 +6,8 @@
  */
 import { bench, describe } from 'vitest';
 import { Matrix, LuDecomposition } from 'ml-matrix';
-import { createLuWorkspace, luFactor, luSolve, parseNetlist, prepare, runTransient, solveOperatingPoint } from '@railcheck/core';
+import { parseNetlist, prepare } from '@railcheck/core';
+import { createLuWorkspace, luFactor, luSolve, runTransient, solveOperatingPoint } from '@railcheck/core/internal';
 import { readFileSync } from 'node:fs';
 
 function randomSystem(n: number, seed: number): { dense: number[][]; b: number[] } {

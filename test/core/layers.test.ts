@@ -37,7 +37,7 @@ export function importsOf(text: string): string[] {
 /** The layer of a core file from its path relative to packages/core/src; undefined for a file no layer claims. */
 export function layerOf(rel: string): Layer | undefined {
   const parts = rel.split(/[\\/]/);
-  if (parts.length === 1) return parts[0] === 'index.ts' ? 'barrel' : SHARED_FILES.includes(parts[0]!) ? 'shared' : undefined;
+  if (parts.length === 1) return parts[0] === 'index.ts' || parts[0] === 'internal.ts' ? 'barrel' : SHARED_FILES.includes(parts[0]!) ? 'shared' : undefined;
   const folder = parts[0] as Layer;
   return LAYERS.includes(folder) && folder !== 'shared' && folder !== 'barrel' ? folder : undefined;
 }

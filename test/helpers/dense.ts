@@ -4,7 +4,7 @@
  * for ground), norms, and fast-check arbitraries for test matrices.
  */
 import fc from 'fast-check';
-import { createLuWorkspace, luFactor, luSolve, type LuWorkspace } from '@railcheck/core';
+import { createLuWorkspace, luFactor, luSolve, type LuWorkspace } from '@railcheck/core/internal';
 
 /** A workspace holding `a` (n×n, rows of numbers); row/column 0 are filled with `pad`. */
 export function toLu(a: readonly (readonly number[])[], pad = 0): LuWorkspace {

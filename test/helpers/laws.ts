@@ -4,7 +4,7 @@
  * zero; B. D. H. Tellegen, Philips Research Reports 7, 1952).
  */
 import type { CompiledCircuit, FlatElement } from '@railcheck/core';
-import { readSolution } from '@railcheck/core';
+import { readSolution } from '@railcheck/core/internal';
 import { DEVICES } from '@railcheck/devices';
 
 /**

@@ -1,14 +1,20 @@
 /**
- * @railcheck/core: the netlist reader, elaboration, the MNA engine with
- * Newton iteration, the analyses, the power-supply figures and the run.
+ * @railcheck/core: what a tool needs to read, run and measure a supply
+ * stage: the netlist reader, elaboration and compilation, the whole run,
+ * the power-supply figures with their registry, and the result types.
+ * Everything returns values or throws only {@link RailcheckError}. Solver
+ * internals (LU, Newton, the transient stepper, the steady-state search)
+ * are in `@railcheck/core/internal`, for the project's tests and
+ * benchmarks.
+ *
  * Layers, each importing only those before it (test/core/layers.test.ts):
  * netlist → elaborate → engine → analysis → measure → pipeline, with the
  * shared errors.ts, units.ts and figure-registry.ts below them all.
  */
-export { RailcheckError, errorAt, warningAt, formatDiagnostic } from './errors.js';
+export { RailcheckError, formatDiagnostic } from './errors.js';
 export type { Diagnostic, SourcePos } from './errors.js';
 
-export { parseNetlist, parseNetlistOrThrow, readNetlistFile, parseScaledNumber, evaluateExpr, printNetlist } from './netlist/index.js';
+export { parseNetlist, parseNetlistOrThrow, readNetlistFile, printNetlist } from './netlist/index.js';
 export type { ParseOptions, ParseResult } from './netlist/index.js';
 export type {
   Netlist, Card, ElementCard, ModelCard, ParamCard, AnalysisCard, SupplyCard, SubcktDef, Value, Expr, ExprFunction,
@@ -18,58 +24,38 @@ export type {
 
 export { elaborate } from './elaborate/elaborate.js';
 export type { ElaborateResult } from './elaborate/elaborate.js';
-export { GROUND_KEY } from './elaborate/flat.js';
 export type { FlatCircuit, FlatElement, FlatNode, FlatAnalysis, FlatSupply, FlatFigure, FlatLimit, FlatSpread } from './elaborate/flat.js';
 
 export { compileCircuit } from './engine/compile.js';
-export type { CompiledCircuit, CompileResult, UnknownInfo } from './engine/compile.js';
-export { luFactor, luSolve, createLuWorkspace, PIVOT_RELATIVE_TOLERANCE } from './engine/lu.js';
-export type { LuWorkspace } from './engine/lu.js';
-export { newtonSolve, residualSettled, DEFAULT_NEWTON, RESIDUAL_RELTOL } from './engine/newton.js';
-export type { NewtonOptions, NewtonResult } from './engine/newton.js';
-export { solveOperatingPoint, setCircuitTemperature, FINAL_GMIN } from './engine/dcop.js';
-export type { OpMethod, OpOutcome, Straggler } from './engine/dcop.js';
+export type { CompiledCircuit, CompileResult } from './engine/compile.js';
 
-export { operatingPoint, dcSweep } from './analysis/dc.js';
-export type { OperatingPoint, DcSweep } from './analysis/dc.js';
-export { readSolution, nodeVoltage } from './analysis/solution.js';
-export type { SolutionValues } from './analysis/solution.js';
-export { transient, outputGrid, sampleTrace, acceptedTimes } from './analysis/tran.js';
-export type { TransientResult, TransientRequest } from './analysis/tran.js';
-export { acSweep, phasorDb, phasorDeg, acFrequencies } from './analysis/ac.js';
-export type { AcResult } from './analysis/ac.js';
-export { runTransient } from './engine/transient.js';
-export type { TransientOptions, TransientOutcome, TransientStats, TransientTrace, IntegrationMethod } from './engine/transient.js';
-export { linearise, solveAt } from './engine/ac.js';
-export type { SmallSignalSystem } from './engine/ac.js';
-export { complexLuFactor, complexLuSolve, createComplexLuWorkspace } from './engine/complex-lu.js';
-export type { ComplexLuWorkspace } from './engine/complex-lu.js';
-export { runNetlist, runNetlistFile, prepare, analyse } from './pipeline/run.js';
+export { runNetlist, runNetlistFile, prepare } from './pipeline/run.js';
 export type { RunReport, RunResult } from './pipeline/run.js';
-export { safetyWarnings, MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/safety.js';
+export type { OperatingPoint, DcSweep } from './analysis/dc.js';
+export { sampleTrace, acceptedTimes } from './analysis/tran.js';
+export type { TransientResult } from './analysis/tran.js';
+export { phasorDb, phasorDeg } from './analysis/ac.js';
+export type { AcResult } from './analysis/ac.js';
+export { MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/safety.js';
 
 export { formatSI } from './units.js';
 
 export { FIGURES, FIGURE_KIND_INFO, FIGURE_KINDS, BENCH_KINDS, figureEntry, figureKindOf, figureUnit } from './figure-registry.js';
 export type { FigureEntry, FigureKindInfo, FigureKey, FigureNumberKey, FigureMethodKey, FigureUnit, Better, BenchKind } from './figure-registry.js';
-export { measureFigures, checkLimits, unusedKeyNotes } from './measure/figures.js';
+export { measureFigures } from './measure/figures.js';
 export type { FigureReport, MeasuredFigure, MeasuredFigureWithUnits, LimitResult } from './measure/figures.js';
 export { createBench } from './measure/create-bench.js';
 export type { BenchOptions } from './measure/create-bench.js';
-export type { CycleOperatingPoint, NodeCycle, Bench, BenchCommon, DcBench, SineFedBench, StageSetting, OutputStats, SteadyWalk, InputAxis, DropoutRule, SteadyRipple, DipShape, DipPlan } from './measure/bench.js';
-export { makeStage, vout } from './measure/stage.js';
-export type { Stage, StageLoad, Drive, DcSetting } from './measure/stage.js';
+export type { CycleOperatingPoint, NodeCycle, Bench, BenchCommon, DcBench, SineFedBench, StageSetting, OutputStats } from './measure/bench.js';
 export { lineRegulation, loadRegulation } from './measure/regulation.js';
 export type { LineRegulation, LineOptions, LoadRegulation, LoadOptions } from './measure/regulation.js';
 export { dropout, DEFAULT_DROPOUT_FALL } from './measure/dropout.js';
 export type { Dropout } from './measure/dropout.js';
-export { rippleRejection, RIPPLE_AGREEMENT_DB } from './measure/ripple.js';
+export { rippleRejection } from './measure/ripple.js';
 export type { RippleOptions, RippleRejection } from './measure/ripple.js';
-export { dissipation, ratingWarnings } from './measure/dissipation.js';
+export { dissipation } from './measure/dissipation.js';
 export type { Dissipation, DissipationOptions } from './measure/dissipation.js';
 export { sagRideThrough } from './measure/sag.js';
-export type { SagOptions, SagRideThrough } from './measure/sag.js';
-export { settleCycle, describeSteady, MinMaxWindow } from './measure/periodic.js';
-export type { PeriodicOptions, PeriodicResult, CycleStats, Probe, SteadyInfo } from './measure/periodic.js';
-export { findPeriodicSteadyState, SETTLE_RATIO, STATE_RELTOL, DISTANCE_RELTOL } from './analysis/steady-state.js';
-export type { SteadyState, SteadyStateMethod, SteadyStateOptions, SteadyStateOutcome } from './analysis/steady-state.js';
+export type { SagOptions, SagRideThrough, SagTrialFailure } from './measure/sag.js';
+export { describeSteady } from './measure/periodic.js';
+export type { SteadyInfo } from './measure/periodic.js';

@@ -7,7 +7,7 @@
  */
 import { describe, expect, test } from 'vitest';
 import { add, complex, divide, multiply, subtract, type Complex } from 'mathjs';
-import { acFrequencies } from '@railcheck/core';
+import { acFrequencies } from '@railcheck/core/internal';
 import { argmax, bisect, db, deg, lineariseNetlist, phasor, relErr, run } from './support.js';
 
 const j = complex(0, 1);

@@ -7,7 +7,7 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import { complex, lusolve, matrix, type Complex, type Matrix } from 'mathjs';
-import { complexLuFactor, complexLuSolve, createComplexLuWorkspace, type ComplexLuWorkspace } from '@railcheck/core';
+import { complexLuFactor, complexLuSolve, createComplexLuWorkspace, type ComplexLuWorkspace } from '@railcheck/core/internal';
 import { fcSeed } from '../../helpers/device-harness.js';
 
 const seed = fcSeed('core/ac/complex-lu');

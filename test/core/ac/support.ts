@@ -5,7 +5,8 @@
  */
 import { expect } from 'vitest';
 import { complex, type Complex } from 'mathjs';
-import { linearise, parseNetlist, prepare, runNetlist, solveAt, solveOperatingPoint, type AcResult, type CompiledCircuit, type RunReport } from '@railcheck/core';
+import { parseNetlist, prepare, runNetlist, type AcResult, type CompiledCircuit, type RunReport } from '@railcheck/core';
+import { linearise, solveAt, solveOperatingPoint } from '@railcheck/core/internal';
 
 /** Runs netlist text and fails the test with the diagnostics if it does not run. */
 export function run(text: string): RunReport {

@@ -5,7 +5,8 @@
  * source's value afterwards.
  */
 import { describe, expect, test } from 'vitest';
-import { dcSweep, operatingPoint, parseNetlist, prepare, runNetlist, type CompiledCircuit, type DcSweep, type FlatElement, type RunReport } from '@railcheck/core';
+import { parseNetlist, prepare, runNetlist, type CompiledCircuit, type DcSweep, type FlatElement, type RunReport } from '@railcheck/core';
+import { dcSweep, operatingPoint } from '@railcheck/core/internal';
 import { seriesDiode, thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';
 import { terminalCurrents } from '../../helpers/laws.js';
 

@@ -8,7 +8,8 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import { lambertW0, lambertW0Log } from 'lambert-w-function';
-import { DEFAULT_NEWTON, runNetlist } from '@railcheck/core';
+import { runNetlist } from '@railcheck/core';
+import { DEFAULT_NEWTON } from '@railcheck/core/internal';
 import { fcSeed } from '../../helpers/device-harness.js';
 import { lambertRelativeError, seriesDiode, thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';
 import { logUniform } from '../../helpers/linear-networks.js';

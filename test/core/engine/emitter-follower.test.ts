@@ -9,7 +9,8 @@
  * solution gives.
  */
 import { describe, expect, test } from 'vitest';
-import { operatingPoint, parseNetlist, prepare, runNetlist, type RunReport } from '@railcheck/core';
+import { parseNetlist, prepare, runNetlist, type RunReport } from '@railcheck/core';
+import { operatingPoint } from '@railcheck/core/internal';
 import { thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';
 import { kclImbalance } from '../../helpers/laws.js';
 

@@ -8,7 +8,8 @@
  */
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
-import { DEFAULT_NEWTON, runNetlist } from '@railcheck/core';
+import { runNetlist } from '@railcheck/core';
+import { DEFAULT_NEWTON } from '@railcheck/core/internal';
 import { criticalVoltage } from '@railcheck/devices';
 import { fcSeed } from '../../helpers/device-harness.js';
 import { seriesDiode, thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';

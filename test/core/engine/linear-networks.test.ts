@@ -8,7 +8,8 @@
  */
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
-import { operatingPoint, parseNetlist, prepare, runNetlist, type CompiledCircuit, type OperatingPoint } from '@railcheck/core';
+import { parseNetlist, prepare, runNetlist, type CompiledCircuit, type OperatingPoint } from '@railcheck/core';
+import { operatingPoint } from '@railcheck/core/internal';
 import { fcSeed } from '../../helpers/device-harness.js';
 import { kclImbalance, powerBalance } from '../../helpers/laws.js';
 import { independentSources, networkArb, nodeName, onlySource, solveMna, toNetlist, type Network } from '../../helpers/linear-networks.js';

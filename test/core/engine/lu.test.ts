@@ -7,7 +7,8 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import { lusolve } from 'mathjs';
-import { createLuWorkspace, luFactor, luSolve, PIVOT_RELATIVE_TOLERANCE, runNetlist } from '@railcheck/core';
+import { runNetlist } from '@railcheck/core';
+import { createLuWorkspace, luFactor, luSolve, PIVOT_RELATIVE_TOLERANCE } from '@railcheck/core/internal';
 import { thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';
 import { ml } from '../../helpers/ml-matrix.js';
 import { fcSeed } from '../../helpers/device-harness.js';

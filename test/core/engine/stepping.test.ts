@@ -7,7 +7,8 @@
  * models.md, "Numerical safeguards").
  */
 import { describe, expect, test } from 'vitest';
-import { FINAL_GMIN, newtonSolve, operatingPoint, parseNetlist, prepare, type CompiledCircuit, type OperatingPoint } from '@railcheck/core';
+import { parseNetlist, prepare, type CompiledCircuit, type OperatingPoint } from '@railcheck/core';
+import { FINAL_GMIN, newtonSolve, operatingPoint } from '@railcheck/core/internal';
 import { kclImbalance } from '../../helpers/laws.js';
 
 const IS = 1e-14;

@@ -22,7 +22,7 @@
  *    are worked out here from the netlist's pulse corners (netlist.md).
  */
 import { describe, expect, it } from 'vitest';
-import { DEFAULT_NEWTON, FINAL_GMIN, type IntegrationMethod, type TransientTrace } from '@railcheck/core';
+import { DEFAULT_NEWTON, FINAL_GMIN, type IntegrationMethod, type TransientTrace } from '@railcheck/core/internal';
 import { at, branch, compile, node, run } from './support.js';
 
 const KELVIN = 300.15; // 27 °C, the default temperature and Tnom (models.md)

@@ -18,7 +18,7 @@
  *    halving is margin (common practice, no source).
  */
 import { describe, expect, it } from 'vitest';
-import type { IntegrationMethod } from '@railcheck/core';
+import type { IntegrationMethod } from '@railcheck/core/internal';
 import { branch, compile, maxError, node, run } from './support.js';
 
 const VS = 5;

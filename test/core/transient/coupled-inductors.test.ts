@@ -16,7 +16,7 @@ import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, test } from 'vitest';
 import { add, complex, divide, multiply, type Complex } from 'mathjs';
-import { linearise, operatingPoint, setCircuitTemperature, solveAt } from '@railcheck/core';
+import { linearise, operatingPoint, setCircuitTemperature, solveAt } from '@railcheck/core/internal';
 import { lineariseNetlist, relErr } from '../ac/support.js';
 import { at, branch, compile, maxError, node, odexOnGrid, odexSolver, run, times } from './support.js';
 

@@ -18,7 +18,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { lusolve, matrix, multiply, flatten, type MathCollection } from 'mathjs';
-import { DEFAULT_NEWTON, type IntegrationMethod } from '@railcheck/core';
+import { DEFAULT_NEWTON, type IntegrationMethod } from '@railcheck/core/internal';
 import { at, branch, compile, interpolate, node, odexOnGrid, odexSolver, run } from './support.js';
 
 const vec = (v: MathCollection): number[] => flatten(matrix(v)).toArray() as number[];

@@ -17,7 +17,8 @@
  * h²/8·max|v''| (Burden and Faires, Numerical Analysis, §3.1 — from memory).
  */
 import { describe, expect, it } from 'vitest';
-import { runNetlist, solveOperatingPoint } from '@railcheck/core';
+import { runNetlist } from '@railcheck/core';
+import { solveOperatingPoint } from '@railcheck/core/internal';
 import { at, branch, compile, interpolate, node, run } from './support.js';
 
 // Divider 10 V → 1k/1k with C1 (ic=2) across the bottom; a second RC without ic; an RL loop with ic.

@@ -6,7 +6,7 @@
  * 50 Hz secondary and its unregulated rail).
  */
 
-import type { TransientOptions, TransientStats, TransientTrace } from '@railcheck/core';
+import type { TransientOptions, TransientStats, TransientTrace } from '@railcheck/core/internal';
 import { at, compile, node, odexOnGrid, odexSolver, run, times } from './support.js';
 
 /** kT/q at 27 °C, V (CODATA 2018 exact k and q; models.md). */

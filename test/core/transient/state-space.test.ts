@@ -21,7 +21,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { expm, flatten, identity, lusolve, matrix, multiply, subtract, type Matrix, type MathCollection } from 'mathjs';
-import type { IntegrationMethod } from '@railcheck/core';
+import type { IntegrationMethod } from '@railcheck/core/internal';
 import { at, branch, compile, node, run } from './support.js';
 
 type Vec = number[];

@@ -15,7 +15,8 @@
  *  - an unsolvable circuit ends with reason 'step-too-small' and its time.
  */
 import { describe, expect, it } from 'vitest';
-import { runNetlist, runTransient } from '@railcheck/core';
+import { runNetlist } from '@railcheck/core';
+import { runTransient } from '@railcheck/core/internal';
 import { compile, run, times } from './support.js';
 
 /** Accepted step lengths. */

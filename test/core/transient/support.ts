@@ -4,7 +4,8 @@
  * solver (Hairer and Wanner's extrapolation code, npm package odex).
  */
 import { createRequire } from 'node:module';
-import { parseNetlist, prepare, runTransient, type CompiledCircuit, type TransientOptions, type TransientStats, type TransientTrace } from '@railcheck/core';
+import { parseNetlist, prepare, type CompiledCircuit } from '@railcheck/core';
+import { runTransient, type TransientOptions, type TransientStats, type TransientTrace } from '@railcheck/core/internal';
 
 /** Compiles netlist text, throwing on any error (a test bug, not a finding). */
 export function compile(text: string): CompiledCircuit {

@@ -13,10 +13,8 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import { readFileSync } from 'node:fs';
-import {
-  createBench, dissipation, dropout, lineRegulation, loadRegulation, operatingPoint, parseNetlist, prepare, rippleRejection, runNetlist, sagRideThrough,
-  type Bench, type CompiledCircuit,
-} from '@railcheck/core';
+import { createBench, dissipation, dropout, lineRegulation, loadRegulation, parseNetlist, prepare, rippleRejection, runNetlist, sagRideThrough, type Bench, type CompiledCircuit } from '@railcheck/core';
+import { operatingPoint } from '@railcheck/core/internal';
 import { seedFor } from '../linear/support.js';
 
 const seed = seedFor('measure/bench/interleave');
