@@ -4,7 +4,8 @@
  * taken over one cycle at periodic steady state (periodic.ts), each solve
  * starting at switch-on from the DC solution with the source at its t = 0
  * value. The input axis is the ratio of the nominal amplitude; values are
- * the signed mean output and its peak-to-peak; dropout is the lowest ratio
+ * the mean output on the rail's side (magnitudes on a negative rail) and
+ * its peak-to-peak; dropout is the lowest ratio
  * that still holds the output; the ripple is the stage's own; a dip is an
  * amplitude envelope over whole cycles.
  */
@@ -12,7 +13,7 @@ import type { WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import { dipCorners, type DipPlan, type DipShape, type OutputStats, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
 import { runToPeriodicSteadyState, type Probe } from './periodic.js';
-import { applyDrive, loadCurrentOf, vout, type Stage } from './stage.js';
+import { applyDrive, loadCurrentOf, onRail, vout, type Stage } from './stage.js';
 
 type Sine = Extract<WaveformSpec, { kind: 'sin' }>;
 
@@ -26,16 +27,18 @@ const MIN_SETTLE_CYCLES = 3;
  * Runs the stage to periodic steady state with the source's amplitude at
  * `ratio` × nominal (or following `waveform` when given) and the load at
  * `loadAmps` (A; undefined: its own value), and returns the statistics of
- * the last cycle; per-element power is the cycle average of the absorbed
- * power (trapezoidal energy over the cycle / period) when asked for.
+ * the last cycle on the rail's side: output and margin multiplied by
+ * `railSign` (−1 on a negative rail, so that figures are on magnitudes);
+ * per-element power is the cycle average of the absorbed power
+ * (trapezoidal energy over the cycle / period) when asked for.
  */
-function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: StageSetting, power: boolean, what: string): OutputStats {
+function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: StageSetting, power: boolean, what: string, railSign: 1 | -1): OutputStats {
   const c = stage.compiled;
   const period = 1 / sine.freq;
-  const out: Probe = (x) => vout(stage, x);
+  const out: Probe = (x) => railSign * vout(stage, x);
   const fi = stage.feedIndex;
   const probes: Probe[] = [out];
-  if (fi !== undefined) probes.push((x) => x[fi]! - x[stage.refIndex]!, (x) => x[fi]! - x[stage.outIndex]!);
+  if (fi !== undefined) probes.push((x) => x[fi]! - x[stage.refIndex]!, (x) => railSign * (x[fi]! - x[stage.outIndex]!));
   const names = power ? c.devices.map((d) => d.name) : [];
   const energy = new Float64Array(names.length);
   const lastP = new Float64Array(names.length);
@@ -77,18 +80,22 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
 }
 
 /** Finds the nominal periodic steady state of a sine-fed stage and returns its bench. Throws RailcheckError. */
-export function createSineFedBench(stage: Stage): SineFedBench {
-  const w = stage.inputWaveform;
-  const origin = stage.supply.origin;
+export function createSineFedBench(given: Stage): SineFedBench {
+  const w = given.inputWaveform;
+  const origin = given.supply.origin;
   if (w?.kind !== 'sin' || !(w.freq > 0)) throw new RailcheckError([errorAt('bad-supply-input', 'a sine-fed stage needs a sin source with a positive frequency', origin.pos, origin.lineText)]);
   const sine = w;
   const period = 1 / sine.freq;
-  // The load current of a resistor load follows from the nominal output; a first run at the load's own value finds it.
-  const nominal = steadyCycle(stage, sine, 1, { level: 1, loadAmps: undefined }, false, 'periodic steady state of the sine-fed stage');
+  // The load current of a resistor load follows from the nominal output, and the rail's sign from its mean: a first run at the load's own value finds both.
+  const what = 'periodic steady state of the sine-fed stage';
+  const first = steadyCycle(given, sine, 1, { level: 1, loadAmps: undefined }, false, what, 1);
+  const railSign = first.mean < 0 ? -1 : 1;
+  const stage = onRail(given, railSign);
+  const nominal = railSign > 0 ? first : steadyCycle(stage, sine, 1, { level: 1, loadAmps: undefined }, false, what, railSign);
   const voutNominal = nominal.mean;
   const loadNominal = loadCurrentOf(stage, voutNominal);
   const walk = (): SteadyWalk => ({
-    solve: (setting, what, power = false) => steadyCycle(stage, sine, voutNominal, setting, power, `${what}: periodic steady state of the sine-fed stage`),
+    solve: (setting, what, power = false) => steadyCycle(stage, sine, voutNominal, setting, power, `${what}: periodic steady state of the sine-fed stage`, railSign),
   });
   return {
     kind: 'sine-fed',
@@ -97,7 +104,7 @@ export function createSineFedBench(stage: Stage): SineFedBench {
     frequency: sine.freq,
     input: { unit: 'ratio', nominal: 1, sign: 1, describe: (level) => `${Number(level.toPrecision(4))}× the nominal amplitude` },
     voutNominal,
-    railSign: 1,
+    railSign,
     loadNominal,
     nominal,
     walk,
@@ -130,7 +137,7 @@ export function createSineFedBench(stage: Stage): SineFedBench {
             minCycles: cycles + 1,
             maxCycles: cycles + 400,
             endAt: tEnd,
-            onPoint: (t, _cycle, ctx) => observe(t, vout(stage, ctx.x)),
+            onPoint: (t, _cycle, ctx) => observe(t, railSign * vout(stage, ctx.x)),
           }, 'sag of the sine-fed stage', origin);
         },
       };
