@@ -87,7 +87,7 @@ describe('limit errors: exit 2 with file:line:column', () => {
   });
 
   test('an analysis that fails (dropout of an output that does not follow the input) is exit 2 too', async () => {
-    const r = await runLines(['output from its own source', 'V1 in 0 12', 'R1 in 0 1k', 'V2 fix 0 5', 'R3 fix out 1k', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure dropout']);
+    const r = await runLines(['output set by a current source', 'V1 in 0 12', 'I1 in out 1m', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure dropout']);
     expect(r.status).toBe(2);
     expect(r.err).toMatch(/never falls/);
   });

@@ -16,6 +16,7 @@ import { flattenElement } from './elements.js';
 import { lookupSubckt, resolveNode, topScope, type Scope } from './scope.js';
 import type { Netlist } from '../netlist/ast.js';
 import { resolveDirectives } from './directives.js';
+import { checkConnections } from './connections.js';
 
 /** Result of elaboration. */
 export type ElaborateResult =
@@ -230,5 +231,8 @@ export function elaborate(netlist: Netlist): ElaborateResult {
     elements,
     ...resolved,
   };
+  const connections = checkConnections(circuit);
+  warnings.push(...connections.warnings);
+  if (connections.errors.length > 0) return { ok: false, errors: connections.errors, warnings };
   return { ok: true, circuit, warnings };
 }

@@ -28,16 +28,16 @@ export interface StageSetting {
 
 /** Output statistics of one solve: a DC point, or one cycle at periodic steady state. */
 export interface OutputStats {
-  /** Mean output, V: on a DC bench |Vout| on the rail's side (see {@link BenchCommon.railSign}), on a sine-fed bench the signed cycle mean. */
+  /** Mean output, V, on the rail's side (railSign·Vout, see {@link BenchCommon.railSign}): a DC point, or the cycle mean on a sine-fed bench. */
   readonly mean: number;
-  /** Least and greatest output over the cycle, V (equal to `mean` at a DC point). */
+  /** Least and greatest output over the cycle, V, on the rail's side (equal to `mean` at a DC point). */
   readonly min: number;
   readonly max: number;
   /** max − min, V (0 at a DC point). */
   readonly pp: number;
   /** Absorbed power per element name, W (a cycle average on a sine-fed bench); present when asked for. */
   readonly power: Readonly<Record<string, number>> | undefined;
-  /** With `feed=` on a sine-fed bench: the feed's peak-to-peak (V) and the least V(feed) − Vout over the cycle (V). */
+  /** With `feed=` on a sine-fed bench: the feed's peak-to-peak (V) and the least V(feed) − Vout over the cycle on the rail's side (V; railSign·(V(feed) − Vout)). */
   readonly feed: { readonly pp: number; readonly headroomMin: number } | undefined;
   /** How the periodic steady state was found (undefined at a DC point). */
   readonly steady: SteadyInfo | undefined;
@@ -142,9 +142,9 @@ export interface BenchCommon {
   /** The stage on the bench's own circuit. */
   readonly stage: Stage;
   readonly input: InputAxis;
-  /** Nominal output as the figures use it, V: |Vout| on a DC bench, the signed cycle mean on a sine-fed bench. */
+  /** Nominal output as the figures use it, V: |Vout| on a DC bench, |cycle mean| on a sine-fed bench. */
   readonly voutNominal: number;
-  /** +1 for a positive DC rail or any sine-fed stage, −1 for a negative DC rail: the signed nominal output is railSign·voutNominal. */
+  /** +1 for a positive rail, −1 for a negative one (by the sign of the nominal output or its cycle mean): the signed nominal output is railSign·voutNominal. */
   readonly railSign: 1 | -1;
   /** Nominal load current, A (undefined without a load element). */
   readonly loadNominal: number | undefined;

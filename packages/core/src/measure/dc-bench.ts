@@ -17,7 +17,7 @@ import { formatSI } from '../units.js';
 import { dipBottomEnd, dipCorners, type DcBench, type DipPlan, type DipShape, type OutputStats, type StageSetting, type SteadyRipple, type SteadyWalk } from './bench.js';
 import { settleCycle, type SteadyInfo } from './periodic.js';
 import { inputTransfer, smallSignalStart } from './small-signal.js';
-import { applyDrive, loadCurrentOf, solveSetting, vout, type DcSetting, type Drive, type Stage } from './stage.js';
+import { applyDrive, loadCurrentOf, onRail, solveSetting, vout, type DcSetting, type Drive, type Stage } from './stage.js';
 
 /** Width of the final dropout bracket, V: well inside the 1 mV figures.md asks for. */
 const DROPOUT_INPUT_TOLERANCE = 1e-4;
@@ -41,15 +41,16 @@ interface Snapshot {
 }
 
 /** Solves the nominal DC point of the stage and returns its bench. Throws RailcheckError. */
-export function createDcBench(stage: Stage): DcBench {
-  const c = stage.compiled;
+export function createDcBench(given: Stage): DcBench {
+  const c = given.compiled;
   const ws = c.ws;
-  const compiledDrive: Drive = { dc: stage.inputDc, waveform: stage.inputWaveform, loadAmps: undefined };
-  applyDrive(stage, compiledDrive, 1);
+  const compiledDrive: Drive = { dc: given.inputDc, waveform: given.inputWaveform, loadAmps: undefined };
+  applyDrive(given, compiledDrive, 1);
   const outcome = solveOperatingPoint(c);
-  if (!outcome.ok) throw new RailcheckError([opFailure(outcome, 'nominal operating point of the stage', stage.supply.origin)]);
-  const signed = vout(stage);
+  if (!outcome.ok) throw new RailcheckError([opFailure(outcome, 'nominal operating point of the stage', given.supply.origin)]);
+  const signed = vout(given);
   const railSign = signed < 0 ? -1 : 1;
+  const stage = onRail(given, railSign);
   const voutNominal = Math.abs(signed);
   const loadNominal = loadCurrentOf(stage, voutNominal);
   const snapshot: Snapshot = { x: new Float64Array(ws.x), state: new Float64Array(ws.states[0]), statePrev: new Float64Array(ws.states[1]) };

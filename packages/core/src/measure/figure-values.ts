@@ -14,6 +14,7 @@ import type { Bench } from './bench.js';
 import { dissipation } from './dissipation.js';
 import { fallVolts, type Dropout } from './dropout.js';
 import { describeSteady } from './periodic.js';
+import { levelSignWarnings } from './polarity.js';
 import { lineRegulation, loadRegulation } from './regulation.js';
 import { rippleRejection } from './ripple.js';
 import { sagRideThrough } from './sag.js';
@@ -55,6 +56,7 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
     .returnType<MeasuredFigure>()
     .with('line', () => {
       const r = lineRegulation(bench, { from: k.get('from'), to: k.get('to') });
+      ctx.warnings.push(...levelSignWarnings(bench, f));
       lineBelowDropout(bench, f, r.from, ctx);
       const conditions = match(bench)
         .with({ kind: 'dc' }, () => `input ${volts(r.from)} → ${volts(r.to)}, ${loadText}`)
@@ -138,9 +140,9 @@ function lineBelowDropout(bench: Bench, f: FlatFigure, from: number, ctx: Figure
     if (e instanceof RailcheckError) return;
     throw e;
   }
-  // Magnitudes, so that "below" means the same on a negative input.
+  // Magnitudes, so that "below" means the same on a negative input; a level of the wrong sign has its own warning (polarity.ts).
   const s = bench.input.sign;
-  if (s * from < s * d.level) {
+  if (s * from >= 0 && s * from < s * d.level) {
     ctx.warnings.push(warningAt('line-below-dropout', `line regulation starts at ${bench.input.describe(from)}, below the dropout input ${bench.input.describe(d.level)}: the figure describes a stage that is not regulating there`, f.origin.pos, f.origin.lineText));
   }
 }

@@ -14,7 +14,7 @@ import { runTransient } from '../engine/transient.js';
 import { formatSI } from '../units.js';
 import { dipCorners, type CycleOperatingPoint, type DipPlan, type DipShape, type NodeCycle, type OutputStats, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
 import { settleCycle, type Probe } from './periodic.js';
-import { applyDrive, loadCurrentOf, vout, type Stage } from './stage.js';
+import { applyDrive, loadCurrentOf, onRail, vout, type Stage } from './stage.js';
 
 type Sine = Extract<WaveformSpec, { kind: 'sin' }>;
 
@@ -44,17 +44,19 @@ interface Settled {
  * Finds the periodic steady state with the source's amplitude at
  * `ratio` × nominal and the load at `loadAmps` (A; undefined: its own
  * value), starting from `from` (or from switch-on), and returns the
- * statistics of the settled cycle; per-element power is the cycle average
- * of the absorbed power (trapezoidal energy over the cycle / period) when
- * asked for, and with `operatingPoint` the whole cycle-average table.
+ * statistics of the settled cycle on the rail's side: output and margin
+ * multiplied by `railSign` (−1 on a negative rail, so that figures are on
+ * magnitudes); per-element power is the cycle average of the absorbed
+ * power (trapezoidal energy over the cycle / period) when asked for, and
+ * with `operatingPoint` the whole cycle-average table (signed, as measured).
  */
-function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: StageSetting, power: boolean, what: string, from: WarmStart | undefined, operatingPoint?: (op: CycleOperatingPoint) => void): Settled {
+function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: StageSetting, power: boolean, what: string, railSign: 1 | -1, from: WarmStart | undefined, operatingPoint?: (op: CycleOperatingPoint) => void): Settled {
   const c = stage.compiled;
   const period = 1 / sine.freq;
-  const out: Probe = (x) => vout(stage, x);
+  const out: Probe = (x) => railSign * vout(stage, x);
   const fi = stage.feedIndex;
   const probes: Probe[] = [out];
-  if (fi !== undefined) probes.push((x) => x[fi]! - x[stage.refIndex]!, (x) => x[fi]! - x[stage.outIndex]!);
+  if (fi !== undefined) probes.push((x) => x[fi]! - x[stage.refIndex]!, (x) => railSign * (x[fi]! - x[stage.outIndex]!));
   const wantTable = operatingPoint !== undefined;
   const names = power || wantTable ? c.devices.map((d) => d.name) : [];
   const energy = new Float64Array(names.length);
@@ -124,9 +126,9 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
 }
 
 /** Finds the nominal periodic steady state of a sine-fed stage and returns its bench. Throws RailcheckError. */
-export function createSineFedBench(stage: Stage): SineFedBench {
-  const w = stage.inputWaveform;
-  const origin = stage.supply.origin;
+export function createSineFedBench(given: Stage): SineFedBench {
+  const w = given.inputWaveform;
+  const origin = given.supply.origin;
   if (w?.kind !== 'sin' || !(w.freq > 0)) throw new RailcheckError([errorAt('bad-supply-input', 'a sine-fed stage needs a sin source with a positive frequency', origin.pos, origin.lineText)]);
   if (w.td !== 0 || w.theta !== 0) {
     throw new RailcheckError([errorAt('bad-supply-input', 'the sine feeding a stage must repeat from t = 0 for its periodic steady state: no delay and no damping', origin.pos, origin.lineText, 'sin(vo va freq) or sin(vo va freq 0 0 phase)')]);
@@ -134,10 +136,15 @@ export function createSineFedBench(stage: Stage): SineFedBench {
   const sine = w;
   const period = 1 / sine.freq;
   let cycleOperatingPoint: CycleOperatingPoint | undefined;
-  // The load current of a resistor load follows from the nominal output; the nominal run is at the load's own value.
-  const first = steadyCycle(stage, sine, 1, { level: 1, loadAmps: undefined }, false, 'periodic steady state of the sine-fed stage', undefined, (op) => (cycleOperatingPoint = op));
-  const nominal = first.stats;
-  const nominalStart = first.next;
+  // The load current of a resistor load follows from the nominal output, and the rail's sign from its mean: a
+  // first run at the load's own value finds both (and the cycle-average operating point, signed as measured).
+  const what = 'periodic steady state of the sine-fed stage';
+  const first = steadyCycle(given, sine, 1, { level: 1, loadAmps: undefined }, false, what, 1, undefined, (op) => (cycleOperatingPoint = op));
+  const railSign = first.stats.mean < 0 ? -1 : 1;
+  const stage = onRail(given, railSign);
+  const rerun = railSign > 0 ? first : steadyCycle(stage, sine, 1, { level: 1, loadAmps: undefined }, false, what, railSign, first.next);
+  const nominal = rerun.stats;
+  const nominalStart = rerun.next;
   const voutNominal = nominal.mean;
   const loadNominal = loadCurrentOf(stage, voutNominal);
   // A walk starts from the nominal steady state and each later solve from the one before (the shooting method's warm start).
@@ -145,7 +152,7 @@ export function createSineFedBench(stage: Stage): SineFedBench {
     let from = nominalStart;
     return {
       solve: (setting, what, power = false) => {
-        const r = steadyCycle(stage, sine, voutNominal, setting, power, `${what}: periodic steady state of the sine-fed stage`, from);
+        const r = steadyCycle(stage, sine, voutNominal, setting, power, `${what}: periodic steady state of the sine-fed stage`, railSign, from);
         from = r.next;
         return r.stats;
       },
@@ -158,7 +165,7 @@ export function createSineFedBench(stage: Stage): SineFedBench {
     frequency: sine.freq,
     input: { unit: 'ratio', nominal: 1, sign: 1, describe: (level) => `${Number(level.toPrecision(4))}× the nominal amplitude` },
     voutNominal,
-    railSign: 1,
+    railSign,
     loadNominal,
     nominal,
     cycleOperatingPoint,
@@ -196,7 +203,7 @@ export function createSineFedBench(stage: Stage): SineFedBench {
             stepsPerCycle: DIP_STEPS_PER_CYCLE,
             extraBreakpoints: boundaries,
             keepTrace: false,
-            onAccept: (t, ctx) => observe(t, vout(stage, ctx.x)),
+            onAccept: (t, ctx) => observe(t, railSign * vout(stage, ctx.x)),
           });
           if (!r.ok) throw new RailcheckError([errorAt('transient-failed', `sag of the sine-fed stage: the dip transient failed at t = ${formatSI(r.time, 's')} (depth ${(depth * 100).toFixed(1)} %)`, origin.pos, origin.lineText)]);
         },

@@ -15,9 +15,15 @@ import { solveOperatingPoint } from '../engine/dcop.js';
 import { opFailure } from '../analysis/dc.js';
 import { formatSI } from '../units.js';
 
-/** The stage's load: a current source (value in A) or a resistor (value in Ω), with its value as compiled. */
+/**
+ * The stage's load: a current source (value in A) or a resistor (value in
+ * Ω), with its value as compiled. A load current is the current the load
+ * draws from the rail (out of `out` on a positive rail, into it on a
+ * negative one), however the current source's card is written; the
+ * source's value is `direction` × that current.
+ */
 export type StageLoad =
-  | { readonly kind: 'current'; readonly name: string; readonly device: IndependentSource; readonly nominal: number }
+  | { readonly kind: 'current'; readonly name: string; readonly device: IndependentSource; readonly nominal: number; readonly direction: 1 | -1 }
   | { readonly kind: 'resistor'; readonly name: string; readonly device: Resistor; readonly nominal: number };
 
 /** A stage on a circuit that belongs to one bench. */
@@ -45,7 +51,9 @@ export function makeStage(c: CompiledCircuit, supply: FlatSupply): Stage {
   let load: StageLoad | undefined;
   if (supply.load !== undefined) {
     const d = c.deviceByKey.get(supply.load);
-    if (d && isKind(d, 'isource')) load = { kind: 'current', name: d.name, device: d, nominal: d.dc };
+    // The passive sign convention: a source with n+ on out takes its value out of out (a positive rail's load).
+    const onOut = c.flat.elements.find((el) => el.key === supply.load)?.nodes[0] === supply.out;
+    if (d && isKind(d, 'isource')) load = { kind: 'current', name: d.name, device: d, nominal: d.dc, direction: onOut ? 1 : -1 };
     else if (d && isKind(d, 'resistor')) load = { kind: 'resistor', name: d.name, device: d, nominal: d.resistance };
   }
   return {
@@ -61,16 +69,22 @@ export function makeStage(c: CompiledCircuit, supply: FlatSupply): Stage {
   };
 }
 
+/** The stage with its load currents oriented for a rail of sign `railSign` (+1, or −1 for a negative rail): a load draws current from the rail on either polarity. */
+export function onRail(stage: Stage, railSign: 1 | -1): Stage {
+  const l = stage.load;
+  return l?.kind === 'current' && railSign < 0 ? { ...stage, load: { ...l, direction: l.direction === 1 ? -1 : 1 } } : stage;
+}
+
 /** Output voltage V(out) − V(ref) (V) in solution `x` (default: the workspace's). */
 export function vout(stage: Stage, x: Float64Array = stage.compiled.ws.x): number {
   return x[stage.outIndex]! - x[stage.refIndex]!;
 }
 
-/** Load current (A) the stage's own load stands for: the current source's value, or Vout_nom / R for a resistor. */
+/** Load current (A, drawn from the rail) the stage's own load stands for: the current source's value in its direction, or Vout_nom / R for a resistor (`voutNominal` in V, a magnitude). */
 export function loadCurrentOf(stage: Stage, voutNominal: number): number | undefined {
   const l = stage.load;
   if (!l) return undefined;
-  return l.kind === 'current' ? l.nominal : voutNominal / l.nominal;
+  return l.kind === 'current' ? l.direction * l.nominal : voutNominal / l.nominal;
 }
 
 /** Everything a solve sets on the stage's circuit. */
@@ -107,7 +121,7 @@ function applyDcSetting(stage: Stage, s: DcSetting, voutNominal: number): void {
   stage.input.dc = s.vin;
   const l = stage.load;
   if (!l) return;
-  if (l.kind === 'current') l.device.dc = s.loadAmps ?? l.nominal;
+  if (l.kind === 'current') l.device.dc = s.loadAmps === undefined ? l.nominal : l.direction * s.loadAmps;
   else l.device.resistance = s.loadAmps === undefined ? l.nominal : s.loadAmps === 0 ? Infinity : voutNominal / s.loadAmps;
 }
 

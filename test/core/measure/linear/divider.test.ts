@@ -156,7 +156,8 @@ describe('dropout of a divider', () => {
   });
 
   test('an output that does not depend on the input is an error saying the output never falls', () => {
-    const lines = ['output from its own source', 'V1 in 0 12', 'R1 in 0 1k', 'V2 fix 0 5', 'R3 fix out 1k', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure dropout'];
+    // V1 feeds the stage, but an ideal current source between them sets out = 1 mA · 1 kΩ = 1 V whatever V1 is.
+    const lines = ['output set by a current source', 'V1 in 0 12', 'I1 in out 1m', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure dropout'];
     const errors = errorsOf(lines);
     expect(errors.map((e) => e.message).join('\n')).toMatch(/never falls/);
     // Through the library: a RailcheckError, not another exception.
