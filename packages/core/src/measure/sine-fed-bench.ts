@@ -142,7 +142,8 @@ export function createSineFedBench(given: Stage): SineFedBench {
   const first = steadyCycle(given, sine, 1, { level: 1, loadAmps: undefined }, false, what, 1, undefined, (op) => (cycleOperatingPoint = op));
   const railSign = first.stats.mean < 0 ? -1 : 1;
   const stage = onRail(given, railSign);
-  const rerun = railSign > 0 ? first : steadyCycle(stage, sine, 1, { level: 1, loadAmps: undefined }, false, what, railSign, first.next);
+  // The rerun starts from switch-on like the first, so a negative rail and its positive mirror take the same path.
+  const rerun = railSign > 0 ? first : steadyCycle(stage, sine, 1, { level: 1, loadAmps: undefined }, false, what, railSign, undefined);
   const nominal = rerun.stats;
   const nominalStart = rerun.next;
   const voutNominal = nominal.mean;

@@ -154,8 +154,10 @@ describe('a negative sine-fed rail is measured on magnitudes like its positive m
     // By hand: the reservoir peaks near 15 V − 1 V and the follower needs about 8.2 − 0.7 + 0.7 V + headroom, so 0.7 × 15 V is below dropout.
     expect(where(p)).toEqual(['line-below-dropout@13']);
     expect(where(n)).toEqual(where(p));
-    // Observed: 1.8e-5 at most (line.delta from 0.7, out of regulation: a difference of two periodic means whose steps differ by rounding); the others 2e-12.
-    expect(largestDifference(p.figures!.values, n.figures!.values)).toBeLessThan(5e-5);
+    // Observed: 1.6e-4 at most, on dropout.headroom = 1 − dropout.ratio (the ratios differ by 3.5e-5: the search's
+    // margin is a periodic mean, accurate to the transient's own error, and the two mirrors' steps differ by
+    // rounding); line.delta 1.6e-5 (out of regulation); the others below 1e-6.
+    expect(largestDifference(p.figures!.values, n.figures!.values)).toBeLessThan(4e-4);
     for (const name of ['line.delta', 'load.delta', 'load.rout', 'headroom.min', 'sag.fall', 'dropout.headroom']) expect(n.figures!.values[name], name).toBeGreaterThan(0);
     expect(n.figures!.voutNominal).toBeLessThan(0);
     expect(n.figures!.voutNominal).toBeCloseTo(-p.figures!.voutNominal!, 6);
