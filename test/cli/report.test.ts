@@ -105,10 +105,10 @@ describe('--json', () => {
     expect(f['load.delta']).toBeCloseTo(9, 9);
     expect(f['load.pct']).toBeCloseTo(75, 6);
     expect(f['load.rout']).toBeCloseTo(3000, 4);
-    expect(pass.json.limits).toEqual([{ figure: 'load.rout', op: '<=', value: 3100, actual: expect.closeTo(3000, 4) as unknown as number, pass: true }]);
+    expect(pass.json.limits).toEqual([{ figure: 'load.rout', op: '<=', value: 3100, actual: expect.closeTo(3000, 4) as unknown as number, pass: true, status: 'pass' }]);
     const fail = await runJson(`${stage}.limit line.slope < 0.2\n`);
     expect(fail.status).toBe(1);
-    expect(fail.json.limits[0]).toMatchObject({ figure: 'line.slope', op: '<', value: 0.2, pass: false });
+    expect(fail.json.limits[0]).toMatchObject({ figure: 'line.slope', op: '<', value: 0.2, pass: false, status: 'fail' });
   });
 });
 
