@@ -50,7 +50,7 @@ function measured(f: MeasuredFigure): FigureMeasured {
   return f;
 }
 
-/** The reason the netlist's first figure was not measured (the run itself goes on: figures.md, docs/output.md). */
+/** The reason the netlist's first figure was not measured (the run itself goes on: docs/figures.md, "Figures that cannot be measured"). */
 function notMeasuredReason(lines: readonly string[]): string {
   const f = figuresOf(lines).figures.figures[0]!;
   if (f.ok) throw new Error(`expected ${f.kind} not to be measured`);
