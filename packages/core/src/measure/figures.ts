@@ -134,11 +134,11 @@ export function checkLimits(limits: readonly FlatLimit[], values: Readonly<Recor
   return limits.map((l): LimitResult => {
     const actual = lower.get(l.figure.toLowerCase());
     if (actual === undefined) {
-      const reason = unmeasuredReason(l.figure, figures);
+      // A value this kind of stage never has is a netlist error, measured or not.
+      const never = bench !== undefined && figureEntry(l.figure) !== undefined && figureUnit(l.figure, bench) === undefined;
+      const reason = never ? undefined : unmeasuredReason(l.figure, figures);
       if (reason) return notEvaluated(l, reason);
-      const why = bench !== undefined && figureEntry(l.figure) !== undefined && figureUnit(l.figure, bench) === undefined
-        ? `a ${bench} stage does not have this value (figures.md)`
-        : "no such value was measured (check the figure's method= or the element name)";
+      const why = never ? `a ${bench} stage does not have this value (figures.md)` : "no such value was measured (check the figure's method= or the element name)";
       throw new RailcheckError([errorAt('limit-without-figure', `.limit ${l.figure}: ${why}`, l.origin.pos, l.origin.lineText, `one of: ${[...lower.keys()].join(', ') || '(no figures measured)'}`)]);
     }
     const common = { figure: l.figure, op: l.op, value: l.value, origin: l.origin, actual };
@@ -204,6 +204,47 @@ function withUnits(m: FigureValues, f: FlatFigure, bench: BenchKind, warnings: D
   return { ok: true, kind: m.kind, values, conditions: m.conditions, units, notMeasured };
 }
 
+/** The figures when the bench's nominal point cannot be solved: each not measured with that one reason, and one note for them all. */
+function nominalFailed(e: RailcheckError, all: readonly FlatFigure[], warnings: Diagnostic[]): { figures: FigureNotMeasured[]; reason: Diagnostic } {
+  const cause = reasonOf(e, all[0]!);
+  const reason = { ...cause, message: `the stage's nominal point could not be solved: ${cause.message}` };
+  const note = warningAt('figures-not-measured', `no figure was measured (${all.map((f) => f.figure).join(', ')}): ${reason.message}`, reason.pos, reason.lineText);
+  warnings.push(reason.expected === undefined ? note : { ...note, expected: reason.expected });
+  return { figures: all.map((f) => ({ ok: false, kind: f.figure, origin: f.origin, reason })), reason };
+}
+
+/** Every figure measured on the bench; one whose measurement throws RailcheckError is not measured, with the reason, and the others go on. */
+function measureOnBench(bench: Bench, all: readonly FlatFigure[], warnings: Diagnostic[]): MeasuredFigure[] {
+  const dropouts = new Map<number, Dropout | RailcheckError>();
+  const dropoutAt = (fall: number): Dropout => {
+    if (!dropouts.has(fall)) {
+      try {
+        dropouts.set(fall, dropout(bench, fall));
+      } catch (e) {
+        if (!(e instanceof RailcheckError)) throw e;
+        dropouts.set(fall, e);
+      }
+    }
+    const d = dropouts.get(fall)!;
+    if (d instanceof RailcheckError) throw d;
+    return d;
+  };
+  const figures = all.map((f) => readableKeys(f, bench.kind));
+  for (const f of all) warnings.push(...unusedKeyNotes(f, bench.kind));
+  return figures.map((f): MeasuredFigure => {
+    let m: FigureValues;
+    try {
+      m = measureFigure(bench, f, { all: figures, dropoutAt, warnings });
+    } catch (e) {
+      if (!(e instanceof RailcheckError)) throw e;
+      const reason = reasonOf(e, f);
+      warnings.push(notMeasuredNote(f, reason));
+      return { ok: false, kind: f.figure, origin: f.origin, reason };
+    }
+    return withUnits(m, f, bench.kind, warnings);
+  });
+}
+
 /**
  * Measures every figure of the compiled circuit's netlist on one bench
  * (create-bench.ts: a circuit of its own, at the first `.temp`
@@ -218,65 +259,20 @@ function withUnits(m: FigureValues, f: FlatFigure, bench: BenchKind, warnings: D
 export function measureFigures(c: CompiledCircuit): FigureReport {
   const flat = c.flat;
   const warnings: Diagnostic[] = [];
-  const measured: MeasuredFigure[] = [];
-  const notMeasured = (f: FlatFigure, e: RailcheckError): FigureNotMeasured => {
-    const reason = reasonOf(e, f);
-    warnings.push(notMeasuredNote(f, reason));
-    return { ok: false, kind: f.figure, origin: f.origin, reason };
-  };
-  let kind: BenchKind | undefined;
-  let voutNominal: number | undefined;
-  let bench: Bench | RailcheckError | undefined;
+  let bench: Bench | undefined;
+  let measured: MeasuredFigure[] = [];
+  let nominalFailure: Diagnostic | undefined;
   if (flat.figures.length > 0) {
     try {
       bench = createBench(c);
     } catch (e) {
       if (!(e instanceof RailcheckError)) throw e;
-      bench = e;
+      ({ figures: measured, reason: nominalFailure } = nominalFailed(e, flat.figures, warnings));
     }
   }
-  let nominalFailure: Diagnostic | undefined;
-  if (bench instanceof RailcheckError) {
-    // One reason for every figure, and one note for them all.
-    const first = flat.figures[0]!;
-    const cause = reasonOf(bench, first);
-    nominalFailure = { ...cause, message: `the stage's nominal point could not be solved: ${cause.message}` };
-    for (const f of flat.figures) measured.push({ ok: false, kind: f.figure, origin: f.origin, reason: nominalFailure });
-    const kinds = flat.figures.map((f) => f.figure).join(', ');
-    warnings.push({ ...warningAt('figures-not-measured', `no figure was measured (${kinds}): ${nominalFailure.message}`, nominalFailure.pos, nominalFailure.lineText), ...(nominalFailure.expected !== undefined ? { expected: nominalFailure.expected } : {}) });
-  } else if (bench !== undefined) {
-    const b = bench;
-    kind = b.kind;
-    voutNominal = b.railSign * b.voutNominal;
-    const dropouts = new Map<number, Dropout | RailcheckError>();
-    const dropoutAt = (fall: number): Dropout => {
-      if (!dropouts.has(fall)) {
-        try {
-          dropouts.set(fall, dropout(b, fall));
-        } catch (e) {
-          if (!(e instanceof RailcheckError)) throw e;
-          dropouts.set(fall, e);
-        }
-      }
-      const d = dropouts.get(fall)!;
-      if (d instanceof RailcheckError) throw d;
-      return d;
-    };
-    const figures = flat.figures.map((f) => readableKeys(f, b.kind));
-    for (const f of flat.figures) warnings.push(...unusedKeyNotes(f, b.kind));
-    for (const f of figures) {
-      let m: FigureValues;
-      try {
-        m = measureFigure(b, f, { all: figures, dropoutAt, warnings });
-      } catch (e) {
-        if (!(e instanceof RailcheckError)) throw e;
-        measured.push(notMeasured(f, e));
-        continue;
-      }
-      measured.push(withUnits(m, f, b.kind, warnings));
-    }
-  }
+  if (bench) measured = measureOnBench(bench, flat.figures, warnings);
   const values: Record<string, number> = {};
   for (const f of measured) if (f.ok) Object.assign(values, f.values);
-  return { figures: measured, values, limits: checkLimits(flat.limits, values, kind, measured), warnings, voutNominal, bench: kind, nominalFailure };
+  const voutNominal = bench ? bench.railSign * bench.voutNominal : undefined;
+  return { figures: measured, values, limits: checkLimits(flat.limits, values, bench?.kind, measured), warnings, voutNominal, bench: bench?.kind, nominalFailure };
 }
