@@ -57,6 +57,13 @@ describe('one figure not measured', () => {
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.errors.map((e) => e.code)).toEqual(['limit-without-figure']);
   });
+
+  test('so is a limit on a value this kind of stage never has, though its figure was not measured', () => {
+    // dropout.ratio belongs to sine-fed stages (figures.md); this one is fed with DC.
+    const r = runNetlist([...OWN, '.limit dropout.ratio < 0.9', '.end', ''].join('\n'));
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.errors.map((e) => e.message)).toEqual([expect.stringMatching(/dropout\.ratio: a dc stage does not have this value/)]);
+  });
 });
 
 describe('the nominal point cannot be solved', () => {
