@@ -111,10 +111,10 @@ describe('--json', () => {
     expect(Math.abs(f['load.delta']! - 9)).toBeLessThanOrEqual(2 * Number.EPSILON * 9);
     expect(Math.abs(f['load.pct']! - 75)).toBeLessThanOrEqual(2 * Number.EPSILON * 75);
     expect(Math.abs(f['load.rout']! - 3000)).toBeLessThanOrEqual(2 * Number.EPSILON * 3000);
-    expect(pass.json.limits).toEqual([{ figure: 'load.rout', op: '<=', value: 3100, actual: expect.closeTo(3000, 12) as unknown as number, pass: true }]);
+    expect(pass.json.limits).toEqual([{ figure: 'load.rout', op: '<=', value: 3100, actual: expect.closeTo(3000, 12) as unknown as number, pass: true, status: 'pass' }]);
     const fail = await runJson(`${stage}.limit line.slope < 0.2\n`);
     expect(fail.status).toBe(1);
-    expect(fail.json.limits[0]).toMatchObject({ figure: 'line.slope', op: '<', value: 0.2, pass: false });
+    expect(fail.json.limits[0]).toMatchObject({ figure: 'line.slope', op: '<', value: 0.2, pass: false, status: 'fail' });
   });
 });
 

@@ -12,7 +12,7 @@ import * as internal from '@railcheck/core/internal';
 
 /** The public values, as DEVELOPERS.md lists them. */
 const PUBLIC_VALUES = [
-  'RailcheckError', 'formatDiagnostic',
+  'RailcheckError', 'formatDiagnostic', 'errorAt', 'warningAt',
   'parseNetlist', 'parseNetlistOrThrow', 'readNetlistFile', 'printNetlist',
   'elaborate', 'compileCircuit',
   'runNetlist', 'runNetlistFile', 'prepare',

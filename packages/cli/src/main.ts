@@ -1,10 +1,14 @@
 /**
- * The `railcheck` command. Exit status (figures.md): 0 when every limit
- * passes, 1 when a limit fails, 2 when the netlist has an error or an
- * analysis fails (the message on standard error). A user never sees a
- * stack trace.
+ * The `railcheck` command. Exit status (figures.md, docs/output.md): 0
+ * when every limit passes, 1 when a limit fails, 2 when the netlist has an
+ * error, an analysis fails, or a limit could not be evaluated because its
+ * figure was not measured (the messages on standard error; in that last
+ * case the report is still printed). A figure not measured without a limit
+ * on it is a note in the report and leaves the status alone. A user never
+ * sees a stack trace.
  */
-import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type RunReport, type RunResult } from '@railcheck/core';
+import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
+import { match } from 'ts-pattern';
 import { writeFileSync } from 'node:fs';
 import { isAbsolute, relative } from 'node:path';
 import { transientCsv } from './present/waves.js';
@@ -13,6 +17,7 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { flagHelp, parseArgs, type FlagSpec } from './args.js';
 import { formatReport, formatWarnings } from './present/text.js';
 import { reportJson } from './present/json.js';
+import { notEvaluatedErrors } from './present/figures.js';
 
 /** Where output goes; tests pass their own. */
 export interface CliIo {
@@ -25,9 +30,11 @@ const defaultIo: CliIo = {
   err: (t) => process.stderr.write(t.endsWith('\n') ? t : `${t}\n`),
 };
 
-/** Exit statuses. */
+/** Exit status: everything ran and every limit passed. */
 export const EXIT_OK = 0;
+/** Exit status: a limit failed (the report is printed). */
 export const EXIT_LIMIT_FAILED = 1;
+/** Exit status: a netlist error, a failed analysis, a wrong command line, or a limit not evaluated. */
 export const EXIT_ERROR = 2;
 
 const RUN_FLAGS: readonly FlagSpec[] = [
@@ -51,7 +58,8 @@ usage:
   railcheck demo [--json]         run the built-in example stage
   railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
 
-exit status: 0 all limits pass, 1 a limit failed, 2 the netlist has an error or an analysis failed.
+exit status: 0 all limits pass, 1 a limit failed, 2 the netlist has an error, an analysis failed
+or a limit could not be evaluated (its figure was not measured).
 The netlist language is described in docs/netlist.md.`;
 
 const RUN_HELP = `usage: railcheck run FILE [options]
@@ -96,8 +104,21 @@ function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string
   }
   if (flags.has('json')) io.out(JSON.stringify(reportJson(result.report, steps), null, 2));
   else io.out(formatReport(result.report));
-  const failed = result.report.figures?.limits.some((l) => !l.pass) ?? false;
-  return failed ? EXIT_LIMIT_FAILED : EXIT_OK;
+  const limits = result.report.figures?.limits ?? [];
+  const unevaluated = notEvaluatedErrors(limits);
+  if (unevaluated.length > 0) {
+    for (const e of unevaluated) io.err(formatDiagnostic(e));
+    io.err(`railcheck: ${unevaluated.length} ${unevaluated.length === 1 ? 'limit was' : 'limits were'} not evaluated; the report is on standard output`);
+  }
+  return limitStatus(limits);
+}
+
+/** Exit status of a run that produced a report: the worst over its limits (pass 0, fail 1, not evaluated 2). */
+export function limitStatus(limits: readonly LimitResult[]): number {
+  return limits.reduce(
+    (worst, l) => Math.max(worst, match(l.status).with('pass', () => EXIT_OK).with('fail', () => EXIT_LIMIT_FAILED).with('not-evaluated', () => EXIT_ERROR).exhaustive()),
+    EXIT_OK,
+  );
 }
 
 /** Writes the first transient to `path` and any further ones (other temperatures, other .tran lines) beside it. */

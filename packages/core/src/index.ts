@@ -11,7 +11,7 @@
  * netlist → elaborate → engine → analysis → measure → pipeline, with the
  * shared errors.ts, units.ts and figure-registry.ts below them all.
  */
-export { RailcheckError, formatDiagnostic } from './errors.js';
+export { RailcheckError, formatDiagnostic, errorAt, warningAt } from './errors.js';
 export type { Diagnostic, SourcePos } from './errors.js';
 
 export { parseNetlist, parseNetlistOrThrow, readNetlistFile, printNetlist } from './netlist/index.js';
@@ -43,7 +43,7 @@ export { formatSI } from './units.js';
 export { FIGURES, FIGURE_KIND_INFO, FIGURE_KINDS, BENCH_KINDS, figureEntry, figureKindOf, figureUnit } from './figure-registry.js';
 export type { FigureEntry, FigureKindInfo, FigureKey, FigureNumberKey, FigureMethodKey, FigureUnit, Better, BenchKind } from './figure-registry.js';
 export { measureFigures } from './measure/figures.js';
-export type { FigureReport, MeasuredFigure, MeasuredFigureWithUnits, LimitResult } from './measure/figures.js';
+export type { FigureReport, MeasuredFigure, FigureMeasured, FigureNotMeasured, FigureValues, ValueNotMeasured, LimitResult } from './measure/figures.js';
 export { createBench } from './measure/create-bench.js';
 export type { BenchOptions } from './measure/create-bench.js';
 export type { CycleOperatingPoint, NodeCycle, Bench, BenchCommon, DcBench, SineFedBench, StageSetting, OutputStats } from './measure/bench.js';

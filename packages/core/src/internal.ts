@@ -51,8 +51,8 @@ export { formatSI } from './units.js';
 
 export { FIGURES, FIGURE_KIND_INFO, FIGURE_KINDS, BENCH_KINDS, figureEntry, figureKindOf, figureUnit } from './figure-registry.js';
 export type { FigureEntry, FigureKindInfo, FigureKey, FigureNumberKey, FigureMethodKey, FigureUnit, Better, BenchKind } from './figure-registry.js';
-export { measureFigures, checkLimits, unusedKeyNotes } from './measure/figures.js';
-export type { FigureReport, MeasuredFigure, MeasuredFigureWithUnits, LimitResult } from './measure/figures.js';
+export { measureFigures, checkLimits, unusedKeyNotes, isSineFed } from './measure/figures.js';
+export type { FigureReport, MeasuredFigure, FigureMeasured, FigureNotMeasured, FigureValues, ValueNotMeasured, LimitResult } from './measure/figures.js';
 export { createBench } from './measure/create-bench.js';
 export type { BenchOptions } from './measure/create-bench.js';
 export type { CycleOperatingPoint, NodeCycle, Bench, BenchCommon, DcBench, SineFedBench, StageSetting, OutputStats, SteadyWalk, InputAxis, DropoutRule, SteadyRipple, DipShape, DipPlan } from './measure/bench.js';

@@ -1,13 +1,13 @@
 /**
  * `.limit` lines and the exit status of `railcheck run` (figures.md,
  * "Limits" and "Results"): 0 when every limit passes, 1 when one fails,
- * 2 for a netlist error or a failed analysis, with the message and its
- * file:line:column on standard error. The measured values are checked
+ * 2 for a netlist error, a failed analysis or a limit not evaluated, with
+ * the message and its file:line:column on standard error. The measured values are checked
  * against the divider's closed forms (voltage divider and Thévenin, any
  * circuit-theory text), never against earlier output.
  */
 import { describe, expect, test } from 'vitest';
-import { runJson, runLines } from './support.js';
+import { runJson, runLines, type FiguresJson } from './support.js';
 
 // 12 V into 1 kΩ / 1 kΩ with 1 mA drawn: k = 1/2, Vth = 6 V, Rth = 500 Ω, Vout_nom = 5.5 V.
 const DIVIDER = ['model-railway controller: signal rail divider', 'V1 in 0 12', 'R1 in out 1k', 'R2 out 0 1k', 'IL out 0 1m', '.supply in=V1 out=out load=IL'];
@@ -21,11 +21,13 @@ const LOAD_PCT = (100 * 1e-3 * 500) / 6;
 const lineOf = (lines: readonly string[], text: string): number => lines.indexOf(text) + 1;
 
 describe('limits and exit status', () => {
-  test('every limit passing: exit 0, and JSON limits entries {figure, op, value, actual, pass}', async () => {
+  test('every limit passing: exit 0, and JSON limits entries {figure, op, value, actual, pass, status}', async () => {
     const { status, json } = await runJson([...DIVIDER, ...FIGURES, '.limit line.delta <= 1300m', '.limit load.rout < 510', '.limit load.pct > 8']);
     expect(status).toBe(0);
     expect(json.limits).toHaveLength(3);
-    for (const l of json.limits) expect(Object.keys(l).sort()).toEqual(['actual', 'figure', 'op', 'pass', 'value']);
+    for (const l of json.limits) expect(Object.keys(l).sort()).toEqual(['actual', 'figure', 'op', 'pass', 'status', 'value']);
+    expect(json.limits.map((l) => l.status)).toEqual(['pass', 'pass', 'pass']);
+    expect(json.not_measured).toEqual([]);
     const [delta, rout, pct] = json.limits;
     expect(delta).toMatchObject({ figure: 'line.delta', op: '<=', value: 1.3, pass: true });
     // Observed 2.0e-15, 0 and 0; bounds 5e-15 and 2·eps·|value|.
@@ -43,6 +45,7 @@ describe('limits and exit status', () => {
     const { status, json } = await runJson([...DIVIDER, ...FIGURES, '.limit line.delta <= 1300m', '.limit load.pct < 8']);
     expect(status).toBe(1);
     expect(json.limits.map((l) => l.pass)).toEqual([true, false]);
+    expect(json.limits.map((l) => l.status)).toEqual(['pass', 'fail']);
     expect(json.limits[1]).toMatchObject({ figure: 'load.pct', op: '<', value: 8 });
     // Observed 0; bound 2·eps·|value|.
     expect(Math.abs(json.limits[1]!.actual - LOAD_PCT)).toBeLessThanOrEqual(2 * Number.EPSILON * LOAD_PCT);
@@ -86,10 +89,14 @@ describe('limit errors: exit 2 with file:line:column', () => {
     expect(r.err).toMatch(/pd\.R9/);
   });
 
-  test('an analysis that fails (dropout of an output that does not follow the input) is exit 2 too', async () => {
-    const r = await runLines(['output set by a current source', 'V1 in 0 12', 'I1 in out 1m', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure dropout']);
+  test('a limit on a figure that could not be measured (dropout of an output that does not follow the input) is exit 2, the report still printed', async () => {
+    const lines = ['output set by a current source', 'V1 in 0 12', 'I1 in out 1m', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure dropout', '.limit dropout.v < 2'];
+    const r = await runLines(lines, ['--json']);
     expect(r.status).toBe(2);
-    expect(r.err).toMatch(/never falls/);
+    expect(r.err).toContain(`${r.file}:${lineOf(lines, '.limit dropout.v < 2')}:1: error:`);
+    expect(r.err).toMatch(/not evaluated.*never falls/);
+    const json = JSON.parse(r.out) as FiguresJson;
+    expect(json.limits).toEqual([expect.objectContaining({ figure: 'dropout.v', status: 'not-evaluated', pass: false, actual: null })]);
   });
 });
 

@@ -19,7 +19,9 @@ export interface CliRun {
 /** The JSON members these tests read (figures.md, "Results"). */
 export interface FiguresJson {
   figures: Record<string, number>;
-  limits: { figure: string; op: string; value: number; actual: number; pass: boolean }[];
+  limits: { figure: string; op: string; value: number; actual: number; pass: boolean; status: 'pass' | 'fail' | 'not-evaluated'; reason?: string }[];
+  /** docs/output.md: what could not be measured, with the reason and its place. */
+  not_measured: { figure: string; value?: string; code: string; reason: string; expected?: string; file?: string; line?: number; column?: number }[];
   warnings: string[];
 }
 

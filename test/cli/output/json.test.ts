@@ -202,9 +202,9 @@ describe('exit statuses', () => {
     const fail = await cli(['run', writeNetlist(dir, [...base, '.limit line.slope < 0.4', '.end', ''].join('\n'), 'f.cir'), '--json']);
     expect(pass.status).toBe(0);
     expect(fail.status).toBe(1);
-    const j = JSON.parse(fail.out) as { figures: Record<string, number>; limits: { figure: string; op: string; value: number; actual: number; pass: boolean }[] };
+    const j = JSON.parse(fail.out) as { figures: Record<string, number>; limits: { figure: string; op: string; value: number; actual: number; pass: boolean; status: string }[] };
     // Observed 0; bound 2·eps·0.5.
     expect(Math.abs(j.figures['line.slope']! - 0.5)).toBeLessThanOrEqual(2 * Number.EPSILON * 0.5);
-    expect(j.limits).toEqual([{ figure: 'line.slope', op: '<', value: 0.4, actual: j.figures['line.slope'], pass: false }]);
+    expect(j.limits).toEqual([{ figure: 'line.slope', op: '<', value: 0.4, actual: j.figures['line.slope'], pass: false, status: 'fail' }]);
   });
 });

@@ -1,9 +1,10 @@
 /**
  * The stage, its figures and its limits, as a person reads them: each
- * figure with its unit and the conditions it was measured at, each limit
- * with pass or FAIL, and a one-line verdict.
+ * figure with its unit and the conditions it was measured at (or "not
+ * measured" with the reason), each limit with pass, FAIL or not evaluated,
+ * and a one-line verdict.
  */
-import { FIGURE_KIND_INFO, figureEntry, formatSI, type FigureReport, type FigureUnit, type LimitResult, type RunReport } from '@railcheck/core';
+import { errorAt, FIGURE_KIND_INFO, figureEntry, formatSI, type Diagnostic, type FigureReport, type FigureUnit, type LimitResult, type RunReport } from '@railcheck/core';
 import { match } from 'ts-pattern';
 import { heading, table } from './table.js';
 
@@ -46,26 +47,91 @@ export function formatStage(report: RunReport): string {
   return [heading('Stage'), table(rows, '  ', true)].join('\n');
 }
 
-/** Every figure with its conditions and values. */
+/** `file:line:column` of a diagnostic, or '' when it names no place. */
+function place(d: Diagnostic): string {
+  return d.pos ? `${d.pos.file}:${d.pos.line}:${d.pos.column}` : '';
+}
+
+/** The reason something was not measured, in one line: the message and its place. */
+export function reasonText(d: Diagnostic): string {
+  const at = place(d);
+  return at ? `${d.message} (${at})` : d.message;
+}
+
+/** Names of what was not measured: figure kinds, and values left out of measured figures. */
+export function notMeasuredNames(figures: FigureReport): string[] {
+  return figures.figures.flatMap((f) =>
+    match(f)
+      .with({ ok: false }, (g) => [g.kind as string])
+      .with({ ok: true }, (g) => g.notMeasured.map((v) => v.name))
+      .exhaustive(),
+  );
+}
+
+/** Every figure with its conditions and values; a figure or value not measured says so under its title, with the reason. */
 export function formatFigures(figures: FigureReport, temperature: number): string {
   const lines = [heading(`Figures at ${temperature} °C`)];
+  if (figures.nominalFailure) {
+    // The same reason for every figure: said once.
+    lines.push(`  not measured: ${figures.figures.map((f) => FIGURE_KIND_INFO[f.kind].title).join(', ')}`);
+    lines.push(`      ${reasonText(figures.nominalFailure)}`);
+    return lines.join('\n');
+  }
+  const missing = notMeasuredNames(figures);
+  if (missing.length > 0) lines.push(`  not measured: ${missing.join(', ')} (the reasons are below; a limit on them is not evaluated)`);
   for (const f of figures.figures) {
-    lines.push(`  ${FIGURE_KIND_INFO[f.kind].title} — ${f.conditions}`);
-    lines.push(table(Object.entries(f.values).map(([n, v]) => [n, formatFigureValue(n, v, f.units[n]!)]), '      '));
+    match(f)
+      .with({ ok: true }, (g) => {
+        lines.push(`  ${FIGURE_KIND_INFO[g.kind].title} — ${g.conditions}`);
+        const rows = Object.entries(g.values).map(([n, v]) => [n, formatFigureValue(n, v, g.units[n]!)]);
+        if (rows.length > 0) lines.push(table(rows, '      '));
+        // The reason names the value.
+        for (const v of g.notMeasured) lines.push(`      not measured: ${reasonText(v.reason)}`);
+      })
+      .with({ ok: false }, (g) => {
+        lines.push(`  ${FIGURE_KIND_INFO[g.kind].title}`);
+        lines.push(`      not measured: ${reasonText(g.reason)}`);
+      })
+      .exhaustive();
   }
   return lines.join('\n');
 }
 
-/** The limits table and verdict. */
+const limitWord = (n: number): string => `limit${n === 1 ? '' : 's'}`;
+
+/** The limits table (measured value and pass, FAIL or not evaluated) and a verdict. */
 export function formatLimits(limits: readonly LimitResult[], figures: FigureReport): string {
   if (limits.length === 0) return '';
-  // A limit's figure was measured (checkLimits refuses one that was not), so its unit is among the measured ones.
+  // A pass or fail was measured, so its unit is among the measured figures' units.
   const unitOf = (name: string): FigureUnit => {
-    for (const f of figures.figures) for (const [n, u] of Object.entries(f.units)) if (n.toLowerCase() === name.toLowerCase()) return u;
+    for (const f of figures.figures) if (f.ok) for (const [n, u] of Object.entries(f.units)) if (n.toLowerCase() === name.toLowerCase()) return u;
     throw new Error(`no unit for the limit on ${name}: it was not measured`);
   };
-  const rows = [['limit', 'measured', 'result'], ...limits.map((l) => [`${l.figure} ${l.op} ${l.value}`, formatFigureValue(l.figure, l.actual, unitOf(l.figure)), l.pass ? 'pass' : 'FAIL'])];
-  const failed = limits.filter((l) => !l.pass).length;
-  const verdict = failed === 0 ? `all ${limits.length} limit${limits.length === 1 ? '' : 's'} pass` : `${failed} of ${limits.length} limit${limits.length === 1 ? '' : 's'} FAILED`;
+  const cells = (l: LimitResult): [string, string] =>
+    match(l)
+      .with({ status: 'pass' }, (r) => [formatFigureValue(r.figure, r.actual, unitOf(r.figure)), 'pass'] as [string, string])
+      .with({ status: 'fail' }, (r) => [formatFigureValue(r.figure, r.actual, unitOf(r.figure)), 'FAIL'] as [string, string])
+      .with({ status: 'not-evaluated' }, () => ['not measured', 'not evaluated'] as [string, string])
+      .exhaustive();
+  const rows = [['limit', 'measured', 'result'], ...limits.map((l) => [`${l.figure} ${l.op} ${l.value}`, ...cells(l)])];
+  const count = (status: LimitResult['status']): number => limits.filter((l) => l.status === status).length;
+  const failed = count('fail');
+  const unevaluated = count('not-evaluated');
+  const n = limits.length;
+  const verdict =
+    unevaluated > 0
+      ? [`${unevaluated} of ${n} ${limitWord(n)} not evaluated (a figure was not measured)`, ...(failed > 0 ? [`${failed} FAILED`] : []), ...(count('pass') > 0 ? [`${count('pass')} pass`] : [])].join(', ')
+      : failed === 0
+        ? `all ${n} ${limitWord(n)} pass`
+        : `${failed} of ${n} ${limitWord(n)} FAILED`;
   return [heading('Limits'), table(rows), `  verdict: ${verdict}`].join('\n');
+}
+
+/** One error per limit not evaluated, at its `.limit` line, for standard error (exit status 2). */
+export function notEvaluatedErrors(limits: readonly LimitResult[]): Diagnostic[] {
+  return limits.flatMap((l) =>
+    l.status === 'not-evaluated'
+      ? [errorAt('limit-not-evaluated', `.limit ${l.figure} was not evaluated: nothing was measured to compare it with: ${reasonText(l.reason)}`, l.origin.pos, l.origin.lineText)]
+      : [],
+  );
 }

@@ -19,8 +19,8 @@ import { lineRegulation, loadRegulation } from './regulation.js';
 import { rippleRejection } from './ripple.js';
 import { sagRideThrough } from './sag.js';
 
-/** One measured figure. */
-export interface MeasuredFigure {
+/** The values of one figure that was measured, and the conditions they were measured at. */
+export interface FigureValues {
   readonly kind: FigureKind;
   /** Dotted figure name (figures.md) → value in the unit the figure registry gives it. */
   readonly values: Readonly<Record<string, number>>;
@@ -49,11 +49,11 @@ function defined(values: Readonly<Record<string, number | undefined>>): Record<s
 }
 
 /** Measures one figure on the bench. Throws RailcheckError. */
-export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): MeasuredFigure {
+export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): FigureValues {
   const k = f.keys;
   const loadText = bench.loadNominal === undefined ? "the stage's own load" : `load ${amps(bench.loadNominal)}`;
   return match(f.figure)
-    .returnType<MeasuredFigure>()
+    .returnType<FigureValues>()
     .with('line', () => {
       const r = lineRegulation(bench, { from: k.get('from'), to: k.get('to') });
       ctx.warnings.push(...levelSignWarnings(bench, f));
@@ -85,7 +85,7 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
       const r = rippleRejection(bench, { freq: k.get('freq'), amp: k.get('amp'), method: f.method });
       ctx.warnings.push(...r.warnings);
       return match(bench)
-        .returnType<MeasuredFigure>()
+        .returnType<FigureValues>()
         .with({ kind: 'dc' }, () => ({
           kind: 'ripple',
           values: defined({ 'ripple.rr': r.smallSignal, 'ripple.rr_tran': r.steady, 'ripple.out_pp': r.outPp }),

@@ -1,7 +1,11 @@
 /**
  * The whole pipeline for one netlist: read → elaborate → compile → analyse
  * at every `.temp` temperature → measure the figures (at the first). Returns
- * values, never throws for anything a netlist can contain.
+ * values, never throws for anything a netlist can contain. A figure that
+ * cannot be measured does not stop the run: it is in the report as not
+ * measured, with the reason, beside everything else. An analysis that
+ * fails (an operating point, sweep, transient or small-signal run the
+ * netlist asks for) still stops it: the run then has errors, no report.
  */
 import { warningAt, RailcheckError, type Diagnostic, errorAt } from '../errors.js';
 import { parseNetlist, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
@@ -31,7 +35,7 @@ export interface RunReport {
   readonly transients: readonly TransientResult[];
   /** Small-signal sweeps, one per `.ac` and temperature. */
   readonly ac: readonly AcResult[];
-  /** Power-supply figures and limits (absent when the netlist asks for none). */
+  /** Power-supply figures and limits (absent when the netlist asks for none); figures that could not be measured are in it as such, and limits on them as not evaluated. */
   readonly figures: FigureReport | undefined;
   /** Warnings from every stage. */
   readonly warnings: readonly Diagnostic[];
