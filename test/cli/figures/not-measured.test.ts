@@ -5,7 +5,7 @@
  * reported (text and JSON), a limit on it is not evaluated, and the exit
  * status is 2 only then. The circuit checks use laws from outside the
  * project: Kirchhoff's current law on the reported operating point, the
- * voltage divider for a stage whose output comes from its own source.
+ * stage whose output is set by an ideal current source from its input (1 mA into 1 kΩ whatever the input).
  */
 import { describe, expect, test } from 'vitest';
 import { runJson, runLines, type FiguresJson } from './support.js';
@@ -129,14 +129,14 @@ describe('one figure that cannot be measured: the swapped transistor', () => {
 });
 
 describe('the same rules on a stage with closed forms', () => {
-  // The output is the divider R3/R4 on its own 5 V source: Vout = 5·1k/(1k + 1k) = 2.5 V whatever
-  // V1 does (voltage divider), so line.delta = 0 exactly and the output never falls: no dropout.
-  const OWN = ['output from its own source', 'V1 in 0 12', 'R1 in 0 1k', 'V2 fix 0 5', 'R3 fix out 1k', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure line', '.figure dropout'];
+  // The output is set by an ideal current source from the input: Vout = 1 mA · 1 kΩ = 1 V whatever V1
+  // does (Ohm's law), so line.delta = 0 exactly and the output never falls: no dropout.
+  const OWN = ['output set by a current source', 'V1 in 0 12', 'I1 in out 1m', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure line', '.figure dropout'];
 
   test('exit 0 with a passing limit, 1 with a failing one, 2 with one on the figure not measured', async () => {
     const pass = await runJson([...OWN, '.limit line.delta <= 1m']);
     expect(pass.json.figures['line.delta']).toBe(0);
-    expect((pass.json as ReportJson).vout_nominal).toBe(2.5);
+    expect((pass.json as ReportJson).vout_nominal).toBe(1);
     expect(pass.json.not_measured.map((n) => n.figure)).toEqual(['dropout']);
     expect(pass.status).toBe(0);
     expect((await runJson([...OWN, '.limit line.delta >= 1m'])).status).toBe(1);

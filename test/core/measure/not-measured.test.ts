@@ -4,9 +4,9 @@
  * measured"): the figure is `{ ok: false, reason }`, the others are
  * measured as usual, a limit on it is `not-evaluated` with that reason,
  * and a netlist mistake in a limit is still an error. The stage's output
- * is a voltage divider on its own 5 V source (voltage-divider rule: 2.5 V),
- * which the input does not reach at all: the line figure is exactly 0 and
- * the output never falls, so there is no dropout.
+ * is set by an ideal current source from the input (Ohm's law: 1 mA into
+ * 1 kΩ is 1 V), which the input's value does not change: the line figure
+ * is exactly 0 and the output never falls, so there is no dropout.
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, test } from 'vitest';
@@ -14,7 +14,7 @@ import { runNetlist, type FigureReport, type LimitResult } from '@railcheck/core
 import { checkLimits } from '@railcheck/core/internal';
 import { examplePath } from './examples/netlist-values.js';
 
-const OWN = ['output from its own source', 'V1 in 0 12', 'R1 in 0 1k', 'V2 fix 0 5', 'R3 fix out 1k', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure line', '.figure dropout'];
+const OWN = ['output set by a current source', 'V1 in 0 12', 'I1 in out 1m', 'R4 out 0 1k', '.supply in=V1 out=out', '.figure line', '.figure dropout'];
 const SUPPLY_LINE = OWN.indexOf('.supply in=V1 out=out') + 1;
 
 /** Runs netlist lines that must produce a report with figures. */
@@ -32,7 +32,7 @@ describe('one figure not measured', () => {
     expect(line).toMatchObject({ ok: true, kind: 'line', values: { 'line.delta': 0, 'line.slope': 0 }, notMeasured: [] });
     expect(drop).toMatchObject({ ok: false, kind: 'dropout', reason: { code: 'no-dropout', pos: { line: SUPPLY_LINE, column: 1 } } });
     expect(f.values).toEqual({ 'line.delta': 0, 'line.slope': 0, 'line.pct_per_v': 0 });
-    expect(f.voutNominal).toBe(2.5);
+    expect(f.voutNominal).toBe(1);
     expect(f.nominalFailure).toBeUndefined();
     const [ok, ne] = f.limits as [LimitResult, LimitResult];
     expect(ok).toMatchObject({ status: 'pass', pass: true, actual: 0 });
