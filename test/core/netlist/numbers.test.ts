@@ -1,6 +1,6 @@
 /**
  * Numbers with scale suffixes and ignored units. Source for every expected
- * value: the suffix table of shared/spec/netlist.md (Numbers), which follows
+ * value: the suffix table of docs/netlist.md (Numbers and expressions), which follows
  * the SI prefixes (BIPM, The International System of Units, 9th ed., table 7)
  * except that `meg` is mega and `m` is milli.
  */
