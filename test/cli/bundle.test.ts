@@ -2,7 +2,7 @@
  * The bundled command as a user starts it: `node scripts/build.mjs`, then
  * `node packages/cli/dist/railcheck.mjs run FILE --json` in a child process.
  * Two spawns only (they are slow): a good netlist (exit 0, one JSON object,
- * values by Ohm's law) and a broken one (exit 2, figures.md, Results;
+ * values by Ohm's law) and a broken one (exit 2, docs/output.md, Exit status;
  * the position on standard error, no stack trace).
  */
 import { execFileSync, spawnSync } from 'node:child_process';

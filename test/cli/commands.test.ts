@@ -1,5 +1,5 @@
 /**
- * The command line's commands and options (figures.md, Results: exit
+ * The command line's commands and options (docs/output.md, Exit status: exit
  * status 0 when every limit passes, 1 when one fails, 2 when the netlist
  * has an error; the message on standard error). Help goes to standard
  * output with exit 0; a mistake on the command line is exit 2 with a
@@ -27,7 +27,7 @@ describe('help', () => {
     expect(run).toContain('--json');
     expect(run).toContain('--allow-outside-includes');
     expect((await cli(['demo', '--help'])).out).toMatch(/railcheck demo/);
-    // The general help gives the exit statuses of figures.md.
+    // The general help gives the exit statuses of docs/output.md.
     expect((await cli(['help'])).out).toMatch(/0[^\n]*1[^\n]*limit[^\n]*2/);
   });
 

@@ -1,6 +1,6 @@
 /**
  * What `railcheck run` reports about the operating point, sweeps and
- * temperatures, in JSON (figures.md, Results) and as text. Every number is
+ * temperatures, in JSON (docs/output.md, "The JSON object") and as text. Every number is
  * worked by hand: Ohm's law and the voltage-divider rule for the resistive
  * stages, Kirchhoff's current law and the Ebers-Moll transport model's
  * forward-active current ratio Ic/Ib = BF (no Early effect) for the

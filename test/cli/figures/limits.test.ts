@@ -1,6 +1,6 @@
 /**
- * `.limit` lines and the exit status of `railcheck run` (figures.md,
- * "Limits" and "Results"): 0 when every limit passes, 1 when one fails,
+ * `.limit` lines and the exit status of `railcheck run` (docs/figures.md,
+ * "Limits"; docs/output.md, "Exit status"): 0 when every limit passes, 1 when one fails,
  * 2 for a netlist error, a failed analysis or a limit not evaluated, with
  * the message and its file:line:column on standard error. The measured values are checked
  * against the divider's closed forms (voltage divider and Thévenin, any

@@ -63,7 +63,7 @@ describe('text report of figures and limits', () => {
 
 describe('mains caution above extra-low voltage', () => {
   // IEC 61140 extra-low voltage: at most 50 V a.c. r.m.s. or 120 V ripple-free d.c. (the limits
-  // figures.md and docs/figures.md quote; from memory they match IEC 60449 band I).
+  // docs/figures.md and the README quote; from memory they match IEC 60449 band I).
   const divider = (source: string): string[] => ['line-powered divider', `V1 in 0 ${source}`, 'R1 in out 10k', 'R2 out 0 10k', '.supply in=V1 out=out', '.figure line'];
   const cautioned = (warnings: readonly string[]): boolean => warnings.some((w) => /extra-low voltage/.test(w) && /IEC 61140/.test(w));
 

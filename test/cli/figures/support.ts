@@ -16,7 +16,7 @@ export interface CliRun {
   readonly file: string;
 }
 
-/** The JSON members these tests read (figures.md, "Results"). */
+/** The JSON members these tests read (docs/output.md, "The JSON object"). */
 export interface FiguresJson {
   figures: Record<string, number>;
   limits: { figure: string; op: string; value: number; actual: number; pass: boolean; status: 'pass' | 'fail' | 'not-evaluated'; reason?: string }[];

@@ -1,5 +1,5 @@
 /**
- * `railcheck run FILE --csv OUT.csv` against figures.md ("Results"): a
+ * `railcheck run FILE --csv OUT.csv` against docs/output.md ("CSV waveforms"): a
  * header row `time,<node>,...` with every node (names as written, subcircuit
  * nodes as `X1.name`) and one row per output point in SI units; the output
  * points are the `.tran` grid from tstart to tstop (netlist.md: tstep is the
@@ -132,7 +132,7 @@ describe('further transients and errors', () => {
 
   test('--csv without a .tran: exit 2, a message, no file and no report', async () => {
     const r = await runCsv([...DIODE, '.op']);
-    // figures.md: exit status 2 when the request cannot be carried out, message on standard error.
+    // docs/output.md, Exit status: 2 when the request cannot be carried out, message on standard error.
     expect(r.status).toBe(2);
     expect(r.err).toMatch(/--csv needs a \.tran analysis/);
     expect(existsSync(r.csv)).toBe(false);

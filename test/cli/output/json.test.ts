@@ -1,7 +1,7 @@
 /**
- * `railcheck run FILE --json`: the keys figures.md ("Results") requires
- * (`title`, `op`, `figures`, `limits`, `warnings`) and railcheck's own
- * waveform and small-signal members `transients` and `ac` (docs/output.md).
+ * `railcheck run FILE --json`: the core members of docs/output.md ("The
+ * JSON object": `title`, `op`, `figures`, `limits`, `warnings`) and the
+ * waveform and small-signal members `transients` and `ac`.
  * Values are checked against hand calculations, not against earlier output.
  */
 import { describe, expect, test } from 'vitest';
@@ -53,7 +53,7 @@ async function json(lines: readonly string[], extra: readonly string[] = []): Pr
   return JSON.parse(r.out) as ReportJson;
 }
 
-describe('figures.md keys', () => {
+describe('core members (docs/output.md)', () => {
   test('title, op, figures, limits and warnings are present with their shapes', async () => {
     const j = await json([...RC, '.op']);
     expect(j.title).toBe('sensor rail: supply filter');

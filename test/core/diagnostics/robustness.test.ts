@@ -1,8 +1,8 @@
 /**
  * Whatever it is given, runNetlist returns a value and never throws
- * (netlist.md, Errors: "Reading a netlist never throws anything but the
- * project's own error type"; runNetlist's own contract is stricter: it
- * returns values), and the command line never shows a stack trace (house
+ * (docs/netlist.md, Errors: "Reading never throws anything but railcheck's
+ * own error type, whatever the bytes"; runNetlist is stricter: it returns
+ * values, README, "Using it as a library"), and the command line never shows a stack trace (house
  * rule: a user never sees one). Inputs: random strings, random bytes
  * decoded as latin1 and as UTF-8, and random mutations of a valid stage.
  */

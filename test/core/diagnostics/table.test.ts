@@ -1,10 +1,10 @@
 /**
- * A table of broken netlists (shared/spec/netlist.md, Errors: "Every error
- * in a netlist names the file, the line and the column, quotes the line,
- * and says what was expected. A netlist with errors runs nothing."). Each
+ * A table of broken netlists (docs/netlist.md, Errors: "Every error names
+ * the file, line and column, quotes the line and says what was expected";
+ * "A netlist with errors runs nothing"). Each
  * case is written to a file and run twice: through runNetlistFile, and
  * through the command line `railcheck run FILE`, which must exit 2
- * (figures.md, Results) with `file:line:column`, the quoted line and,
+ * (docs/output.md, Exit status) with `file:line:column`, the quoted line and,
  * where the case says so, an `expected:` part on standard error.
  */
 import { join } from 'node:path';
@@ -26,7 +26,7 @@ interface Case {
   readonly expected?: RegExp;
 }
 
-/** netlist.md, Models: the diode parameters, which an unknown-parameter error must list. */
+/** docs/models.md, Diode: the diode parameters, which an unknown-parameter error must list (docs/netlist.md, Models). */
 const DIODE_PARAMS = ['IS', 'N', 'RS', 'BV', 'IBV', 'NBV', 'CJO', 'VJ', 'M', 'TT', 'EG', 'XTI', 'TBV', 'PMAX'];
 
 /** Deterministic "random" bytes (a linear congruential generator, Numerical Recipes constants). */

@@ -1,6 +1,6 @@
 /**
- * Subcircuit flattening, parameters and names (shared/spec/netlist.md:
- * Subcircuits, Numbers, Lines). Structure is checked on the flat circuit;
+ * Subcircuit flattening, parameters and names (docs/netlist.md:
+ * Subcircuits, Numbers and expressions, Lines). Structure is checked on the flat circuit;
  * where numbers are involved, the expected voltages and currents are worked
  * by hand from Ohm's law and the series/voltage-divider rule, never taken
  * from the engine. Circuits are invented bench-reference dividers.

@@ -1,20 +1,20 @@
 /**
  * Model binding, F/H control resolution and directive resolution
- * (shared/spec/netlist.md: Models, Elements, Analyses, Power-supply
- * directives). Model defaults are checked against the values netlist.md
- * lists, written out here from the contract text, not against the code's
- * parameter tables. Controlled-source results are worked by hand from
+ * (docs/netlist.md: Models, Elements, Analyses, Power-supply directives).
+ * Model defaults are checked against the values docs/models.md lists (the
+ * defaults of the published models), written out here, not against the
+ * code's parameter tables. Controlled-source results are worked by hand from
  * Ohm's law and the element definitions of netlist.md.
  */
 import { describe, expect, test } from 'vitest';
 import { element, elaborationErrors, flatten, solve } from './support.js';
 
-/** netlist.md, Models, "Diode:" — the defaults as the contract lists them (BV and PMAX: none). */
+/** docs/models.md, Diode, "Defaults:" (BV and PMAX: none). */
 const DIODE_DEFAULTS = {
   IS: 1e-14, N: 1, RS: 0, BV: undefined, IBV: 1e-3, NBV: 1, CJO: 0, VJ: 1, M: 0.5, TT: 0, EG: 1.11, XTI: 3, TBV: 0, PMAX: undefined,
 };
 
-/** netlist.md, Models, "Bipolar transistor:" — VAF, VAR and PMAX: none. */
+/** docs/models.md, Bipolar transistor, "Defaults:" (VAF, VAR and PMAX: none). */
 const BJT_DEFAULTS = {
   IS: 1e-16, BF: 100, BR: 1, NF: 1, NR: 1, VAF: undefined, VAR: undefined, RB: 0, RC: 0, RE: 0, CJE: 0, CJC: 0,
   VJE: 0.75, VJC: 0.75, MJE: 0.33, MJC: 0.33, TF: 0, TR: 0, EG: 1.11, XTI: 3, XTB: 0, PMAX: undefined,

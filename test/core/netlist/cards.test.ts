@@ -1,7 +1,7 @@
 /**
- * Every card kind of shared/spec/netlist.md reads into the expected AST, and
+ * Every card kind of docs/netlist.md reads into the expected AST, and
  * the line rules (title, comments, continuations, blank lines, .end, case)
- * hold. Expected values follow from the contract text and the suffix table;
+ * hold. Expected values follow from docs/netlist.md and its suffix table;
  * the circuits are invented demo stages.
  */
 import { describe, expect, test } from 'vitest';

@@ -1,5 +1,5 @@
 /**
- * Broken netlists (shared/spec/netlist.md, Errors): each is refused with a
+ * Broken netlists (docs/netlist.md, Errors): each is refused with a
  * diagnostic that names the file, line and column, quotes the line and says
  * what was expected; all mistakes in a file are reported in one read.
  */

@@ -1,6 +1,6 @@
 /**
  * fast-check generators of valid netlist ASTs (every card kind of
- * shared/spec/netlist.md, within the rules the reader enforces: unique
+ * docs/netlist.md, within the rules the reader enforces: unique
  * names per scope, non-zero resistors, increasing pwl times, one .supply,
  * limits only on figures asked for, run directives only at top level).
  */

@@ -1,5 +1,5 @@
 /**
- * `.include` (shared/spec/netlist.md, Includes): resolution relative to the
+ * `.include` (docs/netlist.md, Includes): resolution relative to the
  * including file, cycles shown, folder containment and the option that
  * lifts it. Files live in an in-memory map; paths are POSIX.
  */

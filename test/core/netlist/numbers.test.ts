@@ -1,6 +1,6 @@
 /**
  * Numbers with scale suffixes and ignored units. Source for every expected
- * value: the suffix table of shared/spec/netlist.md (Numbers), which follows
+ * value: the suffix table of docs/netlist.md (Numbers and expressions), which follows
  * the SI prefixes (BIPM, The International System of Units, 9th ed., table 7)
  * except that `meg` is mega and `m` is milli.
  */
@@ -118,7 +118,8 @@ describe('property: formatted numbers read back (netlist.md suffix table)', () =
         const expected = (g.sign === '-' ? -1 : 1) * Number(mantissa) * 10 ** ((g.exp ?? 0) + (g.suffix ? g.suffix[1] : 0));
         const got = parseScaledNumber(text);
         if (got === undefined) return false;
-        return Math.abs(got - expected) <= Math.abs(expected) * 1e-13;
+        // Worst observed 3.4e-16 relative over FC_SEED 20261201, 1–13 and 424242; bound 8.5e-16.
+        return Math.abs(got - expected) <= Math.abs(expected) * 8.5e-16;
       }),
       { seed, numRuns: 2000 },
     );

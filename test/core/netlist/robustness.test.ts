@@ -2,8 +2,8 @@
  * Whatever it is given, the reader returns a value (parseNetlist) or throws
  * only RailcheckError (parseNetlistOrThrow): random code units, random
  * bytes, netlist-flavoured token soup and random mutations of valid
- * netlists (shared/spec/netlist.md, Errors: "Reading a netlist never throws
- * anything but the project's own error type").
+ * netlists (docs/netlist.md, Errors: "Reading never throws anything but
+ * railcheck's own error type, whatever the bytes").
  */
 import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';

@@ -4,7 +4,7 @@
  * series RS, and the Ebers-Moll transport form with the Early factor
  * (Ebers and Moll 1954; Gummel and Poon 1970 for the Early term). CODATA
  * 2018 exact constants; every example runs at Tnom = 27 °C, so no
- * temperature scaling enters. Parameter defaults are those of netlist.md.
+ * temperature scaling enters. Parameter defaults are those of docs/models.md.
  * The root finder is plain bisection on doubles (it cannot diverge and it
  * runs to the last representable bracket, far tighter than any check).
  */
@@ -42,7 +42,7 @@ export function bisect(f: (x: number) => number, lo: number, hi: number): number
   return 0.5 * (lo + hi);
 }
 
-/** Diode parameters with the netlist.md defaults filled in. */
+/** Diode parameters with the docs/models.md defaults filled in. */
 export interface DiodeParams {
   readonly IS: number;
   readonly N: number;
@@ -52,7 +52,7 @@ export interface DiodeParams {
   readonly NBV: number;
 }
 
-/** Diode parameters from a model card (netlist.md defaults: IS 1e-14, N 1, RS 0, IBV 1e-3, NBV 1). */
+/** Diode parameters from a model card (docs/models.md defaults: IS 1e-14, N 1, RS 0, IBV 1e-3, NBV 1). */
 export function diodeParams(m: ReadonlyMap<string, number>): DiodeParams {
   return { IS: m.get('IS') ?? 1e-14, N: m.get('N') ?? 1, RS: m.get('RS') ?? 0, BV: m.get('BV'), IBV: m.get('IBV') ?? 1e-3, NBV: m.get('NBV') ?? 1 };
 }
@@ -72,7 +72,7 @@ export function diodeCurrent(p: DiodeParams, v: number): number {
   return (v - vj) / p.RS;
 }
 
-/** NPN parameters with the netlist.md defaults (IS 1e-16, BF 100, BR 1, NF 1, NR 1, no VAF/VAR, RB/RE 0). */
+/** NPN parameters with the docs/models.md defaults (IS 1e-16, BF 100, BR 1, NF 1, NR 1, no VAF/VAR, RB/RE 0). */
 export interface NpnParams {
   readonly IS: number;
   readonly BF: number;

@@ -80,7 +80,8 @@ describe('capacitance multiplier: DC figures against the independent solution', 
   });
 
   test('the line figure warns that it starts below the dropout input (a filter, not a regulator)', () => {
-    // figures.md: "If `from` lies below the dropout input, say so in a warning."
+    // docs/figures.md, line: "If `from` lies below the dropout input …, a warning says that the figure
+    // then describes a stage that is not regulating."
     const from = 0.9 * stage.vinNominal;
     expect(from).toBeLessThan(hand.dropout.vin);
     expect(report.warnings.some((w) => w.code === 'line-below-dropout')).toBe(true);
