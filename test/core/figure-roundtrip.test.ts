@@ -1,0 +1,45 @@
+/**
+ * The registry round trip: every value the figure registry lists for a kind
+ * of stage is accepted by the reader, measured on a stage of that kind, and
+ * printed by the text report (docs/figures.md is checked against the
+ * registry in figure-registry.test.ts). The stages are the examples, which
+ * between them ask for every figure on both kinds of stage.
+ */
+import { describe, expect, test } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { FIGURES, figureUnit, parseNetlist, runNetlist, type BenchKind } from '@railcheck/core';
+import { formatReport } from '@railcheck/cli';
+
+const example = (name: string): string => readFileSync(fileURLToPath(new URL(`../../examples/${name}`, import.meta.url)), 'utf8');
+/** The stages of each kind, with figure lines added before `.end` where an example does not ask for every figure. */
+const STAGES: Readonly<Record<BenchKind, ReadonlyArray<readonly [string, string]>>> = {
+  dc: [['sensor-rail-follower.cir', ''], ['railway-capacitance-multiplier.cir', '']],
+  'sine-fed': [['railway-transformer-follower.cir', '.figure sag depth=10% dur=40m\n']],
+};
+
+describe('every registered value is read, measured and printed', () => {
+  for (const bench of ['dc', 'sine-fed'] as const) {
+    test(`on a ${bench} stage`, () => {
+      const values = new Set<string>();
+      let text = '';
+      for (const [file, extra] of STAGES[bench]) {
+        const r = runNetlist(example(file).replace(/^\.end\b/im, `${extra}.end`), { file });
+        if (!r.ok) throw new Error(`${file}: ${r.errors.map((e) => e.message).join('; ')}`);
+        expect(r.report.figures?.bench).toBe(bench);
+        for (const name of Object.keys(r.report.figures!.values)) values.add(name);
+        text += formatReport(r.report);
+      }
+      const names = [...values];
+      for (const entry of FIGURES) {
+        if (figureUnit(entry.pattern ? 'pd.X' : entry.name, bench) === undefined) continue;
+        const found = entry.pattern ? names.filter((n) => n.startsWith('pd.')) : names.filter((n) => n === entry.name);
+        expect(found.length, `${entry.name} measured on a ${bench} stage`).toBeGreaterThan(0);
+        for (const n of found) expect(text, `${n} printed`).toContain(n);
+        // The reader accepts it in a .limit line.
+        const limit = parseNetlist(`t\nV1 a 0 1\nR1 a 0 1\n.supply in=V1 out=a\n.figure ${entry.kind}\n.limit ${found[0]} <= 1\n`);
+        expect(limit.ok ? [] : limit.errors.map((e) => e.message), `${found[0]} read`).toEqual([]);
+      }
+    });
+  }
+});
