@@ -47,12 +47,13 @@ describe('RC section', () => {
         expect(Math.abs(db((2 * amp) / attenuation(s) / value(figures, 'ripple.out_pp')))).toBeLessThan(0.004);
         // A linear stage must not raise the disagreement warning.
         expect(warnings.some((w) => w.code === 'ripple-disagree')).toBe(false);
-        // When (R∥RL)·C is under a third of a period, three cycles leave a transient below e^-9 of the
-        // ripple and 200 steps per cycle sample the peaks to 1 − cos(π/200) ≈ 1e-4 (1e-3 dB): worst observed
-        // 1.8e-4 dB over FC_SEED 20261201, 1–13 and 424242; bound 4.5e-4 dB.
+        // When (R∥RL)·C is under a third of a period, what is left of the start-up is below e^-9 of the
+        // ripple, and 200 steps per cycle sample each peak to within 1 − cos(π/200) ≈ 1.2e-4 of its value, so the
+        // p-p to about 2.1e-3 dB: worst observed 1.44e-3 dB (seed 873684229, τ at T/3) since the settled cycle is
+        // found by shooting and run from its own start; bound 3e-3 dB.
         if (par(s.r, s.rl) * s.c < 1 / (3 * s.freq)) {
           worstShort = Math.max(worstShort, diff);
-          expect(diff).toBeLessThan(4.5e-4);
+          expect(diff).toBeLessThan(3e-3);
         }
       }),
       { seed, numRuns: 40 },
