@@ -9,9 +9,9 @@
  */
 import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
 import { match } from 'ts-pattern';
-import { writeFileSync } from 'node:fs';
 import { isAbsolute, relative } from 'node:path';
 import { transientCsv } from './present/waves.js';
+import { refuseOutput, writeOutputFiles } from './present/files.js';
 import { realpathSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { flagHelp, parseArgs, type FlagSpec } from './args.js';
@@ -91,7 +91,7 @@ function printErrors(io: CliIo, errors: readonly Diagnostic[], warnings: readonl
   io.err(`railcheck: ${errors.length} error${errors.length === 1 ? '' : 's'}; nothing was run to completion`);
 }
 
-function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string | true>): number {
+function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string | true>, file: string): number {
   if (!result.ok) {
     printErrors(io, result.errors, result.warnings);
     return EXIT_ERROR;
@@ -99,7 +99,7 @@ function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string
   const steps = flags.has('steps');
   const csv = flags.get('csv');
   if (typeof csv === 'string') {
-    const written = writeCsv(io, result.report, csv, steps);
+    const written = writeCsv(io, result.report, csv, steps, file);
     if (written !== EXIT_OK) return written;
   }
   if (flags.has('json')) io.out(JSON.stringify(reportJson(result.report, steps), null, 2));
@@ -121,21 +121,29 @@ export function limitStatus(limits: readonly LimitResult[]): number {
   );
 }
 
-/** Writes the first transient to `path` and any further ones (other temperatures, other .tran lines) beside it. */
-function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean): number {
+/** The CSV file of transient `k`: the first at `path`, each further one numbered beside it (docs/output.md). */
+function csvName(path: string, k: number): string {
+  return k === 0 ? path : path.replace(/(\.csv)?$/i, `-${k + 1}$1`);
+}
+
+/**
+ * Writes the first transient to `path` and any further ones (other
+ * temperatures, other .tran lines) beside it: all of them or none, never
+ * over the netlist `file`.
+ */
+function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean, file: string): number {
   if (report.transients.length === 0) {
     io.err('railcheck run: --csv needs a .tran analysis in the netlist; none was run');
     return EXIT_ERROR;
   }
-  try {
-    report.transients.forEach((t, k) => {
-      const times = steps ? acceptedTimes(t) : t.times;
-      const nodes = steps ? sampleTrace(report.compiled, t.trace, times).nodes : t.nodes;
-      const file = k === 0 ? path : path.replace(/(\.csv)?$/i, `-${k + 1}$1`);
-      writeFileSync(file, transientCsv(times, nodes));
-    });
-  } catch (e) {
-    io.err(`railcheck run: cannot write ${path}: ${e instanceof Error ? e.message : String(e)}`);
+  const files = report.transients.map((t, k) => {
+    const times = steps ? acceptedTimes(t) : t.times;
+    const nodes = steps ? sampleTrace(report.compiled, t.trace, times).nodes : t.nodes;
+    return { path: csvName(path, k), text: transientCsv(times, nodes) };
+  });
+  const written = writeOutputFiles(files, file);
+  if (!written.ok) {
+    io.err(`railcheck run: --csv: ${written.message}`);
     return EXIT_ERROR;
   }
   return EXIT_OK;
@@ -163,8 +171,15 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
     return rel && !rel.startsWith('..') && !isAbsolute(rel) ? rel : demoPath();
   };
   const file = demo ? demoFile() : positionals[0]!;
+  const csv = flags.get('csv');
+  // Refused before the run, so a long simulation is not spent on an output that cannot be written.
+  const refused = typeof csv === 'string' ? refuseOutput(csv, file) : undefined;
+  if (refused) {
+    io.err(`railcheck run: --csv: ${refused}`);
+    return EXIT_ERROR;
+  }
   const result = runNetlistFile(file, { allowOutsideIncludes: flags.has('allow-outside-includes') });
-  return present(io, result, flags);
+  return present(io, result, flags, file);
 }
 
 /** Runs the command line `argv` (without `node` and the script); resolves to the exit status. */

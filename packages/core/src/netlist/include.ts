@@ -1,10 +1,13 @@
 /**
- * `.include "path"` (netlist.md, Includes): resolution relative to the
- * including file, cycle detection, and refusal of paths that leave the
- * including file's folder tree unless the caller allows them.
+ * `.include "path"` (netlist.md, Includes) and the reading of netlist files:
+ * resolution relative to the including file, cycle detection, refusal of
+ * paths whose real location (symbolic links followed) leaves the including
+ * file's folder tree unless the caller allows them, refusal of anything
+ * that is not a regular file, and a cap on the bytes read from each file.
  */
-import { readFileSync } from 'node:fs';
+import { closeSync, constants, fstatSync, openSync, readSync, realpathSync } from 'node:fs';
 import { dirname, isAbsolute, join, normalize, relative, resolve, sep } from 'node:path';
+import { match } from 'ts-pattern';
 import type { Cursor } from './cursor.js';
 import type { Token } from './lexer.js';
 
@@ -12,35 +15,147 @@ import type { Token } from './lexer.js';
 export interface IncludeFrame {
   /** As shown in messages: the top file's name as given, includes joined onto it. */
   readonly display: string;
-  /** Absolute, normalised path, used to resolve includes and detect cycles. */
+  /** Absolute, normalised path as written (links not followed), used to resolve includes. */
   readonly abs: string;
+  /** Identity of the file for cycle detection: its real path on disk, `abs` for a caller-supplied reader. */
+  readonly key: string;
 }
 
 /** Deepest chain of includes accepted (a guard against runaway generated files). */
 export const MAX_INCLUDE_DEPTH = 32;
 
-/** Reads a file as UTF-8; undefined when it cannot be read (missing, a folder, no permission). */
-export function defaultReadFile(absolutePath: string): string | undefined {
+/**
+ * Most bytes read from one netlist or included file on disk (16 MiB); a
+ * larger file is refused before its text is decoded. The cap also bounds
+ * files whose size the file system does not report (it is counted while
+ * reading, not taken from the size on record).
+ */
+export const MAX_FILE_BYTES = 16 * 1024 * 1024;
+
+/** Why a file was not read. */
+export type ReadRefusal =
+  | { readonly kind: 'unreadable'; readonly detail: string }
+  | { readonly kind: 'not-regular'; readonly detail: string }
+  | { readonly kind: 'too-large'; readonly bytes: number };
+
+/** The outcome of reading one file: its text, or why it was refused. */
+export type ReadOutcome = { readonly kind: 'text'; readonly text: string } | { readonly kind: 'refused'; readonly refusal: ReadRefusal };
+
+/** How the reader reaches files: the disk, or a caller's own reader. */
+export interface FileSource {
+  /** Real path of an absolute path (symbolic links resolved), or the path itself when it cannot be resolved. */
+  readonly realPath: (absolutePath: string) => string;
+  /** Reads a file whole. */
+  readonly read: (absolutePath: string) => ReadOutcome;
+}
+
+function realOrSelf(p: string): string {
   try {
-    return readFileSync(absolutePath, 'utf8');
+    return realpathSync(p);
   } catch {
-    return undefined;
+    return p;
   }
 }
 
+/** What a node:fs error says, for messages ("no such file or directory", "permission denied", ...). */
+function describeFsError(e: unknown): string {
+  const code = typeof e === 'object' && e !== null && 'code' in e ? String((e as { code: unknown }).code) : '';
+  const known: Record<string, string> = { ENOENT: 'no such file', EACCES: 'permission denied', EISDIR: 'a folder', ELOOP: 'too many levels of symbolic links' };
+  return known[code] ?? (e instanceof Error ? e.message : String(e));
+}
+
+/** Names the kind of a non-regular file from its status. */
+function fileKind(st: ReturnType<typeof fstatSync>): string {
+  if (st.isDirectory()) return 'a folder';
+  if (st.isCharacterDevice()) return 'a character device';
+  if (st.isBlockDevice()) return 'a block device';
+  if (st.isFIFO()) return 'a named pipe';
+  if (st.isSocket()) return 'a socket';
+  return 'not a regular file';
+}
+
+/**
+ * Reads a regular file from disk as UTF-8, at most {@link MAX_FILE_BYTES}
+ * bytes. The file is opened without blocking (a named pipe with no writer
+ * would otherwise wait for ever) and its status taken from the open
+ * descriptor, so what is checked is what is read.
+ */
+export function readDiskFile(absolutePath: string): ReadOutcome {
+  const refused = (refusal: ReadRefusal): ReadOutcome => ({ kind: 'refused', refusal });
+  let fd: number;
+  try {
+    fd = openSync(absolutePath, constants.O_RDONLY | (constants.O_NONBLOCK ?? 0));
+  } catch (e) {
+    return refused({ kind: 'unreadable', detail: describeFsError(e) });
+  }
+  try {
+    const st = fstatSync(fd);
+    if (!st.isFile()) return refused({ kind: 'not-regular', detail: fileKind(st) });
+    if (st.size > MAX_FILE_BYTES) return refused({ kind: 'too-large', bytes: st.size });
+    const chunks: Buffer[] = [];
+    let total = 0;
+    for (;;) {
+      const buf = Buffer.allocUnsafe(Math.min(1024 * 1024, MAX_FILE_BYTES + 1 - total));
+      const n = readSync(fd, buf, 0, buf.length, null);
+      if (n === 0) break;
+      chunks.push(buf.subarray(0, n));
+      total += n;
+      if (total > MAX_FILE_BYTES) return refused({ kind: 'too-large', bytes: total });
+    }
+    return { kind: 'text', text: Buffer.concat(chunks, total).toString('utf8') };
+  } catch (e) {
+    return refused({ kind: 'unreadable', detail: describeFsError(e) });
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/** The disk: real paths through fs.realpathSync, files through {@link readDiskFile}. */
+export const DISK: FileSource = { realPath: realOrSelf, read: readDiskFile };
+
+/**
+ * A caller's reader (`ParseOptions.readFile`) as a source: paths are taken
+ * as they are (there are no links to follow), undefined or a throw is an
+ * unreadable file.
+ */
+export function callerSource(readFile: (absolutePath: string) => string | undefined): FileSource {
+  return {
+    realPath: (p) => p,
+    read: (p) => {
+      let text: string | undefined;
+      try {
+        text = readFile(p);
+      } catch {
+        text = undefined;
+      }
+      return typeof text === 'string' ? { kind: 'text', text } : { kind: 'refused', refusal: { kind: 'unreadable', detail: 'the reader returned nothing' } };
+    },
+  };
+}
+
+/** The reason of a refusal, for messages, and the diagnostic code suffix. */
+export function describeRefusal(r: ReadRefusal): { suffix: string; reason: string } {
+  return match(r)
+    .with({ kind: 'unreadable' }, (x) => ({ suffix: 'unreadable', reason: `cannot be read (${x.detail})` }))
+    .with({ kind: 'not-regular' }, (x) => ({ suffix: 'not-regular', reason: `is not a regular file (${x.detail})` }))
+    .with({ kind: 'too-large' }, (x) => ({ suffix: 'too-large', reason: `is larger than the ${MAX_FILE_BYTES} bytes read from one file (${x.bytes} bytes or more)` }))
+    .exhaustive();
+}
+
 /** The frame of the top file. */
-export function topFrame(file: string): IncludeFrame {
-  return { display: file, abs: resolve(file) };
+export function topFrame(file: string, source: FileSource): IncludeFrame {
+  const abs = resolve(file);
+  return { display: file, abs, key: source.realPath(abs) };
 }
 
 /** What an include needs from the reader's state. */
 interface IncludeState {
-  readonly readFile: (absolutePath: string) => string | undefined;
+  readonly source: FileSource;
   readonly allowOutsideIncludes: boolean;
   readonly stack: readonly IncludeFrame[];
 }
 
-/** True when `abs` lies inside the folder `dir` (lexically; links are not followed). */
+/** True when `abs` lies inside the folder `dir` (compared as given; callers pass real paths). */
 function inside(dir: string, abs: string): boolean {
   const rel = relative(dir, abs);
   return rel !== '..' && !rel.startsWith(`..${sep}`) && !isAbsolute(rel);
@@ -48,7 +163,10 @@ function inside(dir: string, abs: string): boolean {
 
 /**
  * Resolves an include against the file being read and reads it; aborts the
- * card (through `c`) on a refused path, a cycle or an unreadable file.
+ * card (through `c`) on a refused path, a cycle, a file that is not a
+ * regular file, one too large, or one that cannot be read. Containment is
+ * judged on real paths: the target with its links followed must lie in the
+ * real folder the include is resolved against.
  */
 export function resolveInclude(ctx: IncludeState, c: Cursor, path: string, at: Token): IncludeFrame & { text: string } {
   const including = ctx.stack[ctx.stack.length - 1];
@@ -56,21 +174,37 @@ export function resolveInclude(ctx: IncludeState, c: Cursor, path: string, at: T
   const dir = dirname(including.abs);
   const abs = resolve(dir, path);
   const display = isAbsolute(path) ? normalize(path) : join(dirname(including.display), path);
-  if (!ctx.allowOutsideIncludes && !inside(dir, abs)) {
-    c.fail('include-outside', `"${path}" leaves the folder of ${including.display}; includes outside it are refused unless the caller allows them`, at, `a path inside ${dir}`);
+  const real = ctx.source.realPath(abs);
+  if (!ctx.allowOutsideIncludes) {
+    const realDir = ctx.source.realPath(dir);
+    if (!inside(dir, abs)) {
+      c.fail('include-outside', `"${path}" leaves the folder of ${including.display}; includes outside it are refused unless the caller allows them`, at, `a path inside ${dir}`);
+    }
+    if (!inside(realDir, real)) {
+      c.fail('include-outside', `"${path}" is a link to ${real}, outside the folder of ${including.display}; includes outside it are refused unless the caller allows them`, at, `a path whose real location is inside ${realDir}`);
+    }
   }
-  const seen = ctx.stack.findIndex((f) => f.abs === abs);
+  const seen = ctx.stack.findIndex((f) => f.key === real);
   if (seen >= 0) {
     const cycle = [...ctx.stack.slice(seen).map((f) => f.display), display].join(' → ');
     c.fail('include-cycle', `include cycle: ${cycle}`, at, 'includes that do not lead back to a file being read');
   }
   if (ctx.stack.length >= MAX_INCLUDE_DEPTH) c.fail('include-too-deep', `includes nest more than ${MAX_INCLUDE_DEPTH} deep`, at, 'fewer nested includes');
-  let text: string | undefined;
-  try {
-    text = ctx.readFile(abs);
-  } catch {
-    text = undefined;
+  const got = ctx.source.read(abs);
+  if (got.kind === 'refused') {
+    const { suffix, reason } = describeRefusal(got.refusal);
+    c.fail(`include-${suffix}`, `the included file ${display} (${real}) ${reason}`, at, `an existing, readable regular file of at most ${MAX_FILE_BYTES} bytes`);
   }
-  if (typeof text !== 'string') c.fail('include-unreadable', `cannot read the included file ${display} (${abs})`, at, 'an existing, readable file');
-  return { display, abs, text };
+  return { display, abs, key: real, text: got.text };
+}
+
+/**
+ * Reads the top netlist file through `source`: its text, or the
+ * diagnostic fields of the refusal (code `file-…`, located at no line).
+ */
+export function readTopFile(path: string, source: FileSource): { ok: true; text: string } | { ok: false; code: string; message: string; expected: string } {
+  const got = source.read(resolve(path));
+  if (got.kind === 'text') return { ok: true, text: got.text };
+  const { suffix, reason } = describeRefusal(got.refusal);
+  return { ok: false, code: `file-${suffix}`, message: `the netlist file ${path} ${reason}`, expected: `an existing, readable regular file of at most ${MAX_FILE_BYTES} bytes` };
 }

@@ -12,7 +12,7 @@ import { RailcheckError, errorAt, warningAt } from '../errors.js';
 import type { Netlist } from './ast.js';
 import { checkNetlist } from './checks.js';
 import { Cursor } from './cursor.js';
-import { defaultReadFile, topFrame } from './include.js';
+import { DISK, callerSource, readTopFile, topFrame } from './include.js';
 import { tokenize } from './lexer.js';
 import { ELEMENT_LETTERS, parseElement } from './parse-elements.js';
 import { DIRECTIVES, addError, checkSize, readCards } from './reader.js';
@@ -25,13 +25,16 @@ export { printNetlist, printValue } from './print.js';
 export { figureKindOf, FIGURE_KINDS } from './parse-supply.js';
 export { TRAN_FLAGS } from './parse-directives.js';
 export { MAX_ERRORS, MAX_INPUT_LENGTH, MAX_SUBCKT_NESTING } from './reader.js';
-export { MAX_INCLUDE_DEPTH } from './include.js';
+export { MAX_FILE_BYTES, MAX_INCLUDE_DEPTH } from './include.js';
 
 /** How to read a netlist. */
 export interface ParseOptions {
   /** File name used in diagnostics and as the base for includes; default '<input>' (includes then resolve against the working folder). */
   file?: string;
-  /** Reads an included file (absolute path) → its text, or undefined if missing. Default: node:fs readFileSync (utf8). */
+  /**
+   * Reads an included file (absolute path) → its text, or undefined if missing. Default: the disk, where
+   * links are followed for the folder check, only regular files are read, and at most MAX_FILE_BYTES of each.
+   */
   readFile?: (absolutePath: string) => string | undefined;
   /** Allow .include paths that leave the including file's folder tree. Default false. */
   allowOutsideIncludes?: boolean;
@@ -66,8 +69,9 @@ function looksLikeCard(title: string, file: string): boolean {
 
 function parseInner(text: string, options: ParseOptions): ParseResult {
   const file = options.file ?? '<input>';
+  const source = options.readFile ? callerSource(options.readFile) : DISK;
   const ctx: ReadContext = {
-    readFile: options.readFile ?? defaultReadFile,
+    source,
     allowOutsideIncludes: options.allowOutsideIncludes === true,
     errors: [],
     warnings: [],
@@ -79,7 +83,7 @@ function parseInner(text: string, options: ParseOptions): ParseResult {
   }
   if (!checkSize(ctx, text, file)) return { ok: false, errors: ctx.errors, warnings: ctx.warnings };
   const body = text.startsWith('\ufeff') ? text.slice(1) : text;
-  const { title, cards } = readCards(ctx, body, topFrame(file), true);
+  const { title, cards } = readCards(ctx, body, topFrame(file, source), true);
   if (title !== undefined && looksLikeCard(title, file)) {
     ctx.warnings.push(warningAt('title-looks-like-card', 'line 1 is always the title; this one looks like an element or directive and was read as the title only', { file, line: 1, column: 1 }, title));
   }
@@ -112,19 +116,12 @@ export function parseNetlistOrThrow(text: string, options: ParseOptions = {}): {
 }
 
 /**
- * Reads a netlist file (UTF-8) with `options.readFile` or node:fs. An
- * unreadable file is an ok:false result, not an exception.
+ * Reads a netlist file (UTF-8) with `options.readFile` or from disk (a
+ * regular file of at most MAX_FILE_BYTES bytes). An unreadable or refused
+ * file is an ok:false result, not an exception.
  */
 export function readNetlistFile(path: string, options: Omit<ParseOptions, 'file'> = {}): ParseResult {
-  const read = options.readFile ?? defaultReadFile;
-  let text: string | undefined;
-  try {
-    text = read(topFrame(path).abs);
-  } catch {
-    text = undefined;
-  }
-  if (typeof text !== 'string') {
-    return { ok: false, errors: [errorAt('file-unreadable', `cannot read the netlist file ${path}`, undefined, undefined, 'an existing, readable text file')], warnings: [] };
-  }
-  return parseNetlist(text, { ...options, file: path });
+  const top = readTopFile(path, options.readFile ? callerSource(options.readFile) : DISK);
+  if (!top.ok) return { ok: false, errors: [errorAt(top.code, top.message, undefined, undefined, top.expected)], warnings: [] };
+  return parseNetlist(top.text, { ...options, file: path });
 }

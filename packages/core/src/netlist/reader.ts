@@ -8,7 +8,7 @@ import { errorAt } from '../errors.js';
 import type { Card, CardOrigin } from './ast.js';
 import { CardAbort, Cursor } from './cursor.js';
 import { resolveInclude } from './include.js';
-import type { IncludeFrame } from './include.js';
+import type { FileSource, IncludeFrame } from './include.js';
 import type { LogicalLine } from './lexer.js';
 import { splitLines, tokenize } from './lexer.js';
 import { parseElement } from './parse-elements.js';
@@ -30,7 +30,8 @@ export const DIRECTIVES: readonly string[] = [
 
 /** State shared by a file and everything it includes. */
 export interface ReadContext {
-  readonly readFile: (absolutePath: string) => string | undefined;
+  /** Where files come from: the disk, or the caller's reader. */
+  readonly source: FileSource;
   readonly allowOutsideIncludes: boolean;
   readonly errors: Diagnostic[];
   readonly warnings: Diagnostic[];

@@ -1,0 +1,104 @@
+/**
+ * Output files of the command (docs/output.md, "Output files"): a set of
+ * files written whole or not at all. Every file's text is ready before
+ * any is touched; each goes to a temporary name in its own folder and is
+ * renamed into place (a rename within one folder replaces the old file in
+ * one step on POSIX file systems, rename(2)), so a failed or interrupted
+ * run never leaves a truncated file under the name asked for. A target
+ * that is the netlist itself, or is not a regular file, is refused.
+ */
+import { lstatSync, realpathSync, renameSync, statSync, unlinkSync, writeFileSync } from 'node:fs';
+import { basename, dirname, join, resolve } from 'node:path';
+
+/** One file to write: where, and its whole text. */
+export interface OutputFile {
+  /** The path as the user gave it (or derived from it), for messages. */
+  readonly path: string;
+  /** Its complete contents (UTF-8). */
+  readonly text: string;
+}
+
+/** The outcome of writing a set: done, or why nothing (or, after a failed rename, not all) was written. */
+export type WriteOutcome = { readonly ok: true } | { readonly ok: false; readonly message: string };
+
+/** Real path of `p`; for a file that does not exist yet, its real folder joined with its name. */
+function realTarget(p: string): string {
+  const abs = resolve(p);
+  try {
+    return realpathSync(abs);
+  } catch {
+    try {
+      return join(realpathSync(dirname(abs)), basename(abs));
+    } catch {
+      return abs;
+    }
+  }
+}
+
+/**
+ * Why `path` may not be written over, or undefined when it may: it is the
+ * netlist `protect` (compared on real paths, so a link or another spelling
+ * of the netlist's name is caught), or it exists and is not a regular file.
+ */
+export function refuseOutput(path: string, protect: string): string | undefined {
+  const target = realTarget(path);
+  if (target === realTarget(protect)) return `${path} is the netlist ${protect}; choose another name for the output`;
+  try {
+    if (!statSync(target).isFile()) return `${path} exists and is not a regular file`;
+  } catch {
+    // Does not exist yet: fine.
+  }
+  return undefined;
+}
+
+/** A temporary name beside `real`, hidden and unlikely to clash. */
+function temporaryName(real: string, k: number): string {
+  return join(dirname(real), `.${basename(real)}.railcheck-${process.pid}-${Date.now().toString(36)}-${k}.tmp`);
+}
+
+function removeQuietly(p: string): void {
+  try {
+    if (lstatSync(p).isFile()) unlinkSync(p);
+  } catch {
+    // Already gone.
+  }
+}
+
+/**
+ * Writes every file of `files`, or none: each is refused when
+ * {@link refuseOutput} objects (against the netlist `protect`), then
+ * written in full to a temporary name beside its target, and only when all
+ * are written are they renamed into place. A link as target is followed:
+ * the file it points to is replaced, the link stays.
+ */
+export function writeOutputFiles(files: readonly OutputFile[], protect: string): WriteOutcome {
+  for (const f of files) {
+    const why = refuseOutput(f.path, protect);
+    if (why) return { ok: false, message: why };
+  }
+  const staged: Array<{ path: string; real: string; temp: string }> = [];
+  const discard = (): void => {
+    for (const s of staged) removeQuietly(s.temp);
+  };
+  for (const [k, f] of files.entries()) {
+    const real = realTarget(f.path);
+    const temp = temporaryName(real, k);
+    try {
+      staged.push({ path: f.path, real, temp });
+      writeFileSync(temp, f.text, { flag: 'wx' });
+    } catch (e) {
+      discard();
+      return { ok: false, message: `cannot write ${f.path}: ${e instanceof Error ? e.message : String(e)}; no output file was written` };
+    }
+  }
+  for (const [k, s] of staged.entries()) {
+    try {
+      renameSync(s.temp, s.real);
+    } catch (e) {
+      for (const rest of staged.slice(k)) removeQuietly(rest.temp);
+      const done = staged.slice(0, k).map((d) => d.path);
+      return { ok: false, message: `cannot put ${s.path} in place: ${e instanceof Error ? e.message : String(e)}${done.length ? `; already written: ${done.join(', ')}` : '; no output file was written'}` };
+    }
+  }
+  return { ok: true };
+}
