@@ -2,7 +2,7 @@
  * Data flows one way through core (docs/engine.md; the parse → elaborate →
  * compile → analyse → measure → present pipeline of circuit simulators):
  * netlist → elaborate → engine → analysis → measure → pipeline, with the
- * top-level shared files (errors.ts, units.ts, figure-registry.ts) below
+ * top-level shared files (errors.ts, units.ts, figure-registry.ts, budgets.ts) below
  * them all and the barrel index.ts above. Reads the import and re-export
  * statements of every source file and fails on an import that points
  * upward, on a cycle between files of core, and on a package that imports
@@ -19,7 +19,7 @@ const coreSrc = join(root, 'packages/core/src');
 /** Layers of core from the lowest; a file may import its own layer and those below. */
 const LAYERS = ['shared', 'netlist', 'elaborate', 'engine', 'analysis', 'measure', 'pipeline', 'barrel'] as const;
 type Layer = (typeof LAYERS)[number];
-const SHARED_FILES = ['errors.ts', 'units.ts', 'figure-registry.ts'];
+const SHARED_FILES = ['errors.ts', 'units.ts', 'figure-registry.ts', 'budgets.ts'];
 
 function sourceFiles(dir: string): string[] {
   return readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? sourceFiles(join(dir, e.name)) : e.name.endsWith('.ts') ? [join(dir, e.name)] : []));

@@ -8,6 +8,7 @@ import type { FlatAnalysis, FlatCircuit, FlatElement, FlatFigure, FlatLimit, Fla
 import { GROUND_KEY } from './flat.js';
 import type { Evaluator } from './evaluate.js';
 import type { Scope } from './scope.js';
+import { MAX_AC_POINTS, MAX_DC_POINTS, MAX_TRAN_GRID_POINTS } from '../budgets.js';
 
 /** The directive part of a flat circuit. */
 export type ResolvedDirectives = Pick<FlatCircuit, 'analyses' | 'temperatures' | 'supply' | 'figures' | 'limits' | 'spreads'>;
@@ -44,8 +45,9 @@ export function resolveDirectives(
           ev.fail(c, 'bad-sweep', `.dc step ${step} does not lead from ${start} to ${stop}`, 'a non-zero step with the sign of (stop − start)');
           return;
         }
-        if (Math.abs((stop - start) / step) > 1e6) {
-          ev.fail(c, 'bad-sweep', `.dc sweep has more than a million points`, 'a larger step');
+        const dcPoints = Math.abs((stop - start) / step) + 1;
+        if (dcPoints > MAX_DC_POINTS) {
+          ev.fail(c, 'budget-dc-points', `.dc sweep has ${dcPoints.toPrecision(3)} points, over the budget MAX_DC_POINTS = ${MAX_DC_POINTS}`, 'a larger step');
           return;
         }
         flat.push({ kind: 'dc', origin: c, source: src.key, start, stop, step });
@@ -54,6 +56,10 @@ export function resolveDirectives(
         const tstep = num(c.tstep);
         const tstop = num(c.tstop);
         if (!(tstep > 0) || !(tstop > 0)) ev.fail(c, 'bad-tran', `.tran needs a positive step and stop time (got ${tstep} and ${tstop})`, 'tstep > 0 and tstop > 0');
+        else {
+          const grid = (tstop - (c.tstart ? num(c.tstart) : 0)) / tstep + 1;
+          if (grid > MAX_TRAN_GRID_POINTS) ev.fail(c, 'budget-tran-points', `.tran has ${grid.toPrecision(3)} output points (tstop/tstep), over the budget MAX_TRAN_GRID_POINTS = ${MAX_TRAN_GRID_POINTS}`, 'a larger tstep');
+        }
         flat.push({ kind: 'tran', origin: c, tstep, tstop, tstart: c.tstart ? num(c.tstart) : 0, tmax: c.tmax ? num(c.tmax) : undefined, flags: c.flags.map((f) => f.toLowerCase()) });
       })
       .with({ kind: 'ac' }, (c) => {
@@ -62,6 +68,10 @@ export function resolveDirectives(
         const fstop = num(c.fstop);
         const startOk = c.variation === 'lin' ? fstart >= 0 : fstart > 0;
         if (!(points >= 1) || !startOk || !(fstop >= fstart)) ev.fail(c, 'bad-ac', `.ac needs points ≥ 1 and ${c.variation === 'lin' ? '0 ≤' : '0 <'} fstart ≤ fstop`, 'e.g. .ac dec 20 1 100k or .ac lin 101 0 10k');
+        else {
+          const total = c.variation === 'lin' ? points : points * Math.log10(fstop / fstart) + 2;
+          if (!(total <= MAX_AC_POINTS)) ev.fail(c, 'budget-ac-points', `.ac asks for ${total.toPrecision(3)} frequency points, over the budget MAX_AC_POINTS = ${MAX_AC_POINTS}`, 'fewer points');
+        }
         flat.push({ kind: 'ac', origin: c, variation: c.variation, points: Math.round(points), fstart, fstop });
       })
       .with({ kind: 'temp' }, (c) => {

@@ -10,6 +10,7 @@ import {
   type BranchRef, type Device, type DeviceEntry, type DeviceKind, type DeviceSpecs, type IndependentSource, type SlotBinder, type UnknownAllocator,
 } from '@railcheck/devices';
 import { errorAt, type Diagnostic } from '../errors.js';
+import { MAX_UNKNOWNS } from '../budgets.js';
 import type { FlatCircuit, FlatElement, FlatElementOf } from '../elaborate/flat.js';
 import { GROUND_KEY } from '../elaborate/flat.js';
 import { createWorkspace, type Workspace } from './workspace.js';
@@ -112,6 +113,11 @@ export function compileCircuit(flat: FlatCircuit): CompileResult {
   }
   // A failed look-up leaves a device without its indices: stop before any slot is bound.
   if (errors.length > 0) return { ok: false, errors };
+  if (unknowns.length - 1 > MAX_UNKNOWNS) {
+    // Located at the last element of the netlist: the circuit as a whole is over the budget.
+    const first = flat.elements[flat.elements.length - 1]?.origin;
+    return { ok: false, errors: [errorAt('budget-unknowns', `the circuit has ${unknowns.length - 1} unknowns, over the budget MAX_UNKNOWNS = ${MAX_UNKNOWNS} of the dense solver`, first?.pos, first?.lineText, 'a smaller circuit')] };
+  }
   const ws = createWorkspace(unknowns.length - 1, stateSize);
   const binder: SlotBinder = { slot: (row, col) => row * ws.size + col };
   for (const d of devices) d.bind(binder);
