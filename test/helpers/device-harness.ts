@@ -95,6 +95,7 @@ export class DeviceHarness {
       mode: 'dc',
       sourceScale: 1,
       gmin: opts.gmin ?? 0,
+      junctionCmin: 0,
       time: 0,
       initJunctions: false,
       limited: false,

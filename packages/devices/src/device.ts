@@ -87,6 +87,11 @@ export interface LoadContext {
   sourceScale: number;
   /** Conductance in siemens placed across each junction (gmin stepping; 1e-12 S in the final solution). */
   gmin: number;
+  /**
+   * Capacitance in farads a diode with CJO = 0 places across its junction
+   * (0 except in a `.tran` analysis, which sets JUNCTION_CMIN; docs/transient.md).
+   */
+  junctionCmin: number;
   /** Simulation time in seconds (0 at DC). */
   time: number;
   /** True on the first Newton iteration of an analysis: junctions start from their critical voltage. */

@@ -170,18 +170,22 @@ class DiodeImpl implements Diode {
     this.junction.add(ctx.matrix, cur.g + ctx.gmin);
     injectPair(ctx.rhs, this.ja, k, cur.i - cur.g * vd);
     if (this.ja !== this.nodes[0]) this.series.add(ctx.matrix, 1 / this.scaled.RS);
-    if (this.hasCharge) this.loadCharge(ctx, vd);
+    const cmin = this.model.CJO === 0 ? ctx.junctionCmin : 0;
+    if (this.hasCharge || cmin > 0) this.loadCharge(ctx, vd, cmin);
   }
 
-  private loadCharge(ctx: LoadContext, vd: number): void {
+  /** Charge of the junction; `cmin` (F) is the transient-only minimum capacitance (docs/transient.md). */
+  private loadCharge(ctx: LoadContext, vd: number, cmin: number): void {
     const off = this.chargeOff;
     evalDiodeCharge(vd, this.scaled, this.cur, this.chg);
-    ctx.state[off] = this.chg.q;
+    // The minimum capacitance's charge is recorded at the initial DC point too, so the first
+    // step starts from a consistent charge and sees no spurious current.
+    ctx.state[off] = this.chg.q + cmin * vd;
     if (ctx.mode === 'dc') {
       ctx.state[off + 1] = 0;
       return;
     }
-    ctx.integrate(off, this.chg.c);
+    ctx.integrate(off, this.chg.c + cmin);
     const g = ctx.chargeConductance;
     this.junction.add(ctx.matrix, g);
     injectPair(ctx.rhs, this.ja, this.nodes[1], ctx.chargeCurrent - g * vd);
@@ -203,7 +207,7 @@ class DiodeImpl implements Diode {
     const [a, k] = this.nodes;
     const cur = { i: 0, g: 0 };
     evalDiode(at(x, this.ja) - at(x, k), this.scaled, this.vt, cur);
-    const i = cur.i + (this.hasCharge ? (state[this.chargeOff + 1] ?? 0) : 0);
+    const i = cur.i + (state[this.chargeOff + 1] ?? 0);
     return { currents: [['', i]], power: (at(x, a) - at(x, k)) * i };
   }
 }

@@ -4,7 +4,7 @@
  * with the engine contract they implement.
  */
 
-export { BOLTZMANN, CHARGE, TNOM, ZERO_CELSIUS, thermalVoltage } from './constants.js';
+export { BOLTZMANN, CHARGE, JUNCTION_CMIN, TNOM, ZERO_CELSIUS, thermalVoltage } from './constants.js';
 export { GROUND } from './device.js';
 export type {
   BranchRef,

@@ -4,6 +4,7 @@
  * linear interpolation between accepted points), the accepted points
  * themselves, and the stepper's counters.
  */
+import { JUNCTION_CMIN } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CardOrigin } from '../netlist/ast.js';
 import type { CompiledCircuit } from '../engine/compile.js';
@@ -79,13 +80,23 @@ export function acceptedTimes(r: TransientResult): number[] {
   return Array.from(r.trace.times.subarray(0, r.trace.count)).filter((t) => t >= start);
 }
 
+/**
+ * What a failed step most likely means, naming the least-settled unknowns:
+ * a node held by little more than gmin (1e-12 S) while a junction with no
+ * capacitance switches (docs/transient.md), then the rarer causes.
+ */
+function stepHint(names: readonly string[]): string {
+  const at = names.length > 0 ? `${names.join(', ')}` : 'a node';
+  return `${at} held by little more than gmin (1e-12 S) while a junction with no capacitance switches (a floating node between transistor junctions, or a diode string with no DC path); give the node a DC path (a winding resistance or bleeder) or the junctions a capacitance (CJO, CJE/CJC); else look for switching with no series resistance or a source edge of zero duration`;
+}
+
 /** Runs a transient at the present temperature; throws RailcheckError when it cannot complete. */
 export function transient(c: CompiledCircuit, temperature: number, req: TransientRequest, origin?: CardOrigin): TransientResult {
-  const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc });
+  const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc, junctionCmin: JUNCTION_CMIN });
   if (!outcome.ok) {
     const where = outcome.reason === 'initial-point' ? 'at its initial point' : `at t = ${formatSI(outcome.time, 's')}: the time step fell below its floor`;
     const worst = outcome.stragglers.map((s) => `${s.name} = ${formatSI(s.value, '')} (last update ${formatSI(s.update, '')})`).join('; ');
-    throw new RailcheckError([errorAt('transient-failed', `transient at ${temperature} °C failed ${where}${worst ? `. Least settled: ${worst}` : ''}`, origin?.pos, origin?.lineText, 'a circuit whose waveforms stay finite; look for switching with no series resistance, or a source edge of zero duration')]);
+    throw new RailcheckError([errorAt('transient-failed', `transient at ${temperature} °C failed ${where}${worst ? `. Least settled: ${worst}` : ''}`, origin?.pos, origin?.lineText, stepHint(outcome.stragglers.map((st) => st.name)))]);
   }
   const grid = outputGrid(req.tstep, req.tstart, req.tstop);
   const { nodes, branches } = sampleTrace(c, outcome.trace, grid);

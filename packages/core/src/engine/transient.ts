@@ -77,6 +77,13 @@ export interface TransientOptions {
    * Newton iteration fails is approached in smaller steps.
    */
   readonly replayTimes?: Float64Array;
+  /**
+   * Capacitance in farads placed across every diode junction whose model has
+   * CJO = 0 (default 0). The `.tran` analysis passes JUNCTION_CMIN so that a
+   * bridge of default diodes on a floating secondary can be followed; the
+   * figure benches keep 0 (docs/transient.md, "Minimum junction capacitance").
+   */
+  readonly junctionCmin?: number;
 }
 
 /** Counters of one run. */
@@ -188,6 +195,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     // Initial point.
     ctx.gmin = FINAL_GMIN;
     ctx.sourceScale = 1;
+    ctx.junctionCmin = opts.junctionCmin ?? 0;
     if (opts.fromIc) {
       // A backward-Euler step of vanishing length from the ic= state: capacitors act as
       // voltage sources at their ic (0 if absent), inductors as current sources.
@@ -313,6 +321,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
   } finally {
     sources.forEach((s, i) => (s.defaultEdge = savedEdges[i]!));
     ctx.mode = 'dc';
+    ctx.junctionCmin = 0;
     ctx.time = 0;
     ctx.coefficients.a0 = 0;
     ctx.coefficients.a1 = 0;

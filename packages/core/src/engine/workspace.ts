@@ -12,6 +12,7 @@ class EngineLoadContext implements LoadContext {
   mode: LoadMode = 'dc';
   sourceScale = 1;
   gmin = 0;
+  junctionCmin = 0;
   time = 0;
   initJunctions = false;
   limited = false;
