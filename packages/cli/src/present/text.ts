@@ -14,6 +14,26 @@ const METHOD_WORDS: Readonly<Record<OperatingPoint['method'], string>> = {
   'newton-after-stepping': 'Newton at full sources from the last point source stepping reached (plain Newton, gmin and source stepping did not converge)',
 };
 
+/**
+ * Each element's current (a transistor's three terminals on one line),
+ * power and rating, marked OVER above its `pmax`; `header` names the
+ * columns (plain or cycle-average values).
+ */
+function elementTable(report: RunReport, op: { readonly currents: Readonly<Record<string, number>>; readonly power: Readonly<Record<string, number>> }, header: readonly string[]): string {
+  const rows: string[][] = [[...header]];
+  for (const el of report.circuit.elements) {
+    const p = op.power[el.name] ?? 0;
+    const rating = el.pmax === undefined ? '' : `${formatSI(el.pmax, 'W')}${p > el.pmax ? '  OVER' : ''}`;
+    if (el.kind === 'bjt') {
+      const [c, b, e] = ['c', 'b', 'e'].map((t) => formatSI(op.currents[`${el.name}.${t}`] ?? 0, 'A'));
+      rows.push([el.name, `c ${c}  b ${b}  e ${e}`, formatSI(p, 'W'), rating]);
+    } else {
+      rows.push([el.name, formatSI(op.currents[el.name] ?? 0, 'A'), formatSI(p, 'W'), rating]);
+    }
+  }
+  return table(rows);
+}
+
 /** Node voltages and the per-element current and power table for one operating point. */
 export function formatOperatingPoint(op: OperatingPoint, report: RunReport): string {
   const parts: string[] = [];
@@ -27,20 +47,7 @@ export function formatOperatingPoint(op: OperatingPoint, report: RunReport): str
   parts.push('');
   parts.push(table([['node', 'voltage'], ...Object.entries(op.nodes).map(([n, v]) => [n, formatSI(v, 'V')])]));
   parts.push('');
-  const rows: string[][] = [['element', 'current', 'power', 'rating']];
-  for (const el of report.circuit.elements) {
-    const p = op.power[el.name] ?? 0;
-    const rating = el.pmax === undefined ? '' : `${formatSI(el.pmax, 'W')}${p > el.pmax ? '  OVER' : ''}`;
-    if (el.kind === 'bjt') {
-      const c = op.currents[`${el.name}.c`] ?? 0;
-      const b = op.currents[`${el.name}.b`] ?? 0;
-      const e = op.currents[`${el.name}.e`] ?? 0;
-      rows.push([el.name, `c ${formatSI(c, 'A')}  b ${formatSI(b, 'A')}  e ${formatSI(e, 'A')}`, formatSI(p, 'W'), rating]);
-    } else {
-      rows.push([el.name, formatSI(op.currents[el.name] ?? 0, 'A'), formatSI(p, 'W'), rating]);
-    }
-  }
-  parts.push(table(rows));
+  parts.push(elementTable(report, op, ['element', 'current', 'power', 'rating']));
   parts.push('  (currents enter an element at its first node; a source delivering power shows negative current and power)');
   return parts.join('\n');
 }
@@ -56,18 +63,7 @@ export function formatCycleOperatingPoint(op: CycleOperatingPoint, report: RunRe
   parts.push('');
   parts.push(table([['node', 'mean', 'min', 'max'], ...Object.entries(op.nodes).map(([n, v]) => [n, formatSI(v.mean, 'V'), formatSI(v.min, 'V'), formatSI(v.max, 'V')])]));
   parts.push('');
-  const rows: string[][] = [['element', 'mean current', 'mean power', 'rating']];
-  for (const el of report.circuit.elements) {
-    const p = op.power[el.name] ?? 0;
-    const rating = el.pmax === undefined ? '' : `${formatSI(el.pmax, 'W')}${p > el.pmax ? '  OVER' : ''}`;
-    if (el.kind === 'bjt') {
-      const [c, b, e] = ['c', 'b', 'e'].map((t) => formatSI(op.currents[`${el.name}.${t}`] ?? 0, 'A'));
-      rows.push([el.name, `c ${c}  b ${b}  e ${e}`, formatSI(p, 'W'), rating]);
-    } else {
-      rows.push([el.name, formatSI(op.currents[el.name] ?? 0, 'A'), formatSI(p, 'W'), rating]);
-    }
-  }
-  parts.push(table(rows));
+  parts.push(elementTable(report, op, ['element', 'mean current', 'mean power', 'rating']));
   parts.push('  (cycle averages; currents enter an element at its first node; a source delivering power shows negative current and power)');
   return parts.join('\n');
 }
