@@ -10,8 +10,8 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { type CompiledCircuit } from '@railcheck/core';
-import { findPeriodicSteadyState, runTransient } from '@railcheck/core/internal';
-import { compile, node } from '../transient/support.js';
+import { findPeriodicSteadyState } from '@railcheck/core/internal';
+import { compile, lastCycleOfBruteForce, node } from '../transient/support.js';
 import { fcSeed } from '../../helpers/device-harness.js';
 
 const seed = fcSeed('test/core/analysis/steady-state.test.ts');
@@ -54,15 +54,7 @@ function shoot(c: CompiledCircuit, period: number, index: number, extra: { cycle
 /** Brute force: `cycles` whole periods from the operating point; statistics of the last one. */
 function bruteForce(c: CompiledCircuit, period: number, cycles: number, index: number): CycleStats {
   const s = new Stats();
-  const tEnd = cycles * period;
-  const boundaries = Array.from({ length: cycles }, (_, k) => (k + 1) * period);
-  const r = runTransient(c, {
-    tstep: period / 50, tstop: tEnd, stepsPerCycle: 200, keepTrace: false, extraBreakpoints: boundaries,
-    onAccept: (t, ctx) => {
-      if (t >= tEnd - period * (1 + 1e-9)) s.add(t, ctx.x[index]!);
-    },
-  });
-  if (!r.ok) throw new Error('brute-force transient failed');
+  lastCycleOfBruteForce(c, period, cycles, (t, x) => s.add(t, x[index]!));
   return s.done();
 }
 

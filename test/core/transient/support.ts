@@ -117,3 +117,20 @@ export function odexOnGrid(s: OdexSolver, f: (x: number, y: number[]) => number[
   if (res.outcome !== 0) throw new Error(`odex did not converge (outcome ${res.outcome})`);
   return out;
 }
+
+/**
+ * Brute force for periodic steady state: `cycles` whole periods of a plain
+ * transient from the operating point, every boundary landed on; hands each
+ * accepted point of the last period (time in s, solution vector) to `onPoint`.
+ */
+export function lastCycleOfBruteForce(c: CompiledCircuit, period: number, cycles: number, onPoint: (t: number, x: Float64Array) => void): void {
+  const tEnd = cycles * period;
+  const r = runTransient(c, {
+    tstep: period / 50, tstop: tEnd, stepsPerCycle: 200, keepTrace: false,
+    extraBreakpoints: Array.from({ length: cycles }, (_, k) => (k + 1) * period),
+    onAccept: (t, ctx) => {
+      if (t >= tEnd - period * (1 + 1e-9)) onPoint(t, ctx.x);
+    },
+  });
+  if (!r.ok) throw new Error(`brute-force transient failed: ${r.reason} at t = ${r.time}`);
+}

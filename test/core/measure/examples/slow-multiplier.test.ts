@@ -8,8 +8,7 @@
  */
 import { describe, expect, test } from 'vitest';
 import { runNetlist } from '@railcheck/core';
-import { runTransient } from '@railcheck/core/internal';
-import { compile, node } from '../../transient/support.js';
+import { compile, lastCycleOfBruteForce, node } from '../../transient/support.js';
 
 const netlist = (cb: string): string => `slow capacitance multiplier
 VSEC a b sin(0 17 50)
@@ -35,28 +34,21 @@ function bruteForce(text: string, cycles: number): { outMean: number; outPp: num
   const out = node(c, 'out');
   const res = node(c, 'res');
   const period = 0.02;
-  const tEnd = cycles * period;
   let integral = 0;
   let lastT = Number.NaN;
   let lastV = Number.NaN;
   const range = { outMin: Infinity, outMax: -Infinity, resMin: Infinity, resMax: -Infinity };
-  const r = runTransient(c, {
-    tstep: period / 50, tstop: tEnd, stepsPerCycle: 200, keepTrace: false,
-    extraBreakpoints: Array.from({ length: cycles }, (_, k) => (k + 1) * period),
-    onAccept: (t, ctx) => {
-      if (t < tEnd - period * (1 + 1e-9)) return;
-      const v = ctx.x[out]!;
-      const w = ctx.x[res]!;
-      if (!Number.isNaN(lastT)) integral += 0.5 * (v + lastV) * (t - lastT);
-      lastT = t;
-      lastV = v;
-      range.outMin = Math.min(range.outMin, v);
-      range.outMax = Math.max(range.outMax, v);
-      range.resMin = Math.min(range.resMin, w);
-      range.resMax = Math.max(range.resMax, w);
-    },
+  lastCycleOfBruteForce(c, period, cycles, (t, x) => {
+    const v = x[out]!;
+    const w = x[res]!;
+    if (!Number.isNaN(lastT)) integral += 0.5 * (v + lastV) * (t - lastT);
+    lastT = t;
+    lastV = v;
+    range.outMin = Math.min(range.outMin, v);
+    range.outMax = Math.max(range.outMax, v);
+    range.resMin = Math.min(range.resMin, w);
+    range.resMax = Math.max(range.resMax, w);
   });
-  if (!r.ok) throw new Error('brute-force transient failed');
   return { outMean: integral / period, outPp: range.outMax - range.outMin, feedPp: range.resMax - range.resMin };
 }
 
