@@ -14,6 +14,7 @@ import { warningAt, type Diagnostic } from '../errors.js';
 import { formatSI } from '../units.js';
 import type { SteadyInfo } from './periodic.js';
 import type { Bench } from './bench.js';
+import { positive, requireKey } from './keys.js';
 
 /** Options of {@link rippleRejection}. A sine-fed stage's ripple is its own: `freq` and `amp` are not used there, and `method=ac` measures nothing (it has no small-signal method). */
 export interface RippleOptions {
@@ -52,6 +53,8 @@ export function rippleRejection(bench: Bench, opts: RippleOptions = {}): RippleR
   const freq = opts.freq ?? 100;
   const amp = opts.amp ?? 0.01 * Math.abs(bench.input.nominal);
   const method = opts.method ?? 'both';
+  requireKey('ripple', 'freq', freq, positive, '> 0 Hz');
+  requireKey('ripple', 'amp', amp, (v) => Number.isFinite(v) && v !== 0, '≠ 0 V');
   const smallSignal = method === 'tran' ? undefined : bench.smallSignalRejection(freq);
   const r = method === 'ac' ? undefined : bench.steadyRipple(freq, amp);
   const steady = r?.inputPp === undefined ? undefined : 20 * Math.log10(r.inputPp / r.outputPp);

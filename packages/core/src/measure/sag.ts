@@ -16,6 +16,7 @@ import { dipBottomEnd } from './bench.js';
 import { DEFAULT_DROPOUT_FALL } from './dropout.js';
 import { MinMaxWindow } from './periodic.js';
 import { bisectBoundary } from './search.js';
+import { MAX_SAG_DURATION, positive, requireKey } from './keys.js';
 
 /** Options of {@link sagRideThrough} (figures.md defaults). */
 export interface SagOptions {
@@ -136,7 +137,16 @@ export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThro
   const depth = opts.depth ?? 0.2;
   const edge = opts.edge ?? 1e-3;
   const criterion = opts.fall ?? DEFAULT_DROPOUT_FALL;
-  const plan = bench.planDip({ edge, dur: opts.dur ?? 0.1, ripple: opts.ripple ?? 0, freq: opts.freq ?? 100 });
+  const dur = opts.dur ?? 0.1;
+  const ripple = opts.ripple ?? 0;
+  const freq = opts.freq ?? 100;
+  requireKey('sag', 'depth', depth, (v) => v > 0 && v <= 1, 'in (0, 1] (0 % to 100 % of the nominal input)');
+  requireKey('sag', 'dur', dur, (v) => positive(v) && v <= MAX_SAG_DURATION, `in (0, ${MAX_SAG_DURATION}] s`);
+  requireKey('sag', 'edge', edge, (v) => positive(v) && v <= MAX_SAG_DURATION, `in (0, ${MAX_SAG_DURATION}] s`);
+  requireKey('sag', 'fall', criterion, positive, '> 0 V');
+  requireKey('sag', 'ripple', ripple, (v) => Number.isFinite(v) && v >= 0, '≥ 0 V');
+  requireKey('sag', 'freq', freq, positive, '> 0 Hz');
+  const plan = bench.planDip({ edge, dur, ripple, freq });
   const { t0, period } = plan;
   const tEnd = t0 + 2 * edge + plan.dur + 5 * edge;
   const bottomEnd = dipBottomEnd(plan, edge);

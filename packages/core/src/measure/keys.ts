@@ -1,0 +1,23 @@
+/**
+ * Range checks of `.figure` keys at the figure that reads them: a key
+ * outside its range would make the measurement meaningless or endless (a
+ * ripple at 0 Hz has an infinite period), so the figure is not measured,
+ * with a located reason (figures.md, "Figures that cannot be measured").
+ */
+import { errorAt, RailcheckError } from '../errors.js';
+
+/** Longest dip a sag figure simulates, s: far beyond any hold-up a supply is asked for (common practice, no source). */
+export const MAX_SAG_DURATION = 100;
+
+/**
+ * Throws RailcheckError unless `ok(value)`; `expected` says the range in
+ * words. The error names no place, so the report puts it at the `.figure`
+ * line (measure/figures.ts).
+ */
+export function requireKey(figure: string, key: string, value: number, ok: (v: number) => boolean, expected: string): void {
+  if (ok(value)) return;
+  throw new RailcheckError([errorAt('bad-figure-key', `${figure}: ${key}=${value} is out of range`, undefined, undefined, `${key} ${expected}`)]);
+}
+
+/** x > 0 and finite. */
+export const positive = (v: number): boolean => Number.isFinite(v) && v > 0;
