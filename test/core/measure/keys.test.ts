@@ -10,7 +10,7 @@ import { runNetlist } from '@railcheck/core';
 const stage = (figure: string): string => ['divider', 'V1 in 0 12', 'R1 in out 1k', 'R2 out 0 1k', '.supply in=V1 out=out', figure, '.figure line', '.end', ''].join('\n');
 
 describe('figure keys out of range', () => {
-  for (const figure of ['.figure ripple freq=0', '.figure ripple amp=0', '.figure sag dur=0', '.figure sag dur=1e6', '.figure sag depth=150%', '.figure sag depth=-10%', '.figure sag edge=0', '.figure sag fall=-1']) {
+  for (const figure of ['.figure ripple freq=0', '.figure ripple amp=0', '.figure sag dur=0', '.figure sag dur=1e6', '.figure sag depth=150%', '.figure sag depth=-10%', '.figure sag edge=1e3', '.figure sag fall=-1']) {
     test(`${figure}: not measured, located at its line`, () => {
       const r = runNetlist(stage(figure));
       if (!r.ok) throw new Error(r.errors.map((e) => e.message).join('; '));

@@ -142,7 +142,8 @@ export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThro
   const freq = opts.freq ?? 100;
   requireKey('sag', 'depth', depth, (v) => v > 0 && v <= 1, 'in (0, 1] (0 % to 100 % of the nominal input)');
   requireKey('sag', 'dur', dur, (v) => positive(v) && v <= MAX_SAG_DURATION, `in (0, ${MAX_SAG_DURATION}] s`);
-  requireKey('sag', 'edge', edge, (v) => positive(v) && v <= MAX_SAG_DURATION, `in (0, ${MAX_SAG_DURATION}] s`);
+  // edge=0 is left to the transient, which reports the abrupt dip as a step it cannot take (a located reason).
+  requireKey('sag', 'edge', edge, (v) => Number.isFinite(v) && v >= 0 && v <= MAX_SAG_DURATION, `in [0, ${MAX_SAG_DURATION}] s`);
   requireKey('sag', 'fall', criterion, positive, '> 0 V');
   requireKey('sag', 'ripple', ripple, (v) => Number.isFinite(v) && v >= 0, '≥ 0 V');
   requireKey('sag', 'freq', freq, positive, '> 0 Hz');
