@@ -51,9 +51,9 @@ export function opFailure(outcome: Extract<OpOutcome, { ok: false }>, what: stri
 }
 
 /** Solves the operating point at the present temperature; throws RailcheckError on failure. */
-export function operatingPoint(c: CompiledCircuit, temperature: number, origin?: CardOrigin): OperatingPoint {
+export function operatingPoint(c: CompiledCircuit, temperature: number, origin?: CardOrigin, neededBy?: string): OperatingPoint {
   const outcome = solveOperatingPoint(c);
-  if (!outcome.ok) throw new RailcheckError([opFailure(outcome, `operating point at ${temperature} °C`, origin)]);
+  if (!outcome.ok) throw new RailcheckError([opFailure(outcome, `operating point at ${temperature} °C${neededBy ? ` (${neededBy})` : ''}`, origin)]);
   return { temperature, method: outcome.method, iterations: outcome.iterations, ...readSolution(c) };
 }
 

@@ -11,6 +11,7 @@ import { warningAt, RailcheckError, type Diagnostic, errorAt } from '../errors.j
 import { parseNetlist, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
 import { elaborate } from '../elaborate/elaborate.js';
 import type { FlatCircuit } from '../elaborate/flat.js';
+import type { CardOrigin } from '../netlist/ast.js';
 import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
 import { dcSweep, operatingPoint, type DcSweep, type OperatingPoint } from '../analysis/dc.js';
@@ -79,6 +80,21 @@ export function spreadNote(flat: FlatCircuit): Diagnostic[] {
   return [warningAt('spread-not-used', `tolerance runs are not implemented yet; .spread lines are read but not used by run (${n} .spread line${n === 1 ? '' : 's'}; a later \`railcheck spread\` command will read them)`, first.origin.pos, first.origin.lineText)];
 }
 
+/**
+ * Where a failed operating point is reported: the `.op` line; without one,
+ * the first analysis that needs the operating point (`.dc`, `.tran`, `.ac`),
+ * else the `.supply` line whose figures start from it, else the title line
+ * (every run finds the operating point at each `.temp` temperature).
+ */
+function operatingPointOrigin(flat: FlatCircuit): { origin: CardOrigin; what: string | undefined } {
+  const op = flat.analyses.find((a) => a.kind === 'op');
+  if (op) return { origin: op.origin, what: undefined };
+  const first = flat.analyses[0];
+  if (first) return { origin: first.origin, what: `needed by this .${first.kind}` };
+  if (flat.supply) return { origin: flat.supply.origin, what: 'needed by the figures of this .supply' };
+  return { origin: { pos: { file: flat.file, line: 1, column: 1 }, lineText: flat.title }, what: 'which every run finds, at each .temp temperature' };
+}
+
 /** Runs every analysis of a compiled circuit. Throws only RailcheckError (an analysis that fails). */
 export function analyse(c: CompiledCircuit): { operatingPoints: OperatingPoint[]; sweeps: DcSweep[]; transients: TransientResult[]; ac: AcResult[] } {
   const flat = c.flat;
@@ -86,10 +102,10 @@ export function analyse(c: CompiledCircuit): { operatingPoints: OperatingPoint[]
   const sweeps: DcSweep[] = [];
   const transients: TransientResult[] = [];
   const ac: AcResult[] = [];
-  const opCard = flat.analyses.find((a) => a.kind === 'op')?.origin;
+  const { origin: opCard, what } = operatingPointOrigin(flat);
   for (const celsius of flat.temperatures) {
     setCircuitTemperature(c, celsius);
-    operatingPoints.push(operatingPoint(c, celsius, opCard));
+    operatingPoints.push(operatingPoint(c, celsius, opCard, what));
     for (const a of flat.analyses) {
       if (a.kind === 'dc') sweeps.push(dcSweep(c, celsius, a.source, a.start, a.stop, a.step, a.origin));
       else if (a.kind === 'ac') ac.push(acSweep(c, celsius, acFrequencies(a.variation, a.points, a.fstart, a.fstop), a.origin));
