@@ -70,6 +70,3 @@ export const MAX_ANALYSES = 20;
 
 /** Most temperatures, all `.temp` cards together; every analysis runs at each. */
 export const MAX_TEMPERATURES = 20;
-
-/** Most `.figure` lines of one netlist; each may run up to MAX_FIGURE_STEPS transient steps. */
-export const MAX_FIGURES = 50;

@@ -8,7 +8,7 @@ import type { FlatAnalysis, FlatCircuit, FlatElement, FlatFigure, FlatLimit, Fla
 import { GROUND_KEY } from './flat.js';
 import type { Evaluator } from './evaluate.js';
 import type { Scope } from './scope.js';
-import { MAX_AC_POINTS, MAX_ANALYSES, MAX_DC_POINTS, MAX_FIGURES, MAX_TEMPERATURES, MAX_TRAN_GRID_POINTS } from '../budgets.js';
+import { MAX_AC_POINTS, MAX_ANALYSES, MAX_DC_POINTS, MAX_TEMPERATURES, MAX_TRAN_GRID_POINTS } from '../budgets.js';
 
 /** The directive part of a flat circuit. */
 export type ResolvedDirectives = Pick<FlatCircuit, 'analyses' | 'temperatures' | 'supply' | 'figures' | 'limits' | 'spreads'>;
@@ -125,10 +125,6 @@ export function resolveDirectives(
         };
       })
       .with({ kind: 'figure' }, (c) => {
-        if (figures.length >= MAX_FIGURES) {
-          ev.fail(c, 'budget-figures', `more than MAX_FIGURES = ${MAX_FIGURES} .figure lines; each is measured on a bench of its own`, 'fewer .figure lines');
-          return;
-        }
         const keys = new Map<string, number>();
         const percentKeys = new Set<string>();
         for (const k of c.keys) {
