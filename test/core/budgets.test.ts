@@ -9,7 +9,7 @@ import { describe, expect, test } from 'vitest';
 import { parseNetlist, runNetlist, type ParseOptions } from '@railcheck/core';
 import { runTransient } from '@railcheck/core/internal';
 import {
-  MAX_AC_POINTS, MAX_ANALYSES, MAX_BREAKPOINTS, MAX_CARDS, MAX_DC_POINTS, MAX_INCLUDED_CHARACTERS, MAX_INCLUDES, MAX_OUTPUT_VALUES, MAX_TEMPERATURES,
+  MAX_AC_POINTS, MAX_ANALYSES, MAX_BREAKPOINTS, MAX_CARD_TOKENS, MAX_CARDS, MAX_DC_POINTS, MAX_INCLUDED_CHARACTERS, MAX_INCLUDES, MAX_OUTPUT_VALUES, MAX_TEMPERATURES,
   MAX_TRAN_GRID_POINTS, MAX_TRAN_STEPS, MAX_UNKNOWNS,
 } from '../../packages/core/src/budgets.js';
 import { MAX_FLAT_ELEMENTS } from '../../packages/core/src/elaborate/elaborate.js';
@@ -150,6 +150,14 @@ describe('reader budgets', () => {
     if (p.ok) return;
     expect(p.errors).toHaveLength(1);
     expect(p.errors[0]).toMatchObject({ code: 'budget-cards', pos: { line: MAX_CARDS + 2 } });
+  });
+  test(`a card of more than MAX_CARD_TOKENS = ${MAX_CARD_TOKENS} items is refused at its line; a pwl of 100 000 points is read`, () => {
+    const pwl = (n: number): string => `pwl\nR1 a 0 1k\nV1 a 0 pwl(${Array.from({ length: n }, (_, i) => `${i}u ${i % 2}`).join(' ')})\n.end\n`;
+    const p = parseNetlist(pwl(MAX_CARD_TOKENS));
+    expect(p.ok).toBe(false);
+    if (p.ok) return;
+    expect(p.errors.map((e) => [e.code, e.pos?.line])).toEqual([['budget-card-tokens', 3]]);
+    expect(parseNetlist(pwl(100_000)).ok).toBe(true);
   });
   const files = (map: Record<string, string>): ParseOptions => ({ file: '/n/top.cir', readFile: (path) => map[path] });
   test(`a file included more than MAX_INCLUDES = ${MAX_INCLUDES} times is refused at the include over the budget`, () => {

@@ -70,3 +70,10 @@ export const MAX_ANALYSES = 20;
 
 /** Most temperatures, all `.temp` cards together; every analysis runs at each. */
 export const MAX_TEMPERATURES = 20;
+
+/**
+ * Most items (words, numbers, punctuation) one card may hold: a pwl of
+ * 100 000 points has about 200 000. A card's items are held at once while it
+ * is read, some hundreds of bytes each.
+ */
+export const MAX_CARD_TOKENS = 250_000;

@@ -81,7 +81,7 @@ export function prepare(parsed: ParseResult): { ok: true; compiled: CompiledCirc
   const warnings = [...parsed.warnings];
   if (!parsed.ok) return { ok: false, errors: parsed.errors, warnings };
   const flat = elaborate(parsed.netlist);
-  warnings.push(...flat.warnings);
+  for (const d of flat.warnings) warnings.push(d); // not push(...): a long list would overflow the call stack
   if (!flat.ok) return { ok: false, errors: flat.errors, warnings };
   const compiled = compileCircuit(flat.circuit);
   if (!compiled.ok) return { ok: false, errors: compiled.errors, warnings };
