@@ -273,7 +273,8 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     const corners = breakpointExcess(c.sources, t0, tstop, extra.length);
     if (corners) return overBudget(t0, corners);
     const fewest = opts.replayTimes ? opts.replayTimes.length : (tstop - t0) / (opts.fixedStep ?? hMax);
-    if (!(fewest <= MAX_TRAN_STEPS)) {
+    // A largest step that is not positive (a sag edge of 0) is left to the loop, which reports it as a step below its floor.
+    if (hMax > 0 && !(fewest <= MAX_TRAN_STEPS)) {
       const bySine = opts.fixedStep === undefined && !opts.replayTimes && sine.period / stepsPerCycle < (opts.tmax ?? Infinity);
       return overBudget(t0, { budget: 'MAX_TRAN_STEPS', limit: MAX_TRAN_STEPS, value: fewest, source: bySine ? sine.source : undefined, what: 'time steps at the least (the run over its largest step)' });
     }
