@@ -9,7 +9,7 @@ import type { DeviceReport, LoadContext, ReactiveContext, SlotBinder, Topology, 
 import type { SourceSpec, WaveformSpec } from './sources.js';
 import { addAt, at, BranchSlots } from './stamp.js';
 import type { CurrentSource, VoltageSource } from './types.js';
-import { waveformBreakpoints, waveformValue } from './waveform.js';
+import { waveformBreakpoints, waveformCornerCount, waveformValue } from './waveform.js';
 
 const DEG = Math.PI / 180;
 
@@ -39,8 +39,12 @@ abstract class SourceBase {
     return this.waveform === undefined ? this.dc : waveformValue(this.waveform, timeSeconds, this.defaultEdge);
   }
 
-  breakpoints(fromSeconds: number, toSeconds: number, out: number[]): void {
-    if (this.waveform !== undefined) waveformBreakpoints(this.waveform, fromSeconds, toSeconds, this.defaultEdge, out);
+  breakpoints(fromSeconds: number, toSeconds: number, out: number[], max = Infinity): void {
+    if (this.waveform !== undefined) waveformBreakpoints(this.waveform, fromSeconds, toSeconds, this.defaultEdge, out, max);
+  }
+
+  cornerCount(fromSeconds: number, toSeconds: number): number {
+    return this.waveform === undefined ? 0 : waveformCornerCount(this.waveform, fromSeconds, toSeconds, this.defaultEdge);
   }
 
   /** The value the source has in this load: DC value, or waveform at ctx.time, times the source scale. */

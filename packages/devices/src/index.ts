@@ -70,4 +70,4 @@ export {
   safeExpm1,
 } from './junction.js';
 export type { ChargeOut } from './junction.js';
-export { pulseValue, pwlValue, sinValue, waveformBreakpoints, waveformValue } from './waveform.js';
+export { pulseValue, pwlValue, sinValue, waveformBreakpoints, waveformCornerCount, waveformValue } from './waveform.js';

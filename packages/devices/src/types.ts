@@ -69,8 +69,10 @@ export interface IndependentSource extends Device {
   defaultEdge: number;
   /** Waveform value at `timeSeconds` (V or A), else {@link dc}; formulas of netlist.md. */
   valueAt(timeSeconds: number): number;
-  /** Pushes every waveform corner in (fromSeconds, toSeconds] onto `out`, ascending. */
-  breakpoints(fromSeconds: number, toSeconds: number, out: number[]): void;
+  /** Pushes every waveform corner in (fromSeconds, toSeconds] onto `out`, ascending; a pulse train stops once `out` holds `max` entries (default unbounded). */
+  breakpoints(fromSeconds: number, toSeconds: number, out: number[], max?: number): void;
+  /** An upper bound on the corners {@link breakpoints} would push for (fromSeconds, toSeconds], counted without generating them. */
+  cornerCount(fromSeconds: number, toSeconds: number): number;
 }
 
 /** Independent voltage source; its branch current is the source current. */

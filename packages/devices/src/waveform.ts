@@ -106,17 +106,28 @@ function pushCorner(out: number[], t: number, from: number, to: number, last: nu
   return last;
 }
 
-function pulseBreakpoints(w: Pulse, from: number, to: number, defaultEdge: number, out: number[]): void {
+/** The four corner offsets of a pulse within its period (Infinity where absent), and the period (Infinity for one pulse). */
+function pulseShape(w: Pulse, defaultEdge: number): { c1: number; c2: number; c3: number; per: number } {
   const tr = w.tr ?? defaultEdge;
   const tf = w.tf ?? defaultEdge;
   const pw = w.pw;
-  const c1 = tr;
-  const c2 = pw === undefined ? Infinity : tr + pw;
-  const c3 = pw === undefined ? Infinity : tr + pw + tf;
-  const per = periodic(w) ? w.per : Infinity;
-  const kStart = per === Infinity ? 0 : Math.max(0, Math.floor((from - w.td) / per));
+  return {
+    c1: tr,
+    c2: pw === undefined ? Infinity : tr + pw,
+    c3: pw === undefined ? Infinity : tr + pw + tf,
+    per: periodic(w) ? w.per : Infinity,
+  };
+}
+
+/** First period index whose corners can lie in (from, ...]. */
+function firstPeriod(w: Pulse, from: number, per: number): number {
+  return per === Infinity ? 0 : Math.max(0, Math.floor((from - w.td) / per));
+}
+
+function pulseBreakpoints(w: Pulse, from: number, to: number, defaultEdge: number, out: number[], max: number): void {
+  const { c1, c2, c3, per } = pulseShape(w, defaultEdge);
   let last = -Infinity;
-  for (let k = kStart; ; k++) {
+  for (let k = firstPeriod(w, from, per); out.length < max; k++) {
     const base = w.td + (per === Infinity ? 0 : k * per);
     if (base > to) break;
     last = pushCorner(out, base, from, to, last);
@@ -128,17 +139,51 @@ function pulseBreakpoints(w: Pulse, from: number, to: number, defaultEdge: numbe
 }
 
 /**
+ * An upper bound on the number of corners {@link waveformBreakpoints} would
+ * push for (from, to], counted without generating them (a pulse: periods in
+ * the window × corners per period), so a caller can refuse a waveform with
+ * too many corners before allocating anything. Infinity when the count is
+ * not a finite number.
+ */
+export function waveformCornerCount(w: WaveformSpec, from: number, to: number, defaultEdge: number): number {
+  const n = ((): number => {
+    switch (w.kind) {
+      case 'sin':
+        return w.td > 0 ? 1 : 0;
+      case 'pulse': {
+        const { c1, c2, c3, per } = pulseShape(w, defaultEdge);
+        const perPeriod = 1 + [c1, c2, c3].filter((c) => c < per).length;
+        if (per === Infinity) return perPeriod;
+        const periods = Math.floor((to - w.td) / per) - firstPeriod(w, from, per) + 1;
+        return Math.max(0, periods) * perPeriod;
+      }
+      case 'pwl':
+      case 'modulated':
+        return w.times.length;
+      case 'sum': {
+        let total = 0;
+        for (const part of w.parts) total += waveformCornerCount(part, from, to, defaultEdge);
+        return total;
+      }
+    }
+  })();
+  return Number.isFinite(n) ? n : Infinity;
+}
+
+/**
  * Pushes every corner of the waveform in (from, to] onto `out` in ascending
  * order, in seconds: each pulse corner of each period, each pwl point, and
- * the start td of a delayed sine (where its slope jumps).
+ * the start td of a delayed sine (where its slope jumps). A pulse train
+ * stops once `out` holds `max` entries (default unbounded), so a caller's
+ * budget holds even when it did not count first ({@link waveformCornerCount}).
  */
-export function waveformBreakpoints(w: WaveformSpec, from: number, to: number, defaultEdge: number, out: number[]): void {
+export function waveformBreakpoints(w: WaveformSpec, from: number, to: number, defaultEdge: number, out: number[], max = Infinity): void {
   switch (w.kind) {
     case 'sin':
       if (w.td > 0) pushCorner(out, w.td, from, to, -Infinity);
       return;
     case 'pulse':
-      pulseBreakpoints(w, from, to, defaultEdge, out);
+      pulseBreakpoints(w, from, to, defaultEdge, out, max);
       return;
     case 'pwl':
     case 'modulated': {
@@ -147,7 +192,7 @@ export function waveformBreakpoints(w: WaveformSpec, from: number, to: number, d
       return;
     }
     case 'sum': {
-      for (const part of w.parts) waveformBreakpoints(part, from, to, defaultEdge, out);
+      for (const part of w.parts) waveformBreakpoints(part, from, to, defaultEdge, out, max);
       out.sort((a, b) => a - b);
       return;
     }

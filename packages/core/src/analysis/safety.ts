@@ -29,7 +29,8 @@ function sourceLevels(flat: FlatCircuit): { acRms: number; dc: number } {
       acRms = Math.max(acRms, Math.abs(w.va) / Math.SQRT2);
       dc = Math.max(dc, Math.abs(w.vo));
     } else if (w?.kind === 'pulse') dc = Math.max(dc, Math.abs(w.v1), Math.abs(w.v2));
-    else if (w?.kind === 'pwl') dc = Math.max(dc, ...w.values.map(Math.abs));
+    // A loop, not Math.max(...values): spreading a long pwl overflows the call stack.
+    else if (w?.kind === 'pwl') for (const v of w.values) dc = Math.max(dc, Math.abs(v));
   }
   return { acRms, dc };
 }

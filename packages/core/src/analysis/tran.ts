@@ -8,7 +8,7 @@ import { JUNCTION_CMIN } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CardOrigin } from '../netlist/ast.js';
 import type { CompiledCircuit } from '../engine/compile.js';
-import { runTransient, type IntegrationMethod, type TransientStats, type TransientTrace } from '../engine/transient.js';
+import { describeTransientFailure, runTransient, transientFailureCode, type IntegrationMethod, type TransientBudgetExcess, type TransientStats, type TransientTrace } from '../engine/transient.js';
 import { formatSI } from '../units.js';
 
 /** Waveforms of one transient run. */
@@ -90,11 +90,31 @@ function stepHint(names: readonly string[]): string {
   return `${at} held by little more than gmin (1e-12 S) while a junction with no capacitance switches (a floating node between transistor junctions, or a diode string with no DC path); give the node a DC path (a winding resistance or bleeder) or the junctions a capacitance (CJO, CJE/CJC); else look for switching with no series resistance or a source edge of zero duration`;
 }
 
-/** Runs a transient at the present temperature; throws RailcheckError when it cannot complete. */
+/** What would fit, per transient budget. */
+const BUDGET_EXPECTED: Record<TransientBudgetExcess['budget'], string> = {
+  MAX_TRAN_STEPS: 'a shorter run, a larger tmax or slower sources',
+  MAX_BREAKPOINTS: 'fewer pulse periods or pwl points in the run',
+  MAX_TRACE_VALUES: 'a shorter run or a smaller circuit',
+  MAX_FIGURE_STEPS: 'a figure asking for fewer steps',
+};
+
+/**
+ * Runs a transient at the present temperature; throws RailcheckError when it
+ * cannot complete. A budget it would exceed is reported at the source
+ * responsible when there is one, else at the `.tran` card (the run's
+ * output as a whole is checked against MAX_OUTPUT_VALUES in pipeline/run.ts).
+ */
 export function transient(c: CompiledCircuit, temperature: number, req: TransientRequest, origin?: CardOrigin): TransientResult {
   const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc, junctionCmin: JUNCTION_CMIN });
+  if (!outcome.ok && outcome.reason === 'budget') {
+    const e = outcome.excess;
+    const element = e.source === undefined ? undefined : c.flat.elements.find((el) => el.key === e.source);
+    const at = element?.origin ?? origin;
+    const by = element ? ` (${element.name}'s waveform${e.budget === 'MAX_TRAN_STEPS' ? ' sets the largest step' : ' has the most corners'})` : '';
+    throw new RailcheckError([errorAt(transientFailureCode(outcome), `transient at ${temperature} °C failed ${describeTransientFailure(outcome, (t) => formatSI(t, 's'))}${by}`, at?.pos, at?.lineText, BUDGET_EXPECTED[e.budget])]);
+  }
   if (!outcome.ok) {
-    const where = outcome.reason === 'initial-point' ? 'at its initial point' : `at t = ${formatSI(outcome.time, 's')}: the time step fell below its floor`;
+    const where = describeTransientFailure(outcome, (t) => formatSI(t, 's'));
     const worst = outcome.stragglers.map((s) => `${s.name} = ${formatSI(s.value, '')} (last update ${formatSI(s.update, '')})`).join('; ');
     throw new RailcheckError([errorAt('transient-failed', `transient at ${temperature} °C failed ${where}${worst ? `. Least settled: ${worst}` : ''}`, origin?.pos, origin?.lineText, stepHint(outcome.stragglers.map((st) => st.name)))]);
   }

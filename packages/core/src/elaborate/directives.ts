@@ -8,7 +8,7 @@ import type { FlatAnalysis, FlatCircuit, FlatElement, FlatFigure, FlatLimit, Fla
 import { GROUND_KEY } from './flat.js';
 import type { Evaluator } from './evaluate.js';
 import type { Scope } from './scope.js';
-import { MAX_AC_POINTS, MAX_DC_POINTS, MAX_TRAN_GRID_POINTS } from '../budgets.js';
+import { MAX_AC_POINTS, MAX_ANALYSES, MAX_DC_POINTS, MAX_TEMPERATURES, MAX_TRAN_GRID_POINTS } from '../budgets.js';
 
 /** The directive part of a flat circuit. */
 export type ResolvedDirectives = Pick<FlatCircuit, 'analyses' | 'temperatures' | 'supply' | 'figures' | 'limits' | 'spreads'>;
@@ -28,8 +28,14 @@ export function resolveDirectives(
   const num = (v: Value): number => ev.num(v, top);
   const flat: FlatAnalysis[] = [];
   const temperatures: number[] = [];
+  let analysisCards = 0;
   for (const a of analyses) {
     ev.at(a);
+    // Every analysis runs at every temperature: both counts are bounded, so their product is.
+    if (a.kind !== 'temp' && ++analysisCards > MAX_ANALYSES) {
+      ev.fail(a, 'budget-analyses', `more than MAX_ANALYSES = ${MAX_ANALYSES} analysis cards (.op, .dc, .tran, .ac); each runs at every .temp temperature`, 'fewer analysis cards');
+      continue;
+    }
     match(a)
       .with({ kind: 'op' }, (c) => flat.push({ kind: 'op', origin: c }))
       .with({ kind: 'dc' }, (c) => {
@@ -58,7 +64,7 @@ export function resolveDirectives(
         if (!(tstep > 0) || !(tstop > 0)) ev.fail(c, 'bad-tran', `.tran needs a positive step and stop time (got ${tstep} and ${tstop})`, 'tstep > 0 and tstop > 0');
         else {
           const grid = (tstop - (c.tstart ? num(c.tstart) : 0)) / tstep + 1;
-          if (grid > MAX_TRAN_GRID_POINTS) ev.fail(c, 'budget-tran-points', `.tran has ${grid.toPrecision(3)} output points (tstop/tstep), over the budget MAX_TRAN_GRID_POINTS = ${MAX_TRAN_GRID_POINTS}`, 'a larger tstep');
+          if (!(grid <= MAX_TRAN_GRID_POINTS)) ev.fail(c, 'budget-tran-points', `.tran has ${grid.toPrecision(3)} output points (tstop/tstep), over the budget MAX_TRAN_GRID_POINTS = ${MAX_TRAN_GRID_POINTS}`, 'a larger tstep');
         }
         flat.push({ kind: 'tran', origin: c, tstep, tstop, tstart: c.tstart ? num(c.tstart) : 0, tmax: c.tmax ? num(c.tmax) : undefined, flags: c.flags.map((f) => f.toLowerCase()) });
       })
@@ -75,6 +81,10 @@ export function resolveDirectives(
         flat.push({ kind: 'ac', origin: c, variation: c.variation, points: Math.round(points), fstart, fstop });
       })
       .with({ kind: 'temp' }, (c) => {
+        if (temperatures.length + c.temps.length > MAX_TEMPERATURES) {
+          ev.fail(c, 'budget-temperatures', `.temp brings the temperatures to ${temperatures.length + c.temps.length}, over the budget MAX_TEMPERATURES = ${MAX_TEMPERATURES}; every analysis runs at each`, 'fewer temperatures');
+          return;
+        }
         for (const t of c.temps) {
           const celsius = num(t);
           if (!(celsius > MIN_CELSIUS)) ev.fail(c, 'bad-temperature', `temperature ${celsius} °C is below absolute zero`, `a temperature above ${MIN_CELSIUS} °C`);

@@ -232,7 +232,7 @@ export function elaborate(netlist: Netlist): ElaborateResult {
     ...resolved,
   };
   const connections = checkConnections(circuit);
-  warnings.push(...connections.warnings);
+  for (const d of connections.warnings) warnings.push(d); // not push(...): a long list would overflow the call stack
   if (connections.errors.length > 0) return { ok: false, errors: connections.errors, warnings };
   return { ok: true, circuit, warnings };
 }

@@ -57,8 +57,16 @@ function allocationRank(d: Device): number {
   return DEVICES[d.kind].allocationRank;
 }
 
+/** The MAX_UNKNOWNS error, located at the last element of the netlist: the circuit as a whole is over the budget. */
+function overUnknowns(flat: FlatCircuit, count: string): CompileResult {
+  const last = flat.elements[flat.elements.length - 1]?.origin;
+  return { ok: false, errors: [errorAt('budget-unknowns', `the circuit has ${count}, over the budget MAX_UNKNOWNS = ${MAX_UNKNOWNS} of the dense solver`, last?.pos, last?.lineText, 'a smaller circuit')] };
+}
+
 /** Compiles a flat circuit: numbers unknowns, binds stamps, checks topology. */
 export function compileCircuit(flat: FlatCircuit): CompileResult {
+  // The nodes alone are a lower bound on the unknowns: refuse before any device is made.
+  if (flat.nodes.length > MAX_UNKNOWNS) return overUnknowns(flat, `at least ${flat.nodes.length} unknowns (its nodes alone)`);
   const unknowns: UnknownInfo[] = [{ kind: 'node', name: '0' }];
   const nodeIndex = new Map<string, number>([[GROUND_KEY, 0]]);
   for (const node of flat.nodes) {
@@ -113,11 +121,7 @@ export function compileCircuit(flat: FlatCircuit): CompileResult {
   }
   // A failed look-up leaves a device without its indices: stop before any slot is bound.
   if (errors.length > 0) return { ok: false, errors };
-  if (unknowns.length - 1 > MAX_UNKNOWNS) {
-    // Located at the last element of the netlist: the circuit as a whole is over the budget.
-    const first = flat.elements[flat.elements.length - 1]?.origin;
-    return { ok: false, errors: [errorAt('budget-unknowns', `the circuit has ${unknowns.length - 1} unknowns, over the budget MAX_UNKNOWNS = ${MAX_UNKNOWNS} of the dense solver`, first?.pos, first?.lineText, 'a smaller circuit')] };
-  }
+  if (unknowns.length - 1 > MAX_UNKNOWNS) return overUnknowns(flat, `${unknowns.length - 1} unknowns`);
   const ws = createWorkspace(unknowns.length - 1, stateSize);
   const binder: SlotBinder = { slot: (row, col) => row * ws.size + col };
   for (const d of devices) d.bind(binder);

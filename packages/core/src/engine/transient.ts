@@ -13,6 +13,8 @@ import type { CompiledCircuit } from './compile.js';
 import { DEFAULT_NEWTON, loadAll, newtonSolve, type NewtonOptions } from './newton.js';
 import { SolutionHistory } from './history.js';
 import { FINAL_GMIN, solveOperatingPoint, stragglers, type Straggler } from './dcop.js';
+import { match } from 'ts-pattern';
+import { MAX_BREAKPOINTS, MAX_TRACE_VALUES, MAX_TRAN_STEPS } from '../budgets.js';
 
 /** Integration method. */
 export type IntegrationMethod = 'be' | 'trap';
@@ -84,6 +86,19 @@ export interface TransientOptions {
    * figure benches keep 0 (docs/transient.md, "Minimum junction capacitance").
    */
   readonly junctionCmin?: number;
+  /**
+   * A step allowance shared by several runs (a figure's trials, MAX_FIGURE_STEPS):
+   * every step tried takes one from `left`, and the run fails on the budget
+   * `budget` when none is left.
+   */
+  readonly shared?: SharedStepBudget;
+}
+
+/** Steps left to a group of transient runs, and the budget they come from. */
+export interface SharedStepBudget {
+  left: number;
+  readonly budget: 'MAX_FIGURE_STEPS';
+  readonly limit: number;
 }
 
 /** Counters of one run. */
@@ -110,10 +125,47 @@ export interface TransientTrace {
   values: Float64Array;
 }
 
+/** A budget (docs/engine.md, "Budgets") that a transient run would exceed, and by how much. */
+export interface TransientBudgetExcess {
+  /** The budget's name in budgets.ts. */
+  readonly budget: 'MAX_TRAN_STEPS' | 'MAX_BREAKPOINTS' | 'MAX_TRACE_VALUES' | 'MAX_FIGURE_STEPS';
+  /** The budget's value. */
+  readonly limit: number;
+  /** The count that exceeded it (an estimate made before the run, or the counter when it ran over). */
+  readonly value: number;
+  /** Key of the source responsible, when one is (the one with most corners, or the sine whose period sets the largest step). */
+  readonly source: string | undefined;
+  /** What was counted, in words ("time steps", ...). */
+  readonly what: string;
+}
+
 /** Outcome of a transient run. */
 export type TransientOutcome =
   | { readonly ok: true; readonly trace: TransientTrace; readonly stats: TransientStats }
-  | { readonly ok: false; readonly reason: 'initial-point' | 'step-too-small'; readonly time: number; readonly stragglers: readonly Straggler[]; readonly stats: TransientStats };
+  | { readonly ok: false; readonly reason: 'initial-point' | 'step-too-small'; readonly time: number; readonly stragglers: readonly Straggler[]; readonly stats: TransientStats }
+  | { readonly ok: false; readonly reason: 'budget'; readonly time: number; readonly excess: TransientBudgetExcess; readonly stragglers: readonly Straggler[]; readonly stats: TransientStats };
+
+/** A failed transient's cause in words, for a diagnostic: where it failed, or which budget it exceeded. */
+export function describeTransientFailure(outcome: Extract<TransientOutcome, { ok: false }>, formatTime: (seconds: number) => string): string {
+  return match(outcome)
+    .with({ reason: 'initial-point' }, () => 'at its initial point')
+    .with({ reason: 'step-too-small' }, (o) => `at t = ${formatTime(o.time)}: the time step fell below its floor`)
+    .with({ reason: 'budget' }, ({ time, excess: e }) => `at t = ${formatTime(time)}: it needs ${e.value.toPrecision(3)} ${e.what}, over the budget ${e.budget} = ${e.limit}`)
+    .exhaustive();
+}
+
+/** Diagnostic code per transient budget. */
+const BUDGET_CODES: Record<TransientBudgetExcess['budget'], string> = {
+  MAX_TRAN_STEPS: 'budget-tran-steps',
+  MAX_BREAKPOINTS: 'budget-breakpoints',
+  MAX_TRACE_VALUES: 'budget-tran-trace',
+  MAX_FIGURE_STEPS: 'budget-figure-steps',
+};
+
+/** The diagnostic code of a failed transient: `transient-failed`, or `budget-…` naming the budget it exceeded. */
+export function transientFailureCode(outcome: Extract<TransientOutcome, { ok: false }>): string {
+  return outcome.reason === 'budget' ? BUDGET_CODES[outcome.excess.budget] : 'transient-failed';
+}
 
 /** Newton iterations allowed per time point before the step is cut. */
 const TRAN_ITERATIONS = 50;
@@ -126,11 +178,14 @@ const GROW_LIMIT = 2;
 const SHRINK_LIMIT = 0.2;
 const SAFETY = 0.9;
 
-function pushPoint(trace: TransientTrace, t: number, x: Float64Array): void {
+/** Stores an accepted point; false (nothing stored) when the trace would exceed MAX_TRACE_VALUES. */
+function pushPoint(trace: TransientTrace, t: number, x: Float64Array): boolean {
   if (trace.count === trace.times.length) {
-    const times = new Float64Array(trace.times.length * 2);
+    const rows = Math.min(trace.times.length * 2, Math.floor(MAX_TRACE_VALUES / trace.size));
+    if (rows <= trace.count) return false;
+    const times = new Float64Array(rows);
     times.set(trace.times);
-    const values = new Float64Array(trace.values.length * 2);
+    const values = new Float64Array(rows * trace.size);
     values.set(trace.values);
     trace.times = times;
     trace.values = values;
@@ -138,11 +193,28 @@ function pushPoint(trace: TransientTrace, t: number, x: Float64Array): void {
   trace.times[trace.count] = t;
   trace.values.set(x, trace.count * trace.size);
   trace.count++;
+  return true;
+}
+
+/**
+ * Counts the sources' corners in (tstart, tstop] without generating them;
+ * the budget excess when they are more than MAX_BREAKPOINTS, naming the
+ * source with the most.
+ */
+function breakpointExcess(sources: ReadonlyMap<string, IndependentSource>, tstart: number, tstop: number, extra: number): TransientBudgetExcess | undefined {
+  let total = extra;
+  let worst: { key: string; count: number } | undefined;
+  for (const [key, s] of sources) {
+    const n = s.cornerCount(tstart, tstop);
+    total += n;
+    if (n > 0 && (!worst || n > worst.count)) worst = { key, count: n };
+  }
+  return total <= MAX_BREAKPOINTS ? undefined : { budget: 'MAX_BREAKPOINTS', limit: MAX_BREAKPOINTS, value: total, source: worst?.key, what: 'source corners (breakpoints)' };
 }
 
 function collectBreakpoints(sources: Iterable<IndependentSource>, tstart: number, tstop: number, extra: readonly number[]): Float64Array {
   const all: number[] = [...extra];
-  for (const s of sources) s.breakpoints(tstart, tstop, all);
+  for (const s of sources) s.breakpoints(tstart, tstop, all, MAX_BREAKPOINTS + extra.length);
   all.push(tstop);
   all.sort((a, b) => a - b);
   const out: number[] = [];
@@ -158,10 +230,15 @@ function sinePeriod(w: WaveformSpec | undefined): number {
   return Infinity;
 }
 
-function smallestSinePeriod(sources: Iterable<IndependentSource>): number {
+/** The shortest sine period of the sources, s, and the key of the source that has it. */
+function smallestSinePeriod(sources: ReadonlyMap<string, IndependentSource>): { period: number; source: string | undefined } {
   let period = Infinity;
-  for (const s of sources) period = Math.min(period, sinePeriod(s.waveform));
-  return period;
+  let source: string | undefined;
+  for (const [key, s] of sources) {
+    const p = sinePeriod(s.waveform);
+    if (p < period) [period, source] = [p, key];
+  }
+  return { period, source };
 }
 
 /**
@@ -180,14 +257,27 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
   ctx.state = state;
   ctx.statePrev = statePrev;
   const stats: TransientStats = { accepted: 0, rejectedLte: 0, rejectedNewton: 0, newtonIterations: 0, minStep: Infinity, maxStep: 0 };
+  const overBudget = (time: number, excess: TransientBudgetExcess): TransientOutcome => ({ ok: false, reason: 'budget', time, excess, stragglers: [], stats });
   const sources = [...c.sources.values()];
   const savedEdges = sources.map((s) => s.defaultEdge);
   for (const s of sources) s.defaultEdge = opts.tstep;
   try {
     const tstop = opts.tstop;
     const t0 = opts.startTime ?? 0;
-    const hMax = Math.min(opts.tmax ?? (tstop - t0) / 50, smallestSinePeriod(sources) / stepsPerCycle);
+    const sine = smallestSinePeriod(c.sources);
+    const hMax = Math.min(opts.tmax ?? (tstop - t0) / 50, sine.period / stepsPerCycle);
     const hMin = tstop * MIN_STEP_FRACTION;
+    // Budgets, before anything is solved or allocated: the corners to land on, and the fewest steps
+    // the run can take (its span over the largest step, or the replayed times, or one per corner).
+    const extra = opts.extraBreakpoints ?? [];
+    const corners = breakpointExcess(c.sources, t0, tstop, extra.length);
+    if (corners) return overBudget(t0, corners);
+    const fewest = opts.replayTimes ? opts.replayTimes.length : (tstop - t0) / (opts.fixedStep ?? hMax);
+    // A largest step that is not positive (a sag edge of 0) is left to the loop, which reports it as a step below its floor.
+    if (hMax > 0 && !(fewest <= MAX_TRAN_STEPS)) {
+      const bySine = opts.fixedStep === undefined && !opts.replayTimes && sine.period / stepsPerCycle < (opts.tmax ?? Infinity);
+      return overBudget(t0, { budget: 'MAX_TRAN_STEPS', limit: MAX_TRAN_STEPS, value: fewest, source: bySine ? sine.source : undefined, what: 'time steps at the least (the run over its largest step)' });
+    }
     const isVoltage = Uint8Array.from(c.unknowns, (u) => (u.kind === 'branch' ? 0 : 1));
     const trace: TransientTrace = { size: ws.size, count: 0, times: new Float64Array(1024), values: new Float64Array(1024 * ws.size) };
     const fail = (reason: 'initial-point' | 'step-too-small', time: number): TransientOutcome => ({ ok: false, reason, time, stragglers: stragglers(c), stats });
@@ -247,7 +337,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     opts.onAccept?.(t0, ctx);
     const history = new SolutionHistory(ws.size, 3);
     history.reset(t0, x);
-    const breakpoints = collectBreakpoints(sources, t0, tstop, opts.extraBreakpoints ?? []);
+    const breakpoints = collectBreakpoints(sources, t0, tstop, extra);
     const keep = opts.keepTrace ?? true;
     const replay = opts.replayTimes;
     let nextReplay = 0;
@@ -256,7 +346,15 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     const fixed = opts.fixedStep;
     let h = replay ? replay[0]! - t0 : (fixed ?? Math.min(hMax, opts.tstep, (breakpoints[0] ?? tstop) - t0) / 100);
     let firstAfterBreak = true;
+    // Every step tried, accepted or rejected, counts against MAX_TRAN_STEPS: no input keeps the loop going.
+    let tried = 0;
+    const shared = opts.shared;
+    const traceFull = (): TransientOutcome => overBudget(t, { budget: 'MAX_TRACE_VALUES', limit: MAX_TRACE_VALUES, value: (trace.count + 1) * trace.size, what: 'stored values (accepted points × unknowns)', source: undefined });
     while (t < tstop) {
+      if (++tried > MAX_TRAN_STEPS) return overBudget(t, { budget: 'MAX_TRAN_STEPS', limit: MAX_TRAN_STEPS, value: tried, source: undefined, what: 'time steps or more (accepted and rejected)' });
+      if (shared && --shared.left < 0) return overBudget(t, { budget: shared.budget, limit: shared.limit, value: shared.limit + 1, source: undefined, what: 'time steps or more over its runs together' });
+      // A step that is not a number, or not positive, would never reach tstop.
+      if (!(h > 0)) return fail('step-too-small', t);
       const target = breakpoints[nextBreak]!;
       let tNew = t + h;
       if (replay && tNew >= replay[nextReplay]! - hMin) tNew = replay[nextReplay]!;
@@ -295,9 +393,9 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       stats.minStep = Math.min(stats.minStep, hStep);
       stats.maxStep = Math.max(stats.maxStep, hStep);
       statePrev.set(state);
-      if (keep || t >= tstop) pushPoint(trace, t, x);
+      if ((keep || t >= tstop) && !pushPoint(trace, t, x)) return traceFull();
       if (opts.onAccept?.(t, ctx) === true) {
-        if (!keep && t < tstop) pushPoint(trace, t, x);
+        if (!keep && t < tstop && !pushPoint(trace, t, x)) return traceFull();
         break;
       }
       const grow = ratio === 0 ? GROW_LIMIT : Math.min(GROW_LIMIT, SAFETY * Math.pow(ratio, -1 / (order + 1)));

@@ -15,6 +15,7 @@
  * which figures were measured before it.
  */
 import type { BenchKind } from '../figure-registry.js';
+import type { SharedStepBudget } from '../engine/transient.js';
 import type { SteadyInfo } from './periodic.js';
 import type { Stage } from './stage.js';
 
@@ -131,8 +132,14 @@ export interface DipPlan {
   readonly period: number;
   /** True when the output carries a ripple to watch (a DC input with `ripple` > 0; a sine-fed stage always). */
   readonly rippled: boolean;
-  /** Runs one dip of `depth` (a ratio of the nominal level) until `tEnd` s, handing every accepted point's time (s) and output (V, rail side) to `observe`. Throws RailcheckError. */
-  run(depth: number, tEnd: number, observe: (timeSeconds: number, outputVolts: number) => void): void;
+  /**
+   * Runs one dip of `depth` (a ratio of the nominal level) until `tEnd` s,
+   * handing every accepted point's time (s) and output (V, rail side) to
+   * `observe`; every step tried takes one from `shared` (the figure's
+   * MAX_FIGURE_STEPS). Throws RailcheckError (code `budget-…` when a budget
+   * is exceeded).
+   */
+  run(depth: number, tEnd: number, observe: (timeSeconds: number, outputVolts: number) => void, shared: SharedStepBudget): void;
 }
 
 /** What every bench offers the figures. */

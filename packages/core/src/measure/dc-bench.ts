@@ -10,7 +10,7 @@
 import type { WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import { FINAL_GMIN, solveOperatingPoint } from '../engine/dcop.js';
-import { runTransient } from '../engine/transient.js';
+import { describeTransientFailure, runTransient, transientFailureCode } from '../engine/transient.js';
 import { opFailure } from '../analysis/dc.js';
 import { readSolution } from '../analysis/solution.js';
 import { formatSI } from '../units.js';
@@ -140,7 +140,7 @@ export function createDcBench(given: Stage): DcBench {
         dur: shape.dur,
         period,
         rippled,
-        run(depth, tEnd, observe) {
+        run(depth, tEnd, observe, shared) {
           const nominal = stage.inputDc;
           const low = nominal * (1 - depth);
           const dip: WaveformSpec = { kind: 'pwl', times: dipCorners(t0, shape.edge, shape.dur), values: [nominal, nominal, low, low, nominal] };
@@ -156,8 +156,9 @@ export function createDcBench(given: Stage): DcBench {
             ...(settled ? { initialSolution: settled.solution, startTime: settled.start } : {}),
             extraBreakpoints: rippled ? [t0 - period, bottomEnd - period, bottomEnd].filter((t) => t > 0) : [],
             onAccept: (t, ctx) => observe(t, railSign * vout(stage, ctx.x)),
+            shared,
           });
-          if (!r.ok) throw new RailcheckError([errorAt('transient-failed', `sag: the dip transient failed at t = ${formatSI(r.time, 's')} (depth ${(depth * 100).toFixed(1)} %)`, stage.supply.origin.pos, stage.supply.origin.lineText)]);
+          if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `sag: the dip transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))} (depth ${(depth * 100).toFixed(1)} %)`, stage.supply.origin.pos, stage.supply.origin.lineText)]);
         },
       };
       return plan;

@@ -11,6 +11,8 @@
  * reported too. The bench applies the dip (bench.ts, DipPlan).
  */
 import { RailcheckError } from '../errors.js';
+import { MAX_FIGURE_STEPS } from '../budgets.js';
+import type { SharedStepBudget } from '../engine/transient.js';
 import type { Bench } from './bench.js';
 import { dipBottomEnd } from './bench.js';
 import { DEFAULT_DROPOUT_FALL } from './dropout.js';
@@ -154,6 +156,9 @@ export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThro
   // Whole ripple cycles at the bottom of the dip, clear of the falling edge.
   const bottomStart = Math.ceil((t0 + edge) / period - 1e-9) * period;
   const hasDuring = plan.rippled && bottomEnd - bottomStart >= period * (1 - 1e-9);
+  // All the trials together get MAX_FIGURE_STEPS steps: an edge far shorter than the run makes each
+  // trial long, and the search runs about twenty of them.
+  const shared: SharedStepBudget = { left: MAX_FIGURE_STEPS, budget: 'MAX_FIGURE_STEPS', limit: MAX_FIGURE_STEPS };
   const runDip = (d: number): DipRun => {
     const whole = new MinMaxWindow(t0, tEnd);
     const before = new DetrendedRipple(t0 - period, t0);
@@ -162,7 +167,7 @@ export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThro
       whole.add(t, v);
       before.add(t, v);
       during.add(t, v);
-    });
+    }, shared);
     const bottom = hasDuring ? during.ripple(period) : undefined;
     return {
       fall: bench.voutNominal - whole.min,
@@ -179,7 +184,8 @@ export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThro
     try {
       return runDip(d).fall <= criterion;
     } catch (e) {
-      if (!(e instanceof RailcheckError)) throw e;
+      // A budget is not the stage failing to ride through: the figure is not measured.
+      if (!(e instanceof RailcheckError) || e.diagnostics.some((x) => x.code.startsWith('budget-'))) throw e;
       failures.push({ depth: d, reason: e.diagnostics[0]?.message ?? e.message });
       return false;
     }

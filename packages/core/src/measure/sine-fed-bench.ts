@@ -10,7 +10,8 @@
  */
 import type { WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
-import { runTransient } from '../engine/transient.js';
+import { describeTransientFailure, runTransient, transientFailureCode } from '../engine/transient.js';
+import { MAX_BREAKPOINTS } from '../budgets.js';
 import { formatSI } from '../units.js';
 import { dipCorners, type CycleOperatingPoint, type DipPlan, type DipShape, type NodeCycle, type OutputStats, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
 import { settleCycle, type Probe } from './periodic.js';
@@ -189,7 +190,12 @@ export function createSineFedBench(given: Stage): SineFedBench {
         dur,
         period,
         rippled: true,
-        run(depth, tEnd, observe) {
+        run(depth, tEnd, observe, shared) {
+          // One breakpoint per cycle is landed on: count them before listing them.
+          const cycles = (tEnd - nominalStart.start) / period;
+          if (!(cycles <= MAX_BREAKPOINTS)) {
+            throw new RailcheckError([errorAt('budget-breakpoints', `sag of the sine-fed stage: the dip run spans ${cycles.toPrecision(3)} cycles of the source, each landed on, over the budget MAX_BREAKPOINTS = ${MAX_BREAKPOINTS}`, origin.pos, origin.lineText, 'a shorter dip or a lower source frequency')]);
+          }
           const a = sine.va;
           const envelope: WaveformSpec = { kind: 'modulated', vo: sine.vo, freq: sine.freq, phaseDeg: sine.phaseDeg, times: dipCorners(t0, shape.edge, dur), amplitudes: [a, a, a * (1 - depth), a * (1 - depth), a] };
           applyDrive(stage, { dc: stage.inputDc, waveform: envelope, loadAmps: loadNominal }, voutNominal);
@@ -205,8 +211,9 @@ export function createSineFedBench(given: Stage): SineFedBench {
             extraBreakpoints: boundaries,
             keepTrace: false,
             onAccept: (t, ctx) => observe(t, railSign * vout(stage, ctx.x)),
+            shared,
           });
-          if (!r.ok) throw new RailcheckError([errorAt('transient-failed', `sag of the sine-fed stage: the dip transient failed at t = ${formatSI(r.time, 's')} (depth ${(depth * 100).toFixed(1)} %)`, origin.pos, origin.lineText)]);
+          if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `sag of the sine-fed stage: the dip transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))} (depth ${(depth * 100).toFixed(1)} %)`, origin.pos, origin.lineText)]);
         },
       };
     },

@@ -77,6 +77,7 @@ function parseInner(text: string, options: ParseOptions): ParseResult {
     warnings: [],
     stack: [],
     stopped: false,
+    totals: { cards: 0, includes: 0, includedCharacters: 0 },
   };
   if (typeof text !== 'string') {
     return { ok: false, errors: [errorAt('bad-input', `the netlist must be text, not ${typeof text}`)], warnings: [] };

@@ -5,6 +5,7 @@
  */
 import type { Diagnostic, SourcePos } from '../errors.js';
 import { errorAt } from '../errors.js';
+import { MAX_CARD_TOKENS } from '../budgets.js';
 
 /** A stretch of a logical line that came from one physical line. */
 export interface Segment {
@@ -198,6 +199,10 @@ export function tokenize(ll: LogicalLine): { tokens: Token[]; error?: Diagnostic
   };
   let i = 0;
   while (i < s.length) {
+    if (tokens.length >= MAX_CARD_TOKENS) {
+      const at = locate(ll, 0);
+      return { tokens: [], error: errorAt('budget-card-tokens', `the card has more than MAX_CARD_TOKENS = ${MAX_CARD_TOKENS} items`, at.pos, at.lineText, 'a shorter card (a pwl of at most about 100 000 points)') };
+    }
     const c = s[i] ?? '';
     if (isSpace(c) || c === ',') {
       i++;

@@ -5,6 +5,7 @@
  */
 import type { Diagnostic } from '../errors.js';
 import { errorAt } from '../errors.js';
+import { MAX_CARDS, MAX_INCLUDED_CHARACTERS, MAX_INCLUDES } from '../budgets.js';
 import type { Card, CardOrigin } from './ast.js';
 import { CardAbort, Cursor } from './cursor.js';
 import { resolveInclude } from './include.js';
@@ -38,6 +39,8 @@ export interface ReadContext {
   /** Files being read, outermost first (for include cycles). */
   readonly stack: IncludeFrame[];
   stopped: boolean;
+  /** Cards read, includes expanded and characters read from included files so far, for MAX_CARDS, MAX_INCLUDES and MAX_INCLUDED_CHARACTERS. */
+  readonly totals: { cards: number; includes: number; includedCharacters: number };
 }
 
 interface OpenSubckt {
@@ -102,6 +105,13 @@ function readLine(ctx: ReadContext, line: LogicalLine, root: Card[], open: OpenS
   }
   if (tokens.length === 0) return;
   const c = new Cursor(line, tokens, (d) => addError(ctx, d));
+  if (++ctx.totals.cards > MAX_CARDS) {
+    // Reading stops here: past the budget nothing more is read, included or kept.
+    const at = c.origin();
+    addError(ctx, errorAt('budget-cards', `the netlist and its includes have more than MAX_CARDS = ${MAX_CARDS} cards; reading stopped here`, at.pos, at.lineText, 'a smaller netlist'));
+    ctx.stopped = true;
+    return;
+  }
   const target = open.length > 0 ? (open[open.length - 1] as OpenSubckt).body : root;
   try {
     const card = readCard(ctx, c, root, open, target);
@@ -146,8 +156,15 @@ function readCard(ctx: ReadContext, c: Cursor, root: Card[], open: OpenSubckt[],
     }
     case 'include': {
       const { path, at } = parseIncludePath(c);
+      if (++ctx.totals.includes > MAX_INCLUDES) {
+        c.fail('budget-includes', `more than MAX_INCLUDES = ${MAX_INCLUDES} includes expanded, all levels together`, at, 'fewer includes');
+      }
       const frame = resolveInclude(ctx, c, path, at);
       const text = frame.text;
+      ctx.totals.includedCharacters += text.length;
+      if (ctx.totals.includedCharacters > MAX_INCLUDED_CHARACTERS) {
+        c.fail('budget-included-characters', `the included files hold more than MAX_INCLUDED_CHARACTERS = ${MAX_INCLUDED_CHARACTERS} characters together (${ctx.totals.includedCharacters} with ${frame.display})`, at, 'fewer or smaller included files');
+      }
       if (!checkSize(ctx, text, frame.display)) return undefined;
       const sub = readCards(ctx, text, frame, false);
       for (const card of sub.cards) target.push(card);

@@ -7,10 +7,12 @@
  * fails (an operating point, sweep, transient or small-signal run the
  * netlist asks for) still stops it: the run then has errors, no report.
  */
+import { match } from 'ts-pattern';
 import { warningAt, RailcheckError, type Diagnostic, errorAt } from '../errors.js';
+import { MAX_OUTPUT_VALUES } from '../budgets.js';
 import { parseNetlist, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
 import { elaborate } from '../elaborate/elaborate.js';
-import type { FlatCircuit } from '../elaborate/flat.js';
+import type { FlatAnalysis, FlatCircuit } from '../elaborate/flat.js';
 import type { CardOrigin } from '../netlist/ast.js';
 import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
@@ -19,6 +21,34 @@ import { safetyWarnings } from '../analysis/safety.js';
 import { isSineFed, measureFigures, type FigureReport } from '../measure/figures.js';
 import { transient, type TransientResult } from '../analysis/tran.js';
 import { acFrequencies, acSweep, type AcResult } from '../analysis/ac.js';
+
+
+/** Output points of one analysis (the operating point is one). */
+function outputPoints(a: FlatAnalysis): number {
+  return match(a)
+    .with({ kind: 'op' }, () => 1)
+    .with({ kind: 'dc' }, (d) => Math.floor(Math.abs((d.stop - d.start) / d.step) + 1e-9) + 1)
+    .with({ kind: 'tran' }, (t) => Math.floor((t.tstop - t.tstart) / t.tstep + 1e-9) + 2)
+    .with({ kind: 'ac' }, (f) => 2 * acFrequencies(f.variation, f.points, f.fstart, f.fstop).length)
+    .exhaustive();
+}
+
+/**
+ * Throws RailcheckError, located at the analysis card that takes the total
+ * over it, when the analyses at all temperatures would hand back more than
+ * MAX_OUTPUT_VALUES values; checked before any analysis runs.
+ */
+function checkOutputBudget(c: CompiledCircuit): void {
+  const signals = c.flat.nodes.length + c.unknowns.filter((u) => u.kind === 'branch').length;
+  const temps = c.flat.temperatures.length;
+  let total = 0;
+  for (const a of c.flat.analyses) {
+    total += outputPoints(a) * signals * temps;
+    if (!(total <= MAX_OUTPUT_VALUES)) {
+      throw new RailcheckError([errorAt('budget-output', `the analyses would hand back ${total.toPrecision(3)} values by this card (points × ${signals} node voltages and branch currents × ${temps} temperature${temps === 1 ? '' : 's'}), over the budget MAX_OUTPUT_VALUES = ${MAX_OUTPUT_VALUES}`, a.origin.pos, a.origin.lineText, 'fewer points (a larger step), fewer temperatures or a smaller circuit')]);
+    }
+  }
+}
 
 /** Everything a run produced. */
 export interface RunReport {
@@ -52,7 +82,7 @@ export function prepare(parsed: ParseResult): { ok: true; compiled: CompiledCirc
   const warnings = [...parsed.warnings];
   if (!parsed.ok) return { ok: false, errors: parsed.errors, warnings };
   const flat = elaborate(parsed.netlist);
-  warnings.push(...flat.warnings);
+  for (const d of flat.warnings) warnings.push(d); // not push(...): a long list would overflow the call stack
   if (!flat.ok) return { ok: false, errors: flat.errors, warnings };
   const compiled = compileCircuit(flat.circuit);
   if (!compiled.ok) return { ok: false, errors: compiled.errors, warnings };
@@ -103,6 +133,7 @@ export function analyse(c: CompiledCircuit): { operatingPoints: OperatingPoint[]
   const transients: TransientResult[] = [];
   const ac: AcResult[] = [];
   const { origin: opCard, what } = operatingPointOrigin(flat);
+  checkOutputBudget(c);
   for (const celsius of flat.temperatures) {
     setCircuitTemperature(c, celsius);
     operatingPoints.push(operatingPoint(c, celsius, opCard, what));
