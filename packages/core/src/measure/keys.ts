@@ -6,8 +6,7 @@
  */
 import { errorAt, RailcheckError } from '../errors.js';
 
-/** Longest dip a sag figure simulates, s: far beyond any hold-up a supply is asked for (common practice, no source). */
-export const MAX_SAG_DURATION = 100;
+export { MAX_SAG_DURATION } from '../figure-registry.js';
 
 /**
  * Throws RailcheckError unless `ok(value)`; `expected` says the range in
