@@ -100,7 +100,9 @@ export interface KeyBounds {
  * bounds; `input-level`, an input level in volts with the nominal input's
  * sign (non-zero; docs/figures.md, "Negative rails").
  */
-export type KeyRange = { readonly kind: 'bounds'; readonly bounds: KeyBounds } | { readonly kind: 'input-level' };
+export type KeyRange =
+  | { readonly kind: 'bounds'; readonly bounds: KeyBounds; /** The unit on this bench when it is not the key's (an amplitude ratio). */ readonly unit?: string }
+  | { readonly kind: 'input-level' };
 
 /** A numeric `.figure` key: `percent` when it may be written as `5%` (a ratio). */
 export interface FigureNumberKey {
@@ -154,7 +156,7 @@ const num = (percent: boolean, unit: string, doc: string, range: KeyRange | Part
 
 const POSITIVE_KEY = bounds({ above: 0 });
 /** An input level: volts of the nominal input's sign on a DC input, an amplitude ratio > 0 on a sine-fed stage. */
-const LEVEL: Partial<Record<BenchKind, KeyRange>> = { dc: { kind: 'input-level' }, 'sine-fed': POSITIVE_KEY };
+const LEVEL: Partial<Record<BenchKind, KeyRange>> = { dc: { kind: 'input-level' }, 'sine-fed': { kind: 'bounds', bounds: { above: 0 }, unit: 'ratio' } };
 /** A load current drawn from the rail, A (docs/figures.md, "Negative rails"). */
 const LOAD_CURRENT = bounds({ atLeast: 0 });
 /** An output fall: > 0 V, or as a percentage a ratio of Vout_nom in (0, 1). */
@@ -202,6 +204,14 @@ export function withinKeyBounds(b: KeyBounds, x: number): boolean {
   if (b.atLeast !== undefined && !(x >= b.atLeast)) return false;
   if (b.below !== undefined && !(x < b.below)) return false;
   return !(b.atMost !== undefined && !(x <= b.atMost));
+}
+
+/** A key's range on a bench as docs/figures.md ("Key ranges") writes it; `not used` for a bench that does not read the key. */
+export function describeKeyRange(key: FigureNumberKey, bench: BenchKind): string {
+  const r = key.range[bench];
+  if (r === undefined) return 'not used';
+  const base = r.kind === 'input-level' ? "V of the nominal input's sign, ≠ 0" : describeKeyBounds(r.bounds, r.unit ?? key.unit);
+  return key.percentRange ? `${base}; as a %: ${describeKeyBounds(key.percentRange, 'ratio')}` : base;
 }
 
 /** Bounds as docs/figures.md writes them, e.g. `> 0 Hz`, `> 0 and ≤ 100 s`. */

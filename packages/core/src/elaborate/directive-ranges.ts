@@ -8,7 +8,7 @@
  */
 import { DEVICES, describeRange, inRange, paramTable, type ValueRange } from '@railcheck/devices';
 import { match } from 'ts-pattern';
-import { describeKeyBounds, FIGURE_KIND_INFO, withinKeyBounds, type BenchKind, type FigureNumberKey, type KeyBounds } from '../figure-registry.js';
+import { describeKeyBounds, FIGURE_KIND_INFO, withinKeyBounds, type BenchKind, type FigureNumberKey } from '../figure-registry.js';
 import type { CardOrigin, SupplyCard } from '../netlist/ast.js';
 import { SPREAD_RATIO, SPREAD_RATIO_EXPECTED } from '../netlist/parse-supply.js';
 import type { Evaluator } from './evaluate.js';
@@ -36,7 +36,7 @@ function keyProblem(key: FigureNumberKey, value: number, percent: boolean, bench
   if (range === undefined) return undefined; // not read on this bench (a note says so when measured)
   if (percent && key.percentRange) return withinKeyBounds(key.percentRange, value) ? undefined : `${describeKeyBounds(key.percentRange, 'ratio')} written as a percentage (a ratio of Vout_nom)`;
   return match(range)
-    .with({ kind: 'bounds' }, (r) => (withinKeyBounds(r.bounds, value) ? undefined : describeKeyBounds(r.bounds as KeyBounds, key.unit)))
+    .with({ kind: 'bounds' }, (r) => (withinKeyBounds(r.bounds, value) ? undefined : describeKeyBounds(r.bounds, r.unit ?? key.unit)))
     .with({ kind: 'input-level' }, () => {
       const s = Math.sign(bench.nominal);
       const ok = Number.isFinite(value) && value !== 0 && (s === 0 || Math.sign(value) === s);
