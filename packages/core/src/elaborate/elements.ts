@@ -30,24 +30,26 @@ function rangeError(env: ElementEnv, at: CardOrigin, message: string, expected: 
   env.ev.fail(at, 'out-of-range', message, expected);
 }
 
-/** Evaluates `v` and checks it against `range`; an error names `what` and the value. NaN (already reported) passes. */
-function ranged(env: ElementEnv, card: DeviceCard, v: Value, what: string, range: ValueRange): number {
-  const x = env.ev.num(v, env.scope);
+/** Checks the evaluated `x` against `range`; an error names `what` and the value. NaN (already reported) passes. */
+function checkRange(env: ElementEnv, card: DeviceCard, x: number, what: string, range: ValueRange): number {
   if (!Number.isNaN(x) && !inRange(range, x)) rangeError(env, card, `${card.name}: the ${what} ${x} is out of range`, `${what} ${describeRange(range)}`);
   return x;
+}
+
+/** Evaluates `v` and checks it against `range`. */
+function ranged(env: ElementEnv, card: DeviceCard, v: Value, what: string, range: ValueRange): number {
+  return checkRange(env, card, env.ev.num(v, env.scope), what, range);
 }
 
 /** The card's main value (resistance, capacitance, gain, coupling coefficient...) checked against the registry's range. */
 function mainValue(env: ElementEnv, card: DeviceCard, kind: DeviceKind, v: Value): number {
   const field = DEVICES[kind].value as ValueField;
-  if (field.zero) {
-    const x = env.ev.num(v, env.scope);
-    if (x === 0) {
-      env.ev.fail(card, field.zero.code, `${card.name}: the ${field.what} must not be zero`, field.zero.hint);
-      return x;
-    }
+  const x = env.ev.num(v, env.scope);
+  if (field.zero && x === 0) {
+    env.ev.fail(card, field.zero.code, `${card.name}: the ${field.what} must not be zero`, field.zero.hint);
+    return x;
   }
-  return ranged(env, card, v, field.what, field.range);
+  return checkRange(env, card, x, field.what, field.range);
 }
 
 function nodesOf<T extends readonly string[]>(env: ElementEnv, written: T): { -readonly [K in keyof T]: string } {
