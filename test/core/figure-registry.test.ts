@@ -10,6 +10,8 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, test } from 'vitest';
 import { BENCH_KINDS, FIGURES, FIGURE_KIND_INFO, FIGURE_KINDS, figureEntry, figureKindOf, figureUnit, parseNetlist, type BenchKind } from '@railcheck/core';
+import { describeKeyRange } from '@railcheck/core/internal';
+import type { FigureKind } from '@railcheck/core';
 
 const doc = readFileSync(new URL('../../docs/figures.md', import.meta.url), 'utf8');
 const SINE_FED_HEADING = '## Stages fed from a transformer secondary';
@@ -58,6 +60,25 @@ describe('docs/figures.md restates the registry', () => {
         expect(entry!.units[bench], `${name} is tabulated for ${bench} stages, which the registry says do not produce it`).toBeDefined();
       }
     }
+  });
+});
+
+describe('docs/figures.md, "Key ranges", restates the registry', () => {
+  const start = doc.indexOf('## Key ranges');
+  const table = rows(doc.slice(start, doc.indexOf('\n## ', start + 1)));
+  test('the page has the section', () => expect(start).toBeGreaterThan(0));
+  for (const kind of FIGURE_KINDS) {
+    for (const [name, key] of Object.entries(FIGURE_KIND_INFO[kind].keys)) {
+      test(`${kind} ${name}`, () => {
+        const row = table.find((r) => r[0] === kind && r[1] === `\`${name}\``);
+        expect(row, `no row for ${kind} ${name}`).toBeDefined();
+        const cells = key.value === 'number' ? BENCH_KINDS.map((b) => describeKeyRange(key, b)) : [`one of ${key.words.join(', ')}`, 'not used'];
+        expect(row!.slice(2)).toEqual(cells);
+      });
+    }
+  }
+  test('every row of the table is a key of the registry', () => {
+    for (const r of table.slice(2)) expect(FIGURE_KIND_INFO[r[0] as FigureKind]?.keys[(r[1] ?? '').replace(/`/g, '')], r.join(' | ')).toBeDefined();
   });
 });
 

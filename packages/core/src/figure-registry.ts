@@ -80,6 +80,30 @@ export const FIGURES: readonly FigureEntry[] = [
   { name: 'sag.out_pp_before', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple before the dip', doc: 'output peak-to-peak over the last whole ripple cycle before the dip, the drift across the cycle taken out' },
 ];
 
+/**
+ * Bounds of a valid `.figure` key value, each open or closed (docs/figures.md,
+ * "Key ranges"); the elaborator checks them. Missing bounds are not checked.
+ */
+export interface KeyBounds {
+  /** The value must be greater than this. */
+  readonly above?: number;
+  /** The value must be at least this. */
+  readonly atLeast?: number;
+  /** The value must be less than this. */
+  readonly below?: number;
+  /** The value must be at most this. */
+  readonly atMost?: number;
+}
+
+/**
+ * The valid values of a numeric key on one bench kind: `bounds`, plain
+ * bounds; `input-level`, an input level in volts with the nominal input's
+ * sign (non-zero; docs/figures.md, "Negative rails").
+ */
+export type KeyRange =
+  | { readonly kind: 'bounds'; readonly bounds: KeyBounds; /** The unit on this bench when it is not the key's (an amplitude ratio). */ readonly unit?: string }
+  | { readonly kind: 'input-level' };
+
 /** A numeric `.figure` key: `percent` when it may be written as `5%` (a ratio). */
 export interface FigureNumberKey {
   readonly value: 'number';
@@ -87,6 +111,15 @@ export interface FigureNumberKey {
   /** The bench kinds whose measurement reads the key. */
   readonly benches: readonly BenchKind[];
   readonly doc: string;
+  /** Unit of the value as written without `%` (`V`, `A`, `Hz`, `s`, `ratio`), for messages. */
+  readonly unit: string;
+  /** Valid values on each bench kind that reads the key. */
+  readonly range: Readonly<Partial<Record<BenchKind, KeyRange>>>;
+  /**
+   * Valid values when the key is written as a percentage (`fall=2%`, a ratio
+   * of Vout_nom), if that differs from `range`.
+   */
+  readonly percentRange?: KeyBounds;
 }
 
 /** The word key `method=ac|tran|both` of the ripple figure. */
@@ -104,21 +137,49 @@ export type FigureKey = FigureNumberKey | FigureMethodKey;
 export interface FigureKindInfo {
   readonly title: string;
   readonly keys: Readonly<Record<string, FigureKey>>;
+  /** Two keys that, when both are given, must differ (the two ends of a range). */
+  readonly distinct?: readonly [string, string];
 }
 
 const DC_ONLY: readonly BenchKind[] = ['dc'];
-const num = (percent: boolean, doc: string, benches: readonly BenchKind[] = BENCH_KINDS): FigureNumberKey => ({ value: 'number', percent, benches, doc });
+
+/** Longest dip or edge a sag figure simulates, s: far beyond any hold-up a supply is asked for (common practice, no source). */
+export const MAX_SAG_DURATION = 100;
+
+const bounds = (b: KeyBounds): KeyRange => ({ kind: 'bounds', bounds: b });
+const onBenches = (benches: readonly BenchKind[], r: KeyRange): Partial<Record<BenchKind, KeyRange>> => Object.fromEntries(benches.map((b) => [b, r]));
+const num = (percent: boolean, unit: string, doc: string, range: KeyRange | Partial<Record<BenchKind, KeyRange>>, benches: readonly BenchKind[] = BENCH_KINDS, percentRange?: KeyBounds): FigureNumberKey => ({
+  value: 'number', percent, benches, doc, unit,
+  range: 'kind' in range ? onBenches(benches, range as KeyRange) : range,
+  ...(percentRange ? { percentRange } : {}),
+});
+
+const POSITIVE_KEY = bounds({ above: 0 });
+/** An input level: volts of the nominal input's sign on a DC input, an amplitude ratio > 0 on a sine-fed stage. */
+const LEVEL: Partial<Record<BenchKind, KeyRange>> = { dc: { kind: 'input-level' }, 'sine-fed': { kind: 'bounds', bounds: { above: 0 }, unit: 'ratio' } };
+/** A load current drawn from the rail, A (docs/figures.md, "Negative rails"). */
+const LOAD_CURRENT = bounds({ atLeast: 0 });
+/** An output fall: > 0 V, or as a percentage a ratio of Vout_nom in (0, 1). */
+const FALL_PERCENT: KeyBounds = { above: 0, below: 1 };
 
 /** Every `.figure` kind with its keys (figures.md), in the order figures.md lists them. */
 export const FIGURE_KIND_INFO: Readonly<Record<FigureKind, FigureKindInfo>> = {
-  line: { title: 'line regulation', keys: { from: num(false, 'low end: input V, or amplitude ratio on a sine-fed stage'), to: num(false, 'high end, likewise') } },
-  load: { title: 'load regulation', keys: { from: num(false, 'first load current, A'), to: num(false, 'second load current, A') } },
-  dropout: { title: 'dropout', keys: { fall: num(true, 'output fall that defines dropout: V, or a % of Vout_nom') } },
+  line: {
+    title: 'line regulation',
+    keys: { from: num(false, 'V', 'low end: input V, or amplitude ratio on a sine-fed stage', LEVEL), to: num(false, 'V', 'high end, likewise', LEVEL) },
+    distinct: ['from', 'to'],
+  },
+  load: {
+    title: 'load regulation',
+    keys: { from: num(false, 'A', 'first load current, A', LOAD_CURRENT), to: num(false, 'A', 'second load current, A', LOAD_CURRENT) },
+    distinct: ['from', 'to'],
+  },
+  dropout: { title: 'dropout', keys: { fall: num(true, 'V', 'output fall that defines dropout: V, or a % of Vout_nom', POSITIVE_KEY, BENCH_KINDS, FALL_PERCENT) } },
   ripple: {
     title: 'ripple rejection',
     keys: {
-      freq: num(false, 'ripple frequency, Hz', DC_ONLY),
-      amp: num(false, 'ripple amplitude, V peak', DC_ONLY),
+      freq: num(false, 'Hz', 'ripple frequency, Hz', POSITIVE_KEY, DC_ONLY),
+      amp: num(false, 'V', 'ripple amplitude, V peak', POSITIVE_KEY, DC_ONLY),
       method: { value: 'method', words: ['ac', 'tran', 'both'], benches: DC_ONLY, doc: 'small-signal, transient or both' },
     },
   },
@@ -126,15 +187,43 @@ export const FIGURE_KIND_INFO: Readonly<Record<FigureKind, FigureKindInfo>> = {
   sag: {
     title: 'input-dip ride-through',
     keys: {
-      depth: num(true, 'dip depth, ratio of the nominal input (or amplitude)'),
-      dur: num(false, 'time at the bottom of the dip, s (whole cycles on a sine-fed stage)'),
-      edge: num(false, 'fall and recovery time, s'),
-      fall: num(true, 'largest acceptable output fall: V, or a % of Vout_nom'),
-      ripple: num(false, 'ripple riding on the input, V peak', DC_ONLY),
-      freq: num(false, 'frequency of that ripple, Hz', DC_ONLY),
+      depth: num(true, 'ratio', 'dip depth, ratio of the nominal input (or amplitude)', bounds({ above: 0, atMost: 1 })),
+      dur: num(false, 's', 'time at the bottom of the dip, s (whole cycles on a sine-fed stage)', bounds({ above: 0, atMost: MAX_SAG_DURATION })),
+      edge: num(false, 's', 'fall and recovery time, s', bounds({ atLeast: 0, atMost: MAX_SAG_DURATION })),
+      fall: num(true, 'V', 'largest acceptable output fall: V, or a % of Vout_nom', POSITIVE_KEY, BENCH_KINDS, FALL_PERCENT),
+      ripple: num(false, 'V', 'ripple riding on the input, V peak', bounds({ atLeast: 0 }), DC_ONLY),
+      freq: num(false, 'Hz', 'frequency of that ripple, Hz', POSITIVE_KEY, DC_ONLY),
     },
   },
 };
+
+/** True when `x` is finite and within `b`. */
+export function withinKeyBounds(b: KeyBounds, x: number): boolean {
+  if (!Number.isFinite(x)) return false;
+  if (b.above !== undefined && !(x > b.above)) return false;
+  if (b.atLeast !== undefined && !(x >= b.atLeast)) return false;
+  if (b.below !== undefined && !(x < b.below)) return false;
+  return !(b.atMost !== undefined && !(x <= b.atMost));
+}
+
+/** A key's range on a bench as docs/figures.md ("Key ranges") writes it; `not used` for a bench that does not read the key. */
+export function describeKeyRange(key: FigureNumberKey, bench: BenchKind): string {
+  const r = key.range[bench];
+  if (r === undefined) return 'not used';
+  const base = r.kind === 'input-level' ? "V of the nominal input's sign, ≠ 0" : describeKeyBounds(r.bounds, r.unit ?? key.unit);
+  return key.percentRange ? `${base}; as a %: ${describeKeyBounds(key.percentRange, 'ratio')}` : base;
+}
+
+/** Bounds as docs/figures.md writes them, e.g. `> 0 Hz`, `> 0 and ≤ 100 s`. */
+export function describeKeyBounds(b: KeyBounds, unit: string): string {
+  const u = unit === 'ratio' || unit === '' ? '' : ` ${unit}`;
+  const parts: string[] = [];
+  if (b.above !== undefined) parts.push(`> ${b.above}`);
+  if (b.atLeast !== undefined) parts.push(`≥ ${b.atLeast}`);
+  if (b.below !== undefined) parts.push(`< ${b.below}`);
+  if (b.atMost !== undefined) parts.push(`≤ ${b.atMost}`);
+  return parts.length === 0 ? 'any finite value' : `${parts.join(' and ')}${u}`;
+}
 
 /** Figure kinds in the order figures.md lists them. */
 export const FIGURE_KINDS: readonly FigureKind[] = Object.keys(FIGURE_KIND_INFO) as FigureKind[];

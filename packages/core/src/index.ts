@@ -41,7 +41,7 @@ export { MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/safety.js';
 export { formatSI } from './units.js';
 
 export { FIGURES, FIGURE_KIND_INFO, FIGURE_KINDS, BENCH_KINDS, figureEntry, figureKindOf, figureUnit } from './figure-registry.js';
-export type { FigureEntry, FigureKindInfo, FigureKey, FigureNumberKey, FigureMethodKey, FigureUnit, Better, BenchKind } from './figure-registry.js';
+export type { FigureEntry, FigureKindInfo, FigureKey, FigureNumberKey, FigureMethodKey, FigureUnit, Better, BenchKind, KeyBounds, KeyRange } from './figure-registry.js';
 export { measureFigures } from './measure/figures.js';
 export type { FigureReport, MeasuredFigure, FigureMeasured, FigureNotMeasured, FigureValues, ValueNotMeasured, LimitResult } from './measure/figures.js';
 export { createBench } from './measure/create-bench.js';

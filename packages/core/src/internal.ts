@@ -49,8 +49,8 @@ export { safetyWarnings, MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/sa
 
 export { formatSI } from './units.js';
 
-export { FIGURES, FIGURE_KIND_INFO, FIGURE_KINDS, BENCH_KINDS, figureEntry, figureKindOf, figureUnit } from './figure-registry.js';
-export type { FigureEntry, FigureKindInfo, FigureKey, FigureNumberKey, FigureMethodKey, FigureUnit, Better, BenchKind } from './figure-registry.js';
+export { FIGURES, FIGURE_KIND_INFO, FIGURE_KINDS, BENCH_KINDS, figureEntry, figureKindOf, figureUnit, describeKeyBounds, describeKeyRange, withinKeyBounds, MAX_SAG_DURATION } from './figure-registry.js';
+export type { FigureEntry, FigureKindInfo, FigureKey, FigureNumberKey, FigureMethodKey, FigureUnit, Better, BenchKind, KeyBounds, KeyRange } from './figure-registry.js';
 export { measureFigures, checkLimits, unusedKeyNotes, isSineFed } from './measure/figures.js';
 export type { FigureReport, MeasuredFigure, FigureMeasured, FigureNotMeasured, FigureValues, ValueNotMeasured, LimitResult } from './measure/figures.js';
 export { createBench } from './measure/create-bench.js';

@@ -24,7 +24,7 @@ export type { BjtModel, DiodeModel, ParamSpec } from './models.js';
 export type { SourceSpec, WaveformSpec } from './sources.js';
 
 export {
-  AREA_RANGE, DEVICES, DEVICE_KINDS, MODEL_KINDS, MODEL_TYPES, RATING_RANGE,
+  AREA_RANGE, DEVICES, DEVICE_KINDS, MODEL_KINDS, MODEL_TYPES, RATING_RANGE, WAVEFORM_RANGES,
   buildModel, dissipates, kindOfLetter, knownParams, modelKindOf, paramTable,
 } from './registry.js';
 export type { CardFamily, DeviceByKind, DeviceEntry, DeviceLetter, DeviceSpecs, ModelKind, ModelType, ValueField } from './registry.js';

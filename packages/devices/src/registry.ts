@@ -16,7 +16,7 @@ import { createDiode } from './diode.js';
 import { createCurrentSource, createVoltageSource } from './independent.js';
 import { BJT_PARAMS, DIODE_PARAMS, bjtModel, diodeModel, type BjtModel, type DiodeModel, type ParamSpec } from './models.js';
 import { createCapacitor, createInductor, createResistor } from './passive.js';
-import { ANY, COUPLING, NON_NEGATIVE, NON_ZERO, POSITIVE, type ValueRange } from './ranges.js';
+import { ANY, COUPLING, NON_NEGATIVE, POSITIVE, type ValueRange } from './ranges.js';
 import type { SourceSpec } from './sources.js';
 import type { Bjt, Capacitor, Ccvs, Cccs, CurrentSource, Diode, Inductor, Resistor, Vccs, Vcvs, VoltageSource } from './types.js';
 
@@ -27,7 +27,7 @@ import type { Bjt, Capacitor, Ccvs, Cccs, CurrentSource, Diode, Inductor, Resist
  * origin and rating, so the two layers cannot drift apart.
  */
 export interface DeviceSpecs<N> {
-  resistor: { readonly nodes: readonly [N, N]; /** Ω, non-zero. */ readonly ohms: number };
+  resistor: { readonly nodes: readonly [N, N]; /** Ω, > 0. */ readonly ohms: number };
   capacitor: { readonly nodes: readonly [N, N]; /** F. */ readonly farads: number; /** V. */ readonly ic: number | undefined };
   inductor: { readonly nodes: readonly [N, N]; /** H. */ readonly henries: number; /** A. */ readonly ic: number | undefined };
   vsource: { readonly nodes: readonly [N, N]; readonly spec: SourceSpec };
@@ -112,6 +112,8 @@ export interface ValueField {
   readonly unit: string;
   /** Values accepted (checked on plain numbers by the reader, on every value by the elaborator). */
   readonly range: ValueRange;
+  /** The error code of a value of exactly 0 when it has one of its own (a 0 Ω resistor), with the hint that goes with it. */
+  readonly zero?: { readonly code: string; readonly hint: string };
 }
 
 /** One registry entry: everything the layers need to know about a device kind. */
@@ -152,7 +154,7 @@ const FOUR = ['n+', 'n-', 'nc+', 'nc-'] as const;
 export const DEVICES = {
   resistor: {
     letter: 'R', family: 'passive', title: 'resistor', form: 'Rname n+ n- value [pmax=W]', terminals: TWO,
-    value: { what: 'resistance', unit: 'Ω', range: NON_ZERO }, model: undefined, currents: [''], dissipates: true,
+    value: { what: 'resistance', unit: 'Ω', range: POSITIVE, zero: { code: 'zero-resistance', hint: 'a resistance > 0 (use a V source of 0 V for a short)' } }, model: undefined, currents: [''], dissipates: true,
     allocationRank: 1,
     create: (name, s) => createResistor(name, s.nodes[0], s.nodes[1], s.ohms),
   },
@@ -240,6 +242,24 @@ export const AREA_RANGE: ValueRange = POSITIVE;
 
 /** The valid range of a `pmax=` rating, W. */
 export const RATING_RANGE: ValueRange = POSITIVE;
+
+/**
+ * Valid ranges of source waveform arguments and small-signal magnitudes
+ * (docs/models.md, "Valid ranges"): levels, amplitudes and phases take any
+ * finite value; these are the rest.
+ */
+export const WAVEFORM_RANGES = {
+  /** sin frequency, Hz: a sine of 0 Hz is a DC value (write it as one), a negative one a phase flip. */
+  frequency: POSITIVE,
+  /** Delays, rise and fall times, pulse widths, pwl times, s: time starts at 0 and runs forward. */
+  time: NON_NEGATIVE,
+  /** sin damping theta, 1/s: a negative one makes the sine grow without bound. */
+  damping: NON_NEGATIVE,
+  /** pulse period, s (and at least tr + pw + tf). */
+  period: POSITIVE,
+  /** `ac` magnitude, V or A: a phase of 180° turns it round. */
+  acMagnitude: NON_NEGATIVE,
+} as const satisfies Record<string, ValueRange>;
 
 /** True for the kinds whose power the dissipation figure reports (read by measure/). */
 export function dissipates(kind: DeviceKind): boolean {

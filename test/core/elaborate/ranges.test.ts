@@ -8,6 +8,7 @@
  * under a logarithm in models.md), M < 1 (the depletion form's 1/(1 − M)).
  */
 import { describe, expect, test } from 'vitest';
+import { parseNetlist } from '@railcheck/core';
 import { elaborationErrors, flatten } from './support.js';
 
 /** docs/models.md, "Valid ranges": [parameter, a value just outside, a value just inside]. */
@@ -77,5 +78,63 @@ describe('element values', () => {
   test('area > 0 and pmax > 0', () => {
     expect(elaborationErrors('Area\nV1 a 0 1\nR1 a b 1k\nD1 b 0 dm {-2}\n.model dm D\n')[0]!.expected).toBe('area > 0');
     expect(elaborationErrors('Rating\nV1 a 0 1\nR1 a b 1k pmax={0}\n')[0]!.expected).toBe('power rating (pmax) > 0');
+  });
+});
+
+describe('resistance > 0', () => {
+  test('a negative resistor is refused: by the reader at its value, and as an expression at elaboration', () => {
+    const parsed = parseNetlist('R\nV1 a 0 1\nR1 a 0 -1k\n', { file: 'e.cir' });
+    expect(parsed.ok).toBe(false);
+    if (!parsed.ok) expect(parsed.errors[0]).toMatchObject({ code: 'bad-value', pos: { line: 3, column: 8 } });
+    const errs = elaborationErrors('R\n.param r0=-1k\nV1 a 0 1\nR1 a 0 {r0}\n');
+    expect(errs[0]).toMatchObject({ code: 'out-of-range', pos: { line: 4 } });
+    expect(errs[0]!.expected).toBe('resistance > 0');
+    expect(elaborationErrors('R\n.param r0=0\nV1 a 0 1\nR1 a 0 {r0}\n')[0]!.code).toBe('zero-resistance');
+    expect(() => flatten('R\nV1 a 0 1\nR1 a 0 1u\n')).not.toThrow();
+  });
+});
+
+/**
+ * Source waveforms and small-signal magnitudes (docs/models.md, "Valid
+ * ranges"; docs/netlist.md, "Waveforms"): each refusal at the argument's
+ * own column. [source line, code, the argument text whose column the error has].
+ */
+const WAVEFORMS: ReadonlyArray<readonly [string, string, string]> = [
+  ['V1 a 0 pulse(0 1 0 1u 1u -5u 20u)', 'out-of-range', '-5u'],
+  ['V1 a 0 pulse(0 1 -1m 1u 1u 5u 20u)', 'out-of-range', '-1m'],
+  ['V1 a 0 pulse(0 1 0 -1u 1u 5u 20u)', 'out-of-range', '-1u'],
+  ['V1 a 0 pulse(0 1 0 1u -2u 5u 20u)', 'out-of-range', '-2u'],
+  ['V1 a 0 pulse(0 1 0 1u 1u 5u -20u)', 'out-of-range', '-20u'],
+  ['V1 a 0 pulse(0 1 0 1u 1u 5u 0)', 'out-of-range', '0)'],
+  ['V1 a 0 pulse(0 1 0 1u 1u 5u 6u)', 'out-of-range', '6u'],
+  ['V1 a 0 sin(0 1 0)', 'out-of-range', '0)'],
+  ['V1 a 0 sin(0 1 -50)', 'out-of-range', '-50'],
+  ['V1 a 0 sin(0 1 50 -1m)', 'out-of-range', '-1m'],
+  ['V1 a 0 sin(0 1 50 0 -3)', 'out-of-range', '-3'],
+  ['V1 a 0 pwl({-1m} 0 1m 1)', 'out-of-range', '{-1m}'],
+  ['V1 a 0 pwl(0 0 {2m} 1 {1m} 2)', 'pwl-order', '{1m}'],
+  ['V1 a 0 pwl(0 0 1m 1 {1m} 2)', 'pwl-order', '{1m}'],
+  ['V1 a 0 dc 1 ac -1', 'out-of-range', 'V1'],
+  ['I1 a 0 pulse(0 1m 0 1u 1u -5u 20u)', 'out-of-range', '-5u'],
+];
+
+describe('source waveforms', () => {
+  for (const [line, code, at] of WAVEFORMS) {
+    test(`${line}: ${code} at ${at}`, () => {
+      const errs = elaborationErrors(`W\n${line}\nR1 a 0 1k\n`);
+      expect(errs).toHaveLength(1);
+      expect(errs[0]).toMatchObject({ code, pos: { line: 2, column: line.lastIndexOf(at) + 1 } });
+    });
+  }
+
+  test('boundary values are accepted', () => {
+    for (const line of [
+      'V1 a 0 pulse(0 1 0 1u 1u 5u 7u)', // the period exactly holds rise, width and fall
+      'V1 a 0 pulse(0 1 0 0 0 0 1u)',
+      'V1 a 0 pulse(0 1)',
+      'V1 a 0 sin(0 -1 1m 0 0 -90)', // negative amplitude and phase are meaningful
+      'V1 a 0 pwl(0 0 {1u} 1)',
+      'V1 a 0 dc 1 ac 0 -180',
+    ]) expect(() => flatten(`W\n${line}\nR1 a 0 1k\n`), line).not.toThrow();
   });
 });

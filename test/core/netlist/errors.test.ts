@@ -31,7 +31,7 @@ const CASES: readonly Case[] = [
   { name: 'bad number', body: 'R1 a b 4k7', code: 'bad-number', line: 2, column: 8, expected: /number/, message: /4\.7k, not 4k7/ },
   { name: 'number out of range', body: 'C1 a b 1e999', code: 'bad-number', line: 2, column: 8, message: /out of range/ },
   { name: 'percent where no ratio is expected', body: 'R1 a b 5%', code: 'bad-number', line: 2, column: 8, message: /ratio/ },
-  { name: 'zero resistor', body: 'R1 a b 0', code: 'zero-resistance', line: 2, column: 8, message: /non-zero/ },
+  { name: 'zero resistor', body: 'R1 a b 0', code: 'zero-resistance', line: 2, column: 8, message: /must not be zero/ },
   { name: 'zero resistor written with suffix', body: 'R1 a b 0k', code: 'zero-resistance', line: 2, column: 8 },
   { name: 'wrong node count on Q', body: 'Q1 c b qn', code: 'wrong-node-count', line: 2, column: 10, expected: /collector base emitter/ },
   { name: 'wrong node count on E', body: 'E1 out 0 in 2', code: 'wrong-node-count', line: 2, column: 14, expected: /nc\+ nc-/ },

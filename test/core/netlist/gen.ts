@@ -1,7 +1,7 @@
 /**
  * fast-check generators of valid netlist ASTs (every card kind of
  * docs/netlist.md, within the rules the reader enforces: unique
- * names per scope, non-zero resistors, increasing pwl times, one .supply,
+ * names per scope, positive resistors, increasing pwl times, one .supply,
  * limits only on figures asked for, run directives only at top level).
  */
 import fc from 'fast-check';
@@ -49,7 +49,9 @@ export function value(min = -1e300): fc.Arbitrary<Value> {
 }
 const nonZero = fc.oneof(finite(-1e300).filter((v) => v !== 0).map(plain), suffixed, exprValue);
 const positive = fc.oneof(finite(Number.MIN_VALUE).map(plain), suffixed, exprValue);
-const ratio = fc.oneof(value(0), fc.double({ min: 0, max: 10, noNaN: true }).map((v): Value => ({ kind: 'number', value: v, pos: P, text: '?', percent: true })));
+/** A tolerance ratio: the reader refuses plain numbers outside (0, 1) (docs/netlist.md, .spread). */
+const tolerance = fc.double({ min: 1e-6, max: 0.999, noNaN: true });
+const ratio = fc.oneof(tolerance.map(plain), exprValue, tolerance.map((v): Value => ({ kind: 'number', value: v, pos: P, text: '?', percent: true })));
 
 const opt = <T>(a: fc.Arbitrary<T>) => fc.option(a, { nil: undefined });
 
@@ -84,7 +86,7 @@ function element(name: string): fc.Arbitrary<Card> {
   const n2 = fc.tuple(node, node);
   const mk = (a: fc.Arbitrary<object>) => a.map((o) => clean({ ...origin, kind, name, ...o }) as unknown as Card);
   switch (kind) {
-    case 'R': return mk(fc.record({ nodes: n2, value: nonZero, pmax }));
+    case 'R': return mk(fc.record({ nodes: n2, value: positive, pmax }));
     // Values within the ranges the reader checks on plain numbers (docs/models.md): C ≥ 0, L > 0, 0 < k ≤ 1.
     case 'C': return mk(fc.record({ nodes: n2, value: value(0), ic: opt(value()), pmax }));
     case 'L': return mk(fc.record({ nodes: n2, value: positive, ic: opt(value()), pmax }));

@@ -8,6 +8,7 @@ import type { FlatAnalysis, FlatCircuit, FlatElement, FlatFigure, FlatLimit, Fla
 import { GROUND_KEY } from './flat.js';
 import type { Evaluator } from './evaluate.js';
 import type { Scope } from './scope.js';
+import { checkFigureKeys, checkSpread } from './directive-ranges.js';
 import { MAX_AC_POINTS, MAX_ANALYSES, MAX_DC_POINTS, MAX_TEMPERATURES, MAX_TRAN_GRID_POINTS } from '../budgets.js';
 
 /** The directive part of a flat circuit. */
@@ -15,6 +16,16 @@ export type ResolvedDirectives = Pick<FlatCircuit, 'analyses' | 'temperatures' |
 
 /** Lowest temperature accepted, °C (absolute zero is not a place to simulate a junction). */
 const MIN_CELSIUS = -273;
+
+/**
+ * The rail is measured between two different nodes, and the feed is
+ * neither of them (docs/netlist.md, ".supply"): `out` on `ref` would be a
+ * rail of 0 V whose every ratio is 0/0.
+ */
+function checkSupplyNodes(ev: Evaluator, c: SupplyCard, s: FlatSupply): void {
+  if (s.out === s.ref) ev.fail(c, 'bad-supply-nodes', `.supply out=${c.kind === 'supply' ? c.out : ''} is the reference node itself${s.ref === GROUND_KEY ? ' (ground)' : ''}, so the rail is always 0 V`, 'out= a node other than ref= (default ground)');
+  else if (s.feed !== undefined && (s.feed === s.out || s.feed === s.ref)) ev.fail(c, 'bad-supply-nodes', `.supply feed= is the ${s.feed === s.out ? 'output' : 'reference'} node`, "feed= the regulator's own input, a node other than out= and ref=");
+}
 
 /** Resolves directives; problems are recorded on `ev`. Values are evaluated in the top-level scope `top`. */
 export function resolveDirectives(
@@ -98,6 +109,8 @@ export function resolveDirectives(
   const figures: FlatFigure[] = [];
   const limits: FlatLimit[] = [];
   const spreads: FlatSpread[] = [];
+  const figureCards: Array<Extract<SupplyCard, { kind: 'figure' }>> = [];
+  const spreadTargets = new Set<string>();
   const nodeKey = (card: SupplyCard, written: string, role: string): string => {
     const key = written.toLowerCase();
     if (key === '0' || key === 'gnd') return GROUND_KEY;
@@ -123,6 +136,7 @@ export function resolveDirectives(
           load: c.load?.toLowerCase(),
           feed: c.feed === undefined ? undefined : nodeKey(c, c.feed, 'feed'),
         };
+        checkSupplyNodes(ev, c, supply);
       })
       .with({ kind: 'figure' }, (c) => {
         const keys = new Map<string, number>();
@@ -132,11 +146,17 @@ export function resolveDirectives(
           if (k.value.kind === 'number' && k.value.percent) percentKeys.add(k.name.toLowerCase());
         }
         figures.push({ origin: c, figure: c.figure, keys, percentKeys, method: c.method });
+        figureCards.push(c);
       })
       .with({ kind: 'limit' }, (c) => limits.push({ origin: c, figure: c.figure, op: c.op, value: num(c.value) }))
-      .with({ kind: 'spread' }, (c) => spreads.push({ origin: c, target: c.target.toLowerCase(), ratio: num(c.ratio), distribution: c.distribution }))
+      .with({ kind: 'spread' }, (c) => {
+        const spread: FlatSpread = { origin: c, target: c.target.toLowerCase(), ratio: num(c.ratio), distribution: c.distribution };
+        checkSpread(ev, c, spread, names, top, spreadTargets);
+        spreads.push(spread);
+      })
       .exhaustive();
   }
+  checkFigureKeys(ev, figureCards, figures, supply, names);
   if ((figures.length > 0 || limits.length > 0) && !supply) {
     const first = figures[0]?.origin ?? limits[0]!.origin;
     ev.at(first);

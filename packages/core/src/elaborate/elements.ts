@@ -3,7 +3,7 @@
  * scope of its instance and binds its model.
  */
 import {
-  AREA_RANGE, DEVICES, MODEL_KINDS, RATING_RANGE, buildModel, describeRange, inRange, paramTable,
+  AREA_RANGE, DEVICES, MODEL_KINDS, RATING_RANGE, WAVEFORM_RANGES, buildModel, describeRange, inRange, paramTable,
   type DeviceKind, type ModelType, type SourceSpec, type ValueField, type ValueRange, type WaveformSpec,
 } from '@railcheck/devices';
 import { match } from 'ts-pattern';
@@ -30,22 +30,26 @@ function rangeError(env: ElementEnv, at: CardOrigin, message: string, expected: 
   env.ev.fail(at, 'out-of-range', message, expected);
 }
 
-/** Evaluates `v` and checks it against `range`; an error names `what` and the value. NaN (already reported) passes. */
-function ranged(env: ElementEnv, card: DeviceCard, v: Value, what: string, range: ValueRange): number {
-  const x = env.ev.num(v, env.scope);
+/** Checks the evaluated `x` against `range`; an error names `what` and the value. NaN (already reported) passes. */
+function checkRange(env: ElementEnv, card: DeviceCard, x: number, what: string, range: ValueRange): number {
   if (!Number.isNaN(x) && !inRange(range, x)) rangeError(env, card, `${card.name}: the ${what} ${x} is out of range`, `${what} ${describeRange(range)}`);
   return x;
+}
+
+/** Evaluates `v` and checks it against `range`. */
+function ranged(env: ElementEnv, card: DeviceCard, v: Value, what: string, range: ValueRange): number {
+  return checkRange(env, card, env.ev.num(v, env.scope), what, range);
 }
 
 /** The card's main value (resistance, capacitance, gain, coupling coefficient...) checked against the registry's range. */
 function mainValue(env: ElementEnv, card: DeviceCard, kind: DeviceKind, v: Value): number {
   const field = DEVICES[kind].value as ValueField;
-  if (field.range.nonZero === true) {
-    const x = env.ev.num(v, env.scope);
-    if (x === 0) env.ev.fail(card, 'zero-resistance', `${card.name} has a value of zero`, `a non-zero ${field.what} in ohms`);
+  const x = env.ev.num(v, env.scope);
+  if (field.zero && x === 0) {
+    env.ev.fail(card, field.zero.code, `${card.name}: the ${field.what} must not be zero`, field.zero.hint);
     return x;
   }
-  return ranged(env, card, v, field.what, field.range);
+  return checkRange(env, card, x, field.what, field.range);
 }
 
 function nodesOf<T extends readonly string[]>(env: ElementEnv, written: T): { -readonly [K in keyof T]: string } {
@@ -84,13 +88,60 @@ function valueAtZero(w: WaveformSpec): number {
     .exhaustive();
 }
 
+/** The place of value `v` of `card`, quoting the card's line when `v` is on it. */
+function placeOf(card: CardOrigin, v: Value): CardOrigin {
+  return { pos: v.pos, lineText: v.pos.line === card.pos.line && v.pos.file === card.pos.file ? card.lineText : '' };
+}
+
+/**
+ * Checks each waveform argument against its range (docs/netlist.md,
+ * "Waveforms"; docs/models.md, "Valid ranges"), each error at the
+ * argument's own column. NaN (already reported) passes.
+ */
+function checkWaveform(env: ElementEnv, card: DeviceCard, w: Waveform, spec: WaveformSpec): void {
+  const check = (v: Value | undefined, x: number | undefined, what: string, unit: string, range: ValueRange): void => {
+    if (v === undefined || x === undefined || Number.isNaN(x) || inRange(range, x)) return;
+    rangeError(env, placeOf(card, v), `${card.name}: the ${what} ${x} ${unit} is out of range`, `${what} ${describeRange(range)} ${unit}`);
+  };
+  match([w, spec] as const)
+    .with([{ kind: 'sin' }, { kind: 'sin' }], ([a, s]) => {
+      check(a.freq, s.freq, 'sin frequency', 'Hz', WAVEFORM_RANGES.frequency);
+      check(a.td, s.td, 'sin delay td', 's', WAVEFORM_RANGES.time);
+      check(a.theta, s.theta, 'sin damping theta', '1/s', WAVEFORM_RANGES.damping);
+    })
+    .with([{ kind: 'pulse' }, { kind: 'pulse' }], ([a, p]) => {
+      check(a.td, p.td, 'pulse delay td', 's', WAVEFORM_RANGES.time);
+      check(a.tr, p.tr, 'pulse rise time tr', 's', WAVEFORM_RANGES.time);
+      check(a.tf, p.tf, 'pulse fall time tf', 's', WAVEFORM_RANGES.time);
+      check(a.pw, p.pw, 'pulse width pw', 's', WAVEFORM_RANGES.time);
+      check(a.per, p.per, 'pulse period per', 's', WAVEFORM_RANGES.period);
+      // The period holds the whole pulse: rise, width and fall as written (an omitted edge counts as 0 here).
+      const shape = (p.tr ?? 0) + (p.pw ?? 0) + (p.tf ?? 0);
+      if (a.per && p.per !== undefined && p.per > 0 && p.per < shape) {
+        rangeError(env, placeOf(card, a.per), `${card.name}: the pulse period ${p.per} s is shorter than its rise, width and fall (${shape} s)`, 'per ≥ tr + pw + tf');
+      }
+    })
+    .with([{ kind: 'pwl' }, { kind: 'pwl' }], ([a, p]) => {
+      check(a.points[0]?.t, p.times[0], 'first pwl time', 's', WAVEFORM_RANGES.time);
+      for (let k = 1; k < p.times.length; k++) {
+        const t = p.times[k]!;
+        const before = p.times[k - 1]!;
+        if (!Number.isNaN(t) && !Number.isNaN(before) && !(t > before)) {
+          env.ev.fail(placeOf(card, a.points[k]!.t), 'pwl-order', `${card.name}: pwl time ${t} s does not come after the time before it (${before} s)`, 'pwl times in increasing order');
+        }
+      }
+    })
+    .otherwise(() => undefined);
+}
+
 function sourceSpec(env: ElementEnv, card: Extract<ElementCard, { kind: 'V' | 'I' }>): SourceSpec {
   const { ev, scope } = env;
   const waveform = card.waveform ? waveformSpec(ev, scope, card.waveform) : undefined;
+  if (card.waveform && waveform) checkWaveform(env, card, card.waveform, waveform);
   const dc = card.dc !== undefined ? ev.num(card.dc, scope) : waveform ? valueAtZero(waveform) : 0;
   return {
     dc,
-    acMag: card.ac ? ev.num(card.ac.mag, scope) : 0,
+    acMag: card.ac ? ranged(env, card, card.ac.mag, 'ac magnitude', WAVEFORM_RANGES.acMagnitude) : 0,
     acPhaseDeg: card.ac?.phase ? ev.num(card.ac.phase, scope) : 0,
     waveform,
   };

@@ -14,7 +14,6 @@ import type { Bench } from './bench.js';
 import { dissipation } from './dissipation.js';
 import { fallVolts, type Dropout } from './dropout.js';
 import { describeSteady } from './periodic.js';
-import { levelSignWarnings } from './polarity.js';
 import { lineRegulation, loadRegulation } from './regulation.js';
 import { rippleRejection } from './ripple.js';
 import { sagRideThrough } from './sag.js';
@@ -56,7 +55,6 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
     .returnType<FigureValues>()
     .with('line', () => {
       const r = lineRegulation(bench, { from: k.get('from'), to: k.get('to') });
-      ctx.warnings.push(...levelSignWarnings(bench, f));
       lineBelowDropout(bench, f, r.from, ctx);
       const conditions = match(bench)
         .with({ kind: 'dc' }, () => `input ${volts(r.from)} → ${volts(r.to)}, ${loadText}`)

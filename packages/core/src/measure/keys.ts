@@ -1,13 +1,13 @@
 /**
- * Range checks of `.figure` keys at the figure that reads them: a key
+ * Range checks of the options a figure function is called with: a value
  * outside its range would make the measurement meaningless or endless (a
- * ripple at 0 Hz has an infinite period), so the figure is not measured,
- * with a located reason (figures.md, "Figures that cannot be measured").
+ * ripple at 0 Hz has an infinite period). A netlist's `.figure` keys are
+ * refused earlier, at elaboration, against the figure registry's ranges
+ * (docs/figures.md, "Key ranges"); these checks guard library callers.
  */
 import { errorAt, RailcheckError } from '../errors.js';
 
-/** Longest dip a sag figure simulates, s: far beyond any hold-up a supply is asked for (common practice, no source). */
-export const MAX_SAG_DURATION = 100;
+export { MAX_SAG_DURATION } from '../figure-registry.js';
 
 /**
  * Throws RailcheckError unless `ok(value)`; `expected` says the range in

@@ -77,8 +77,8 @@ function opt<K extends string, V>(key: K, v: V | undefined): { [P in K]?: V } {
 /** Reports a plain-number value outside its field's valid range (expressions are checked at elaboration). */
 function checkValue(c: Cursor, name: Token, field: ValueField, value: Value, at: Token | undefined): void {
   if (value.kind !== 'number' || inRange(field.range, value.value)) return;
-  if (field.range.nonZero === true) {
-    c.note('zero-resistance', `${name.text}: value must be non-zero`, at, `a non-zero ${field.what} (use a V source of 0 V for a short)`);
+  if (field.zero && value.value === 0) {
+    c.note(field.zero.code, `${name.text}: the ${field.what} must not be zero`, at, field.zero.hint);
     return;
   }
   c.note('bad-value', `${name.text}: the ${field.what} ${value.text} is out of range`, at, `${field.what} ${describeRange(field.range)}`);

@@ -103,6 +103,11 @@ export function parseLimit(c: Cursor): SupplyCard {
   return { ...origin, kind: 'limit', figure: ft.text, op, value };
 }
 
+/** A tolerance ratio lies in (0, 1): 0 is no tolerance, and 100 % would take a value to zero (docs/netlist.md, .spread). */
+export const SPREAD_RATIO = { above: 0, below: 1 } as const;
+/** What a tolerance must be, in words. */
+export const SPREAD_RATIO_EXPECTED = 'a ratio > 0 and < 1 such as 5% or 0.05';
+
 const ALL_MODEL_PARAMS = [...new Set([...DIODE_PARAMS, ...BJT_PARAMS].map((p) => p.name))];
 
 /** `.spread <element>|<model>.<PARAM> <ratio> [uniform|gauss]`; a `<model>.<PARAM>` target keeps the model as written and the parameter upper-cased. */
@@ -124,7 +129,7 @@ export function parseSpread(c: Cursor): SupplyCard {
   }
   const rt = c.peek();
   const ratio = c.value('the tolerance ratio', form, { percent: true });
-  if (ratio.kind === 'number' && ratio.value < 0) c.note('bad-value', 'a tolerance cannot be negative', rt, 'a ratio ≥ 0 such as 5% or 0.05');
+  if (ratio.kind === 'number' && !(ratio.value > SPREAD_RATIO.above && ratio.value < SPREAD_RATIO.below)) c.note('bad-value', `a tolerance of ${ratio.text} is out of range`, rt, SPREAD_RATIO_EXPECTED);
   let distribution: 'uniform' | 'gauss' = 'uniform';
   if (!c.done) {
     const dt = c.name('the distribution', 'uniform or gauss');

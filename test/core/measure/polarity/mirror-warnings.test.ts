@@ -113,14 +113,15 @@ describe('a negative DC rail warns exactly where its positive mirror does', () =
     expect(where(n)).toEqual(where(p));
   });
 
-  test('a line range written as magnitudes on a negative stage is warned about, not taken as below dropout', () => {
-    const n = run(sensorRail(-1, 'plain', ['.figure line from=10.8 to=13.2']));
-    const codes = n.warnings.map((w) => w.code);
-    expect(codes.filter((c) => c === 'level-opposite-sign')).toHaveLength(2);
-    expect(codes).not.toContain('line-below-dropout');
-    expect(n.warnings.find((w) => w.code === 'level-opposite-sign')!.message).toMatch(/from=10\.8 V.*−12 V|from=10\.8 V.*-12 V/);
-    // The same range with its sign is quiet.
-    expect(run(sensorRail(-1, 'plain', ['.figure line from=-10.8 to=-13.2'])).warnings.map((w) => w.code)).not.toContain('level-opposite-sign');
+  test('a line range written as magnitudes on a negative stage is refused at its key, not measured on a reversed input', () => {
+    const r = runNetlist(sensorRail(-1, 'plain', ['.figure line from=10.8 to=13.2']), { file: 'rail.cir' });
+    expect(r.ok).toBe(false);
+    if (r.ok) return;
+    expect(r.errors.map((e) => e.code)).toEqual(['bad-figure-key', 'bad-figure-key']);
+    expect(r.errors[0]!.message).toMatch(/from=10\.8/);
+    expect(r.errors[0]!.expected).toMatch(/< 0 V/);
+    // The same range with its sign is measured, and not taken as below dropout.
+    expect(run(sensorRail(-1, 'plain', ['.figure line from=-10.8 to=-13.2'])).warnings.map((w) => w.code)).not.toContain('line-below-dropout');
   });
 });
 
