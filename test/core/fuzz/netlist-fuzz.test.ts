@@ -13,8 +13,8 @@
  * of cases (default 300, the CI size), FUZZ_CASE_MS the budget per case
  * (default 10000 ms), FUZZ_WORKERS the worker threads (default 1: CI has
  * two cores), FUZZ_PENDING=1 lets in the inputs whose budgets are still
- * being bounded (mutate.ts). The failing cases are written to a folder
- * that the failure message names.
+ * being bounded (mutate.ts) and runs the reproducers of pending.ts. The
+ * failing cases are written to a folder that the failure message names.
  */
 import fc from 'fast-check';
 import { mkdtempSync, writeFileSync } from 'node:fs';
@@ -25,6 +25,7 @@ import { fcSeed } from '../../helpers/device-harness.js';
 import type { CaseOutcome, CaseRequest } from './classify.js';
 import { fuzzCase, seedNetlists } from './mutate.js';
 import { runCases } from './pool.js';
+import { pendingCases } from './pending.js';
 
 const seed = fcSeed('core/fuzz/netlist-fuzz.test.ts');
 const env = (name: string, fallback: number): number => {
@@ -68,4 +69,13 @@ describe('netlist fuzzing', () => {
     expect(bad.map(({ o, k }) => `case ${k}: ${o.kind}: ${o.detail.split('\n')[0]}`), `failures${where}`).toEqual([]);
     // The vitest budget covers every case running to its own budget; a healthy CI-size run takes about 15 s.
   }, 60_000 + (CASES * CASE_MS) / WORKERS);
+
+  // The reproducers waiting for budgets and value ranges (pending.ts): in with FUZZ_PENDING=1, and by default once those are merged.
+  test.skipIf(!PENDING)('the pending reproducers end cleanly', async () => {
+    const pending = pendingCases();
+    const outcomes = await runCases(pending.map((p) => ({ text: p.text, lib: '', flags: [], viaCommand: false })), { oldMb: 256, youngMb: 32, caseMs: CASE_MS, workers: WORKERS });
+    const lines = outcomes.map((o, k) => `${o.kind.padEnd(11)} [${pending[k]!.waitsFor}] ${pending[k]!.what}${o.detail ? `: ${o.detail.split('\n')[0]}` : ''}`);
+    console.log(`[fuzz] pending reproducers:\n${lines.join('\n')}`);
+    expect(lines.filter((_, k) => !['ok', 'clean-error'].includes(outcomes[k]!.kind))).toEqual([]);
+  }, 60_000 + (pendingCases().length * CASE_MS) / WORKERS);
 });
