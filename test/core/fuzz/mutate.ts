@@ -62,8 +62,12 @@ const numbers = (pending: boolean): fc.Arbitrary<string> =>
     (pending ? fc.double({ noNaN: false }) : fc.double({ min: -1e12, max: 1e12 })).map(String),
     fc.integer({ min: -5, max: 1e7 }).map(String),
   );
-/** In waveform arguments while budgets are pending: no sub-volt sine amplitudes either (a sine-fed stage at 1 mV takes about 10 s to report not-settled; pending.ts). */
-const WAVE_SAFE = ['0', '-1', '1', '2', '5', '12', 'NaN', '1e999', '{0/0}', '5%'];
+/**
+ * In waveform arguments while budgets are pending: no amplitude below a
+ * bridge's two diode drops either (a sine-fed stage at 1 mV or -1 V takes
+ * about 10 s to report not-settled; pending.ts).
+ */
+const WAVE_SAFE = ['0', '5', '12', '-12', '24', 'NaN', '1e999', '{0/0}', '5%'];
 const NUM_SAFE = fc.oneof(fc.constantFrom(...SAFE_TIMES), fc.integer({ min: 1, max: 1e4 }).map((n) => `${n}u`));
 const KEYS = ['freq', 'amp', 'depth', 'dur', 'edge', 'fall', 'method', 'step', 'from', 'to', 'at', 'ripple', 'iload', 'points'];
 const FIGS = ['line', 'load', 'ripple', 'dropout', 'dissipation', 'sag', 'bogus'];
