@@ -4,8 +4,10 @@
  * bench, which way it is better, a title and a one-line definition; and
  * every `.figure` kind with its title and keys. The netlist reader, the
  * measuring code, the presenters and docs/figures.md (checked by a test)
- * all read this table. It imports nothing, so every layer of core may.
+ * all read this table. It imports only the shared argument checks, so every layer of core may.
  */
+
+import { argumentError, checkString } from './arguments.js';
 
 /** A `.figure` kind (figures.md). */
 export type FigureKind = 'line' | 'load' | 'dropout' | 'ripple' | 'dissipation' | 'sag';
@@ -233,16 +235,20 @@ const PATTERNS = FIGURES.filter((e) => e.pattern);
 
 /** The entry of a figure name (any case; `pd.Q1` finds `pd.<element>`), or undefined for a name no figure has. */
 export function figureEntry(name: string): FigureEntry | undefined {
+  checkString('figureEntry', 'name', name);
   const low = name.toLowerCase();
   return BY_NAME.get(low) ?? PATTERNS.find((e) => e.pattern!.test(low));
 }
 
 /** The `.figure` kind that produces a figure name (any case), or undefined for a name no figure has. */
 export function figureKindOf(name: string): FigureKind | undefined {
+  checkString('figureKindOf', 'name', name);
   return figureEntry(name)?.kind;
 }
 
 /** Unit of a figure value on a bench kind; undefined when no figure has that name or that bench kind does not produce it. */
 export function figureUnit(name: string, bench: BenchKind): FigureUnit | undefined {
+  checkString('figureUnit', 'name', name);
+  if (!BENCH_KINDS.includes(bench)) throw argumentError('figureUnit', 'bench', `one of ${BENCH_KINDS.join(', ')}`, bench);
   return figureEntry(name)?.units[bench];
 }

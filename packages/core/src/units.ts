@@ -1,35 +1,41 @@
 /**
  * Engineering notation for reports: a value with an SI prefix chosen so the
  * mantissa lies in [1, 1000), e.g. 0.0047 A → "4.7 mA" (SI Brochure, 9th
- * ed., BIPM 2019, §3: prefixes).
+ * ed., BIPM 2019, §3: prefixes). Only the prefixes from tera to femto are
+ * used, the range a supply stage's quantities lie in; a magnitude outside
+ * it is written in plain exponent notation ("1.5e+15 V"), never with a
+ * stretched prefix, and a value that is not a finite number is written as
+ * "not finite", never NaN or Infinity (docs/output.md, "Numbers").
  */
+import { argumentError } from './arguments.js';
 
-const PREFIXES: ReadonlyArray<readonly [number, string]> = [
-  [1e12, 'T'], [1e9, 'G'], [1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'µ'], [1e-9, 'n'], [1e-12, 'p'], [1e-15, 'f'],
-];
+const PREFIXES: Readonly<Record<number, string>> = { 12: 'T', 9: 'G', 6: 'M', 3: 'k', 0: '', [-3]: 'm', [-6]: 'µ', [-9]: 'n', [-12]: 'p', [-15]: 'f' };
+
+/** What formatSI prints for a value that is not a finite number. */
+export const NOT_FINITE_TEXT = 'not finite';
 
 /**
  * Formats `value` in `unit` with an SI prefix and `digits` significant
- * digits (default 4), trailing zeros dropped. Values below 1e-18 print as
- * 0; non-finite values print plainly.
+ * digits (an integer from 1 to 17, default 4), trailing zeros dropped.
+ * Values below 1e-18 in magnitude print as 0 (numerical dust: gmin
+ * currents, rounding); magnitudes from 1e-18 up to 1e-15 and from 1e15 up
+ * print in exponent notation with the bare unit; NaN and ±Infinity print
+ * as {@link NOT_FINITE_TEXT}. Throws RailcheckError (`bad-argument`) when
+ * `value` is not a number, `unit` not a string or `digits` out of range.
  */
 export function formatSI(value: number, unit: string, digits = 4): string {
+  if (typeof value !== 'number') throw argumentError('formatSI', 'value', 'a number', value);
+  if (typeof unit !== 'string') throw argumentError('formatSI', 'unit', 'a string', unit);
+  if (typeof digits !== 'number' || !Number.isInteger(digits) || digits < 1 || digits > 17) throw argumentError('formatSI', 'digits', 'an integer from 1 to 17', digits);
   const sep = unit ? ' ' : '';
-  // Below an atto-unit a value is numerical dust (gmin currents, rounding): show it as zero.
+  if (!Number.isFinite(value)) return NOT_FINITE_TEXT;
   if (value === 0 || Math.abs(value) < 1e-18) return `0${sep}${unit}`;
-  if (!Number.isFinite(value)) return `${value}${sep}${unit}`;
-  for (const [scale, prefix] of PREFIXES) {
-    const m = value / scale;
-    if (Math.abs(m) >= 1 || scale === 1e-15) {
-      let text = Number(m.toPrecision(digits)).toString();
-      // Rounding can carry a mantissa to 1000: step up one prefix.
-      if (Math.abs(Number(text)) >= 1000 && scale < 1e12) {
-        const up = PREFIXES[PREFIXES.findIndex(([s]) => s === scale) - 1]!;
-        return `${Number((value / up[0]).toPrecision(digits))}${unit || up[1] ? ' ' : ''}${up[1]}${unit}`;
-      }
-      if (text.includes('e')) text = m.toPrecision(digits);
-      return `${text}${prefix || unit ? ' ' : ''}${prefix}${unit}`;
-    }
-  }
-  return `${value}${sep}${unit}`;
+  // Round first, so that a mantissa carried to 1000 takes the next prefix.
+  const [mantissa, exponent] = value.toExponential(digits - 1).split('e') as [string, string];
+  const power = Number(exponent);
+  const engineering = 3 * Math.floor(power / 3);
+  const prefix = PREFIXES[engineering];
+  if (prefix === undefined) return `${Number(mantissa)}e${power >= 0 ? '+' : ''}${power}${sep}${unit}`;
+  const m = Number(`${mantissa}e${power - engineering}`);
+  return `${m}${prefix || unit ? ' ' : ''}${prefix}${unit}`;
 }

@@ -8,6 +8,7 @@ import type { CompiledCircuit } from '../engine/compile.js';
 import { linearise, solveAt } from '../engine/ac.js';
 import { solveOperatingPoint } from '../engine/dcop.js';
 import { opFailure } from './dc.js';
+import { checkFinite } from '../arguments.js';
 
 /** A small-signal sweep at one temperature. */
 export interface AcResult {
@@ -20,11 +21,15 @@ export interface AcResult {
 
 /** Magnitude in dB of a phasor. */
 export function phasorDb(re: number, im: number): number {
+  checkFinite('phasorDb', 're', re);
+  checkFinite('phasorDb', 'im', im);
   return 20 * Math.log10(Math.hypot(re, im));
 }
 
 /** Phase in degrees of a phasor. */
 export function phasorDeg(re: number, im: number): number {
+  checkFinite('phasorDeg', 're', re);
+  checkFinite('phasorDeg', 'im', im);
   return (Math.atan2(im, re) * 180) / Math.PI;
 }
 

@@ -10,6 +10,8 @@ import type { CardOrigin } from '../netlist/ast.js';
 import type { CompiledCircuit } from '../engine/compile.js';
 import { describeTransientFailure, runTransient, transientFailureCode, type IntegrationMethod, type TransientBudgetExcess, type TransientStats, type TransientTrace } from '../engine/transient.js';
 import { formatSI } from '../units.js';
+import { COMPILED_CIRCUITS } from '../engine/compile.js';
+import { Brand, argumentError } from '../arguments.js';
 
 /** Waveforms of one transient run. */
 export interface TransientResult {
@@ -63,8 +65,23 @@ export function outputGrid(tstep: number, tstart: number, tstop: number): number
   return grid;
 }
 
-/** Samples every node and branch current of a trace on a grid. */
+/** Transient results transient made; acceptedTimes takes only those. */
+export const TRANSIENT_RESULTS: Brand<TransientResult> = new Brand<TransientResult>('a transient result as runNetlist reports it');
+
+/** The traces of those results. */
+const TRACES: Brand<TransientTrace> = new Brand<TransientTrace>("a transient result's trace");
+
+/** Checks sampleTrace's arguments: a compiled circuit, a trace of one of its transients (one value per unknown), finite times. */
+function checkTraceArguments(c: unknown, trace: unknown, grid: unknown): void {
+  COMPILED_CIRCUITS.check('sampleTrace', 'c', c);
+  TRACES.check('sampleTrace', 'trace', trace);
+  if (trace.size !== c.unknowns.length) throw argumentError('sampleTrace', 'trace', `a trace of this circuit (${c.unknowns.length} unknowns)`, trace);
+  if (!Array.isArray(grid) || !grid.every((t) => typeof t === 'number' && Number.isFinite(t))) throw argumentError('sampleTrace', 'grid', 'an array of finite times in s', grid);
+}
+
+/** Samples every node and branch current of a trace on a grid. Throws RailcheckError (`bad-argument`) for arguments railcheck did not make. */
 export function sampleTrace(c: CompiledCircuit, trace: TransientTrace, grid: readonly number[]): { nodes: Record<string, number[]>; branches: Record<string, number[]> } {
+  checkTraceArguments(c, trace, grid);
   const nodes: Record<string, number[]> = {};
   for (const node of c.flat.nodes) nodes[node.name] = sample(trace, c.nodeIndex.get(node.key)!, grid);
   const branches: Record<string, number[]> = {};
@@ -76,6 +93,7 @@ export function sampleTrace(c: CompiledCircuit, trace: TransientTrace, grid: rea
 
 /** The accepted time points of a result from its output start (tstart) on, s. */
 export function acceptedTimes(r: TransientResult): number[] {
+  TRANSIENT_RESULTS.check('acceptedTimes', 'r', r);
   const start = r.times[0] ?? 0;
   return Array.from(r.trace.times.subarray(0, r.trace.count)).filter((t) => t >= start);
 }
@@ -119,6 +137,6 @@ export function transient(c: CompiledCircuit, temperature: number, req: Transien
     throw new RailcheckError([errorAt('transient-failed', `transient at ${temperature} °C failed ${where}${worst ? `. Least settled: ${worst}` : ''}`, origin?.pos, origin?.lineText, stepHint(outcome.stragglers.map((st) => st.name)))]);
   }
   const grid = outputGrid(req.tstep, req.tstart, req.tstop);
-  const { nodes, branches } = sampleTrace(c, outcome.trace, grid);
-  return { temperature, method: req.method, fromIc: req.fromIc, stats: outcome.stats, times: grid, nodes, branches, trace: outcome.trace };
+  const { nodes, branches } = sampleTrace(c, TRACES.mark(outcome.trace), grid);
+  return TRANSIENT_RESULTS.mark({ temperature, method: req.method, fromIc: req.fromIc, stats: outcome.stats, times: grid, nodes, branches, trace: outcome.trace });
 }

@@ -10,13 +10,15 @@ import { match, P } from 'ts-pattern';
 import { warningAt, type Diagnostic } from '../errors.js';
 import type { AnalysisCard, Card, DeviceCard, InstanceCard, SupplyCard } from '../netlist/ast.js';
 import type { FlatCircuit, FlatElement, FlatNode } from './flat.js';
-import { GROUND_KEY } from './flat.js';
+import { FLAT_CIRCUITS, GROUND_KEY } from './flat.js';
 import { createEvaluator, type Evaluator } from './evaluate.js';
 import { flattenElement } from './elements.js';
 import { lookupSubckt, resolveNode, topScope, type Scope } from './scope.js';
 import type { Netlist } from '../netlist/ast.js';
 import { resolveDirectives } from './directives.js';
 import { checkConnections } from './connections.js';
+import { argumentDiagnostic, foreignFailure } from '../arguments.js';
+import { NETLISTS, netlistShapeProblem } from '../netlist/index.js';
 
 /** Result of elaboration. */
 export type ElaborateResult =
@@ -212,9 +214,20 @@ function resolveReferences(w: Walk): FlatElement[] {
 
 /**
  * Flattens a parsed netlist. Every problem is returned as a diagnostic; a
- * netlist with errors yields `ok: false`.
+ * netlist with errors yields `ok: false`, and so does an argument that is
+ * not a netlist (`bad-argument`).
  */
 export function elaborate(netlist: Netlist): ElaborateResult {
+  const wrong = netlistShapeProblem(netlist);
+  if (wrong !== undefined) return { ok: false, errors: [argumentDiagnostic('elaborate', `netlist (${wrong})`, 'a netlist as parseNetlist returns it', netlist)], warnings: [] };
+  try {
+    return elaborateChecked(netlist);
+  } catch (e) {
+    return { ok: false, errors: foreignFailure('elaborate', e, NETLISTS.has(netlist), 'a netlist as parseNetlist returns it').diagnostics, warnings: [] };
+  }
+}
+
+function elaborateChecked(netlist: Netlist): ElaborateResult {
   const w: Walk = { ev: createEvaluator(), elements: [], nodes: new Map(), analyses: [], directives: [], names: new Map(), full: false, reported: new Set() };
   const top = topScope();
   walkLevel(w, top, netlist.cards);
@@ -234,5 +247,5 @@ export function elaborate(netlist: Netlist): ElaborateResult {
   const connections = checkConnections(circuit);
   for (const d of connections.warnings) warnings.push(d); // not push(...): a long list would overflow the call stack
   if (connections.errors.length > 0) return { ok: false, errors: connections.errors, warnings };
-  return { ok: true, circuit, warnings };
+  return { ok: true, circuit: FLAT_CIRCUITS.mark(circuit), warnings };
 }

@@ -5,6 +5,7 @@
  */
 import type { DeviceKind, DeviceSpecs } from '@railcheck/devices';
 import type { CardOrigin, FigureKind, LimitOp } from '../netlist/ast.js';
+import { Brand } from '../arguments.js';
 
 /** Key of the ground node. */
 export const GROUND_KEY = '0';
@@ -102,4 +103,16 @@ export interface FlatCircuit {
   readonly figures: readonly FlatFigure[];
   readonly limits: readonly FlatLimit[];
   readonly spreads: readonly FlatSpread[];
+}
+
+/** Flat circuits elaborate made: compileCircuit tells a failure on one of them (a bug) from one on a circuit edited by hand. */
+export const FLAT_CIRCUITS: Brand<FlatCircuit> = new Brand<FlatCircuit>('a flat circuit as elaborate returns it');
+
+/** What is wrong with `v` as a FlatCircuit at first sight (its strings and lists), or undefined. */
+export function flatShapeProblem(v: unknown): string | undefined {
+  if (typeof v !== 'object' || v === null || Array.isArray(v)) return 'not an object';
+  const c = v as Record<string, unknown>;
+  for (const name of ['title', 'file'] as const) if (typeof c[name] !== 'string') return `its ${name} is not a string`;
+  for (const name of ['nodes', 'elements', 'analyses', 'temperatures', 'figures', 'limits', 'spreads'] as const) if (!Array.isArray(c[name])) return `its ${name} are not an array`;
+  return undefined;
 }

@@ -12,7 +12,8 @@ import {
 import { errorAt, type Diagnostic } from '../errors.js';
 import { MAX_UNKNOWNS } from '../budgets.js';
 import type { FlatCircuit, FlatElement, FlatElementOf } from '../elaborate/flat.js';
-import { GROUND_KEY } from '../elaborate/flat.js';
+import { FLAT_CIRCUITS, GROUND_KEY, flatShapeProblem } from '../elaborate/flat.js';
+import { Brand, argumentDiagnostic, foreignFailure } from '../arguments.js';
 import { createWorkspace, type Workspace } from './workspace.js';
 import { checkTopology } from './topology.js';
 import type { UnknownInfo } from './unknowns.js';
@@ -63,8 +64,27 @@ function overUnknowns(flat: FlatCircuit, count: string): CompileResult {
   return { ok: false, errors: [errorAt('budget-unknowns', `the circuit has ${count}, over the budget MAX_UNKNOWNS = ${MAX_UNKNOWNS} of the dense solver`, last?.pos, last?.lineText, 'a smaller circuit')] };
 }
 
-/** Compiles a flat circuit: numbers unknowns, binds stamps, checks topology. */
+/** Compiled circuits compileCircuit made; the only ones the functions that take one accept. */
+export const COMPILED_CIRCUITS: Brand<CompiledCircuit> = new Brand<CompiledCircuit>('a compiled circuit as compileCircuit returns it');
+
+/**
+ * Compiles a flat circuit: numbers unknowns, binds stamps, checks
+ * topology. An argument that is not a flat circuit is an `ok: false`
+ * result (`bad-argument`).
+ */
 export function compileCircuit(flat: FlatCircuit): CompileResult {
+  const wrong = flatShapeProblem(flat);
+  if (wrong !== undefined) return { ok: false, errors: [argumentDiagnostic('compileCircuit', `flat (${wrong})`, 'a flat circuit as elaborate returns it', flat)] };
+  try {
+    const r = compileChecked(flat);
+    if (r.ok) COMPILED_CIRCUITS.mark(r.circuit);
+    return r;
+  } catch (e) {
+    return { ok: false, errors: foreignFailure('compileCircuit', e, FLAT_CIRCUITS.has(flat), 'a flat circuit as elaborate returns it').diagnostics };
+  }
+}
+
+function compileChecked(flat: FlatCircuit): CompileResult {
   // The nodes alone are a lower bound on the unknowns: refuse before any device is made.
   if (flat.nodes.length > MAX_UNKNOWNS) return overUnknowns(flat, `at least ${flat.nodes.length} unknowns (its nodes alone)`);
   const unknowns: UnknownInfo[] = [{ kind: 'node', name: '0' }];

@@ -16,6 +16,7 @@
  */
 import type { BenchKind } from '../figure-registry.js';
 import type { SharedStepBudget } from '../engine/transient.js';
+import { Brand } from '../arguments.js';
 import type { SteadyInfo } from './periodic.js';
 import type { Stage } from './stage.js';
 
@@ -189,6 +190,9 @@ export interface SineFedBench extends BenchCommon {
 
 /** A bench: a DC or a sine-fed one. */
 export type Bench = DcBench | SineFedBench;
+
+/** Benches createBench made; the only ones the figure functions accept. */
+export const BENCHES: Brand<Bench> = new Brand<Bench>('a bench as createBench returns it');
 
 /** The corner times of a dip starting at `t0` (s), with edges of `edge` s and `dur` s at the bottom. */
 export function dipCorners(t0: number, edge: number, dur: number): number[] {

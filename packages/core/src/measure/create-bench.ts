@@ -7,10 +7,12 @@
 import { errorAt, RailcheckError } from '../errors.js';
 import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
-import type { Bench } from './bench.js';
+import { BENCHES, type Bench } from './bench.js';
 import { createDcBench } from './dc-bench.js';
 import { createSineFedBench } from './sine-fed-bench.js';
 import { makeStage } from './stage.js';
+import { COMPILED_CIRCUITS } from '../engine/compile.js';
+import { checkOptions } from '../arguments.js';
 
 /** Options of {@link createBench}. */
 export interface BenchOptions {
@@ -21,9 +23,12 @@ export interface BenchOptions {
 /**
  * Builds the bench for the stage named by the circuit's `.supply` line and
  * solves its nominal point. The caller's compiled circuit is only read: the
- * bench compiles its own from `compiled.flat`. Throws RailcheckError.
+ * bench compiles its own from `compiled.flat`. Throws RailcheckError
+ * (`bad-argument` for a `compiled` that compileCircuit did not return).
  */
 export function createBench(compiled: CompiledCircuit, options: BenchOptions = {}): Bench {
+  COMPILED_CIRCUITS.check('createBench', 'compiled', compiled);
+  checkOptions('createBench', options, { celsius: 'finite' });
   const flat = compiled.flat;
   const supply = flat.supply;
   if (!supply) throw new RailcheckError([errorAt('no-supply', 'figures need a .supply line naming the stage')]);
@@ -31,5 +36,5 @@ export function createBench(compiled: CompiledCircuit, options: BenchOptions = {
   if (!own.ok) throw new RailcheckError(own.errors);
   setCircuitTemperature(own.circuit, options.celsius ?? flat.temperatures[0] ?? 27);
   const stage = makeStage(own.circuit, supply);
-  return stage.inputWaveform?.kind === 'sin' ? createSineFedBench(stage) : createDcBench(stage);
+  return BENCHES.mark(stage.inputWaveform?.kind === 'sin' ? createSineFedBench(stage) : createDcBench(stage));
 }

@@ -11,6 +11,8 @@ import type { FlatElement } from '../elaborate/flat.js';
 import type { CardOrigin } from '../netlist/ast.js';
 import { formatSI } from '../units.js';
 import type { Bench, StageSetting } from './bench.js';
+import { BENCHES } from './bench.js';
+import { argumentError, checkOptions } from '../arguments.js';
 
 /** Options: the ranges over which corners are taken. */
 export interface DissipationOptions {
@@ -41,8 +43,23 @@ export function dissipates(el: FlatElement): boolean {
   return el.kind === 'resistor' || el.kind === 'diode' || el.kind === 'bjt';
 }
 
-/** Measures dissipation. Throws RailcheckError when a corner cannot be solved. */
+/** Checks the types of {@link DissipationOptions} at the boundary. */
+function checkDissipationOptions(opts: unknown): void {
+  checkOptions('dissipation', opts, { highLevel: 'finite' });
+  const range = (opts as DissipationOptions | undefined)?.loadRange;
+  if (range !== undefined && !(Array.isArray(range) && range.length === 2 && range.every((x) => typeof x === 'number' && Number.isFinite(x)))) {
+    throw argumentError('dissipation', 'options.loadRange', 'two finite numbers [low, high] in A', range);
+  }
+  const origin = (opts as DissipationOptions | undefined)?.origin;
+  if (origin !== undefined && !(typeof origin === 'object' && origin !== null && typeof origin.lineText === 'string' && typeof origin.pos === 'object')) {
+    throw argumentError('dissipation', 'options.origin', 'a card origin (pos and lineText)', origin);
+  }
+}
+
+/** Measures dissipation. Throws RailcheckError when a corner cannot be solved, or for an argument of the wrong type. */
 export function dissipation(bench: Bench, opts: DissipationOptions = {}): Dissipation {
+  BENCHES.check('dissipation', 'bench', bench);
+  checkDissipationOptions(opts);
   const { stage } = bench;
   const elements = stage.compiled.elements;
   const nominalLevel = bench.input.nominal;

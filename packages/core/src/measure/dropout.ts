@@ -16,6 +16,8 @@ import type { FlatFigure } from '../elaborate/flat.js';
 import { formatSI } from '../units.js';
 import type { Bench, DropoutRule } from './bench.js';
 import { illinois } from './search.js';
+import { BENCHES } from './bench.js';
+import { checkFinite } from '../arguments.js';
 
 /** The dropout figures. */
 export interface Dropout {
@@ -90,6 +92,8 @@ function lowestHolding(bench: Bench, rule: Extract<DropoutRule, { kind: 'holding
 
 /** Finds dropout with an output fall of `fall` V (default 100 mV). Throws RailcheckError when a DC stage's output never falls that far. */
 export function dropout(bench: Bench, fall = DEFAULT_DROPOUT_FALL): Dropout {
+  BENCHES.check('dropout', 'bench', bench);
+  checkFinite('dropout', 'fall', fall);
   const rule = bench.dropoutRule(fall);
   const { level, output } = match(rule)
     .returnType<{ level: number; output: number | undefined }>()

@@ -16,6 +16,7 @@ import type { Bench, CycleOperatingPoint } from './bench.js';
 import { createBench } from './create-bench.js';
 import { dropout, type Dropout } from './dropout.js';
 import { measureFigure, type FigureValues } from './figure-values.js';
+import { COMPILED_CIRCUITS } from '../engine/compile.js';
 
 export type { FigureValues };
 
@@ -266,6 +267,7 @@ export function isSineFed(c: CompiledCircuit): boolean {
  * no figure produces (a netlist error).
  */
 export function measureFigures(c: CompiledCircuit): FigureReport {
+  COMPILED_CIRCUITS.check('measureFigures', 'c', c);
   const flat = c.flat;
   const warnings: Diagnostic[] = [];
   let bench: Bench | undefined;

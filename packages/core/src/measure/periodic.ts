@@ -12,6 +12,7 @@ import type { CardOrigin } from '../netlist/ast.js';
 import type { CompiledCircuit } from '../engine/compile.js';
 import { findPeriodicSteadyState, type SteadyStateMethod } from '../analysis/steady-state.js';
 import { formatSI } from '../units.js';
+import { argumentError, isRecord } from '../arguments.js';
 
 /** Statistics of one signal over one cycle (trapezoidal mean over accepted points). */
 export interface CycleStats {
@@ -93,8 +94,19 @@ class CycleAccumulator {
   }
 }
 
+/** Checks a SteadyInfo's members at the boundary. */
+function checkSteadyInfo(s: unknown): void {
+  if (!isRecord(s)) throw argumentError('describeSteady', 's', 'a steady-state description (method, iterations, periods, residual)', s);
+  if (s['method'] !== 'shooting' && s['method'] !== 'cycles') throw argumentError('describeSteady', 's.method', "'shooting' or 'cycles'", s['method']);
+  for (const name of ['iterations', 'periods', 'residual'] as const) {
+    const v = s[name];
+    if (typeof v !== 'number' || !Number.isFinite(v)) throw argumentError('describeSteady', `s.${name}`, 'a finite number', v);
+  }
+}
+
 /** How a steady state was found, in words ("shooting, 3 iterations, 41 periods, residual 0.02"). */
 export function describeSteady(s: SteadyInfo): string {
+  checkSteadyInfo(s);
   const how = s.method === 'shooting' ? `shooting, ${s.iterations} iteration${s.iterations === 1 ? '' : 's'}` : 'whole cycles';
   return `${how}, ${s.periods} periods simulated, residual ${Number(s.residual.toPrecision(2))} of tolerance`;
 }

@@ -11,6 +11,8 @@
 import { match } from 'ts-pattern';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { Bench } from './bench.js';
+import { BENCHES } from './bench.js';
+import { checkOptions } from '../arguments.js';
 
 /** Line regulation: output change between two input levels at nominal load (magnitudes on a negative rail). */
 export interface LineRegulation {
@@ -38,6 +40,8 @@ export interface LineOptions {
 
 /** Measures line regulation (figures.md, "line"). Throws RailcheckError when a point cannot be solved. */
 export function lineRegulation(bench: Bench, opts: LineOptions = {}): LineRegulation {
+  BENCHES.check('lineRegulation', 'bench', bench);
+  checkOptions('lineRegulation', opts, { from: 'finite', to: 'finite' });
   const nominal = bench.input.nominal;
   const from = opts.from ?? 0.9 * nominal;
   const to = opts.to ?? 1.1 * nominal;
@@ -86,6 +90,8 @@ export interface LoadOptions {
  * RailcheckError without a load element or when a point cannot be solved.
  */
 export function loadRegulation(bench: Bench, opts: LoadOptions = {}): LoadRegulation {
+  BENCHES.check('loadRegulation', 'bench', bench);
+  checkOptions('loadRegulation', opts, { from: 'finite', to: 'finite' });
   const origin = bench.stage.supply.origin;
   if (bench.loadNominal === undefined) {
     throw new RailcheckError([errorAt('no-load', 'the load figure needs the load element named on the .supply line', origin.pos, origin.lineText, '.supply ... load=<I or R element>')]);

@@ -15,6 +15,8 @@ import { formatSI } from '../units.js';
 import type { SteadyInfo } from './periodic.js';
 import type { Bench } from './bench.js';
 import { positive, requireKey } from './keys.js';
+import { BENCHES } from './bench.js';
+import { checkOptions } from '../arguments.js';
 
 /** Options of {@link rippleRejection}. A sine-fed stage's ripple is its own: `freq` and `amp` are not used there, and `method=ac` measures nothing (it has no small-signal method). */
 export interface RippleOptions {
@@ -48,8 +50,15 @@ export interface RippleRejection {
 /** Largest disagreement between the methods before a warning, dB (figures.md). */
 export const RIPPLE_AGREEMENT_DB = 0.5;
 
+/** A rejection in words for a message: "41.20 dB", or, when no ripple reaches the output (an unbounded rejection), that; never "Infinity dB". */
+function dbText(db: number): string {
+  return Number.isFinite(db) ? `${db.toFixed(2)} dB` : db > 0 ? 'no ripple reaches the output' : 'not finite';
+}
+
 /** Measures ripple rejection by the methods asked for. Throws RailcheckError. */
 export function rippleRejection(bench: Bench, opts: RippleOptions = {}): RippleRejection {
+  BENCHES.check('rippleRejection', 'bench', bench);
+  checkOptions('rippleRejection', opts, { freq: 'finite', amp: 'finite', method: ['ac', 'tran', 'both'] });
   const freq = opts.freq ?? 100;
   const amp = opts.amp ?? 0.01 * Math.abs(bench.input.nominal);
   const method = opts.method ?? 'both';
@@ -61,7 +70,7 @@ export function rippleRejection(bench: Bench, opts: RippleOptions = {}): RippleR
   const warnings: Diagnostic[] = [];
   if (smallSignal !== undefined && steady !== undefined && Math.abs(smallSignal - steady) > RIPPLE_AGREEMENT_DB) {
     const o = bench.stage.supply.origin;
-    warnings.push(warningAt('ripple-disagree', `ripple rejection at ${formatSI(freq, 'Hz')}: the small-signal (${smallSignal.toFixed(2)} dB) and transient (${steady.toFixed(2)} dB) methods differ by more than ${RIPPLE_AGREEMENT_DB} dB; the ripple amplitude ${formatSI(amp, 'V')} may be large enough to drive the stage out of its linear range`, o.pos, o.lineText));
+    warnings.push(warningAt('ripple-disagree', `ripple rejection at ${formatSI(freq, 'Hz')}: the small-signal (${dbText(smallSignal)}) and transient (${dbText(steady)}) methods differ by more than ${RIPPLE_AGREEMENT_DB} dB; the ripple amplitude ${formatSI(amp, 'V')} may be large enough to drive the stage out of its linear range`, o.pos, o.lineText));
   }
   return { freq, amp, smallSignal, steady, inputPp: r?.inputPp, outPp: r?.outputPp, steadyState: r?.steady, warnings };
 }

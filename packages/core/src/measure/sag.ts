@@ -19,6 +19,8 @@ import { DEFAULT_DROPOUT_FALL } from './dropout.js';
 import { MinMaxWindow } from './periodic.js';
 import { bisectBoundary } from './search.js';
 import { MAX_SAG_DURATION, positive, requireKey } from './keys.js';
+import { BENCHES } from './bench.js';
+import { checkOptions } from '../arguments.js';
 
 /** Options of {@link sagRideThrough} (figures.md defaults). */
 export interface SagOptions {
@@ -136,6 +138,8 @@ export interface SagTrialFailure {
 
 /** Measures ride-through of an input dip. Throws RailcheckError when the dip asked for cannot be simulated. */
 export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThrough {
+  BENCHES.check('sagRideThrough', 'bench', bench);
+  checkOptions('sagRideThrough', opts, { depth: 'finite', dur: 'finite', edge: 'finite', fall: 'finite', ripple: 'finite', freq: 'finite' });
   const depth = opts.depth ?? 0.2;
   const edge = opts.edge ?? 1e-3;
   const criterion = opts.fall ?? DEFAULT_DROPOUT_FALL;

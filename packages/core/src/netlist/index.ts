@@ -9,6 +9,8 @@
  */
 import type { Diagnostic } from '../errors.js';
 import { RailcheckError, errorAt, warningAt } from '../errors.js';
+import { argumentDiagnostic, optionsProblem } from '../arguments.js';
+import { NETLISTS } from './brand.js';
 import type { Netlist } from './ast.js';
 import { checkNetlist } from './checks.js';
 import { Cursor } from './cursor.js';
@@ -22,6 +24,7 @@ export type * from './ast.js';
 export { evaluateExpr, printExpr, parseExpr, EXPR_FUNCTIONS, MAX_EXPR_NESTING, MAX_EXPR_HEIGHT } from './expr.js';
 export { parseScaledNumber } from './numbers.js';
 export { printNetlist, printValue } from './print.js';
+export { NETLISTS, netlistShapeProblem } from './brand.js';
 export { figureKindOf, FIGURE_KINDS } from './parse-supply.js';
 export { TRAN_FLAGS } from './parse-directives.js';
 export { MAX_ERRORS, MAX_INPUT_LENGTH, MAX_SUBCKT_NESTING } from './reader.js';
@@ -90,14 +93,19 @@ function parseInner(text: string, options: ParseOptions): ParseResult {
   }
   if (!ctx.stopped) for (const d of checkNetlist(cards)) addError(ctx, d);
   if (ctx.errors.length > 0) return { ok: false, errors: ctx.errors, warnings: ctx.warnings };
-  return { ok: true, netlist: { title: title ?? '', file, cards }, warnings: ctx.warnings };
+  return { ok: true, netlist: NETLISTS.mark({ title: title ?? '', file, cards }), warnings: ctx.warnings };
 }
+
+/** The members of ParseOptions and their types, checked at the boundary. */
+const PARSE_OPTIONS = { file: 'string', readFile: 'function', allowOutsideIncludes: 'boolean' } as const;
 
 /**
  * Reads a netlist from text. Never throws: every problem, even an internal
  * failure, comes back as a diagnostic.
  */
 export function parseNetlist(text: string, options: ParseOptions = {}): ParseResult {
+  const wrong = typeof text !== 'string' ? argumentDiagnostic('parseNetlist', 'text', 'a string', text) : optionsProblem('parseNetlist', options, PARSE_OPTIONS);
+  if (wrong) return { ok: false, errors: [wrong], warnings: [] };
   try {
     return parseInner(text, options);
   } catch (e) {
@@ -122,6 +130,8 @@ export function parseNetlistOrThrow(text: string, options: ParseOptions = {}): {
  * file is an ok:false result, not an exception.
  */
 export function readNetlistFile(path: string, options: Omit<ParseOptions, 'file'> = {}): ParseResult {
+  const wrong = typeof path !== 'string' ? argumentDiagnostic('readNetlistFile', 'path', 'a string', path) : optionsProblem('readNetlistFile', options, PARSE_OPTIONS);
+  if (wrong) return { ok: false, errors: [wrong], warnings: [] };
   const top = readTopFile(path, options.readFile ? callerSource(options.readFile) : DISK);
   if (!top.ok) return { ok: false, errors: [errorAt(top.code, top.message, undefined, undefined, top.expected)], warnings: [] };
   return parseNetlist(top.text, { ...options, file: path });

@@ -7,6 +7,8 @@ import { DEVICES, kindOfLetter, type CardFamily, type DeviceKind } from '@railch
 import type { Assignments, Card, CardOfFamily, DeviceCard, ElementCard, Netlist, SupplyCard, AnalysisCard, Value, Waveform } from './ast.js';
 import { printExpr } from './expr.js';
 import { formatNumber, formatPercent, readNumberWord } from './numbers.js';
+import { argumentError, shielded } from '../arguments.js';
+import { NETLISTS, netlistShapeProblem } from './brand.js';
 
 /** A value as text: its own spelling when that still reads as its value, else a canonical form. */
 export function printValue(v: Value): string {
@@ -120,9 +122,16 @@ function card(c: Card, out: string[], indent: string): void {
 /**
  * Renders a netlist as text: the title on line 1, one card per line
  * (subcircuit bodies indented), `.end` last. Reading the text back gives
- * the same cards and values.
+ * the same cards and values. Throws RailcheckError (`bad-argument`) when
+ * `netlist` is not a netlist.
  */
 export function printNetlist(netlist: Netlist): string {
+  const wrong = netlistShapeProblem(netlist);
+  if (wrong !== undefined) throw argumentError('printNetlist', 'netlist', 'a netlist as parseNetlist returns it', netlist);
+  return shielded('printNetlist', NETLISTS.has(netlist), 'a netlist as parseNetlist returns it', () => printChecked(netlist));
+}
+
+function printChecked(netlist: Netlist): string {
   const out: string[] = [netlist.title.replace(/[\r\n]+/g, ' ')];
   for (const c of netlist.cards) card(c, out, '');
   out.push('.end', '');

@@ -10,6 +10,7 @@
 import { match } from 'ts-pattern';
 import { warningAt, RailcheckError, type Diagnostic, errorAt } from '../errors.js';
 import { MAX_OUTPUT_VALUES } from '../budgets.js';
+import { argumentDiagnostic, isRecord } from '../arguments.js';
 import { parseNetlist, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
 import { elaborate } from '../elaborate/elaborate.js';
 import type { FlatAnalysis, FlatCircuit } from '../elaborate/flat.js';
@@ -77,8 +78,11 @@ export type RunResult =
   | { readonly ok: true; readonly report: RunReport }
   | { readonly ok: false; readonly errors: readonly Diagnostic[]; readonly warnings: readonly Diagnostic[] };
 
-/** Elaborates and compiles a parsed netlist. */
+/** Elaborates and compiles a parsed netlist; an argument that is not a parse result is an `ok: false` result (`bad-argument`). */
 export function prepare(parsed: ParseResult): { ok: true; compiled: CompiledCircuit; warnings: Diagnostic[] } | { ok: false; errors: readonly Diagnostic[]; warnings: Diagnostic[] } {
+  if (!isRecord(parsed) || typeof parsed['ok'] !== 'boolean' || !Array.isArray(parsed['warnings']) || (parsed['ok'] === false && !Array.isArray(parsed['errors']))) {
+    return { ok: false, errors: [argumentDiagnostic('prepare', 'parsed', 'a result of parseNetlist or readNetlistFile', parsed)], warnings: [] };
+  }
   const warnings = [...parsed.warnings];
   if (!parsed.ok) return { ok: false, errors: parsed.errors, warnings };
   const flat = elaborate(parsed.netlist);
