@@ -28,7 +28,7 @@ export {
   buildModel, dissipates, kindOfLetter, knownParams, modelKindOf, paramTable,
 } from './registry.js';
 export type { CardFamily, DeviceByKind, DeviceEntry, DeviceLetter, DeviceSpecs, ModelKind, ModelType, ValueField } from './registry.js';
-export { ANY, COUPLING, GRADING, NON_NEGATIVE, NON_ZERO, POSITIVE, describeRange, inRange } from './ranges.js';
+export { ANY, CAPACITANCE, COUPLING, GAIN, GRADING, INDUCTANCE, LEVEL, NON_NEGATIVE, NON_ZERO, PLAUSIBLE, POSITIVE, RESISTANCE, describeRange, inRange } from './ranges.js';
 export type { ValueRange } from './ranges.js';
 export { createCoupling } from './coupling.js';
 export type { Coupling } from './coupling.js';

@@ -16,7 +16,7 @@ import { createDiode } from './diode.js';
 import { createCurrentSource, createVoltageSource } from './independent.js';
 import { BJT_PARAMS, DIODE_PARAMS, bjtModel, diodeModel, type BjtModel, type DiodeModel, type ParamSpec } from './models.js';
 import { createCapacitor, createInductor, createResistor } from './passive.js';
-import { ANY, COUPLING, NON_NEGATIVE, POSITIVE, type ValueRange } from './ranges.js';
+import { CAPACITANCE, COUPLING, GAIN, INDUCTANCE, LEVEL, NON_NEGATIVE, PLAUSIBLE, RESISTANCE, type ValueRange } from './ranges.js';
 import type { SourceSpec } from './sources.js';
 import type { Bjt, Capacitor, Ccvs, Cccs, CurrentSource, Diode, Inductor, Resistor, Vccs, Vcvs, VoltageSource } from './types.js';
 
@@ -154,19 +154,19 @@ const FOUR = ['n+', 'n-', 'nc+', 'nc-'] as const;
 export const DEVICES = {
   resistor: {
     letter: 'R', family: 'passive', title: 'resistor', form: 'Rname n+ n- value [pmax=W]', terminals: TWO,
-    value: { what: 'resistance', unit: 'Ω', range: POSITIVE, zero: { code: 'zero-resistance', hint: 'a resistance > 0 (use a V source of 0 V for a short)' } }, model: undefined, currents: [''], dissipates: true,
+    value: { what: 'resistance', unit: 'Ω', range: RESISTANCE, zero: { code: 'zero-resistance', hint: 'a resistance > 0 (use a V source of 0 V for a short)' } }, model: undefined, currents: [''], dissipates: true,
     allocationRank: 1,
     create: (name, s) => createResistor(name, s.nodes[0], s.nodes[1], s.ohms),
   },
   capacitor: {
     letter: 'C', family: 'passive', title: 'capacitor', form: 'Cname n+ n- value [ic=V] [pmax=W]', terminals: TWO,
-    value: { what: 'capacitance', unit: 'F', range: NON_NEGATIVE }, model: undefined, currents: [''], dissipates: false,
+    value: { what: 'capacitance', unit: 'F', range: CAPACITANCE }, model: undefined, currents: [''], dissipates: false,
     allocationRank: 1,
     create: (name, s) => createCapacitor(name, s.nodes[0], s.nodes[1], s.farads, s.ic),
   },
   inductor: {
     letter: 'L', family: 'passive', title: 'inductor', form: 'Lname n+ n- value [ic=A] [pmax=W]', terminals: TWO,
-    value: { what: 'inductance', unit: 'H', range: POSITIVE }, model: undefined, currents: [''], dissipates: false,
+    value: { what: 'inductance', unit: 'H', range: INDUCTANCE }, model: undefined, currents: [''], dissipates: false,
     allocationRank: 1,
     create: (name, s) => createInductor(name, s.nodes[0], s.nodes[1], s.henries, s.ic),
   },
@@ -202,25 +202,25 @@ export const DEVICES = {
   },
   vcvs: {
     letter: 'E', family: 'voltage-controlled', title: 'voltage-controlled voltage source', form: 'Ename n+ n- nc+ nc- gain [pmax=W]', terminals: FOUR,
-    value: { what: 'gain', unit: 'V/V', range: ANY }, model: undefined, currents: [''], dissipates: false,
+    value: { what: 'gain', unit: 'V/V', range: GAIN }, model: undefined, currents: [''], dissipates: false,
     allocationRank: 1,
     create: (name, s) => createVcvs(name, s.nodes[0], s.nodes[1], s.nodes[2], s.nodes[3], s.gain),
   },
   vccs: {
     letter: 'G', family: 'voltage-controlled', title: 'voltage-controlled current source', form: 'Gname n+ n- nc+ nc- transconductance [pmax=W]', terminals: FOUR,
-    value: { what: 'transconductance', unit: 'S', range: ANY }, model: undefined, currents: [''], dissipates: false,
+    value: { what: 'transconductance', unit: 'S', range: GAIN }, model: undefined, currents: [''], dissipates: false,
     allocationRank: 1,
     create: (name, s) => createVccs(name, s.nodes[0], s.nodes[1], s.nodes[2], s.nodes[3], s.gain),
   },
   cccs: {
     letter: 'F', family: 'current-controlled', title: 'current-controlled current source', form: 'Fname n+ n- vname gain [pmax=W]', terminals: TWO,
-    value: { what: 'gain', unit: 'A/A', range: ANY }, model: undefined, currents: [''], dissipates: false,
+    value: { what: 'gain', unit: 'A/A', range: GAIN }, model: undefined, currents: [''], dissipates: false,
     allocationRank: 1,
     create: (name, s) => createCccs(name, s.nodes[0], s.nodes[1], s.control, s.gain),
   },
   ccvs: {
     letter: 'H', family: 'current-controlled', title: 'current-controlled voltage source', form: 'Hname n+ n- vname transresistance [pmax=W]', terminals: TWO,
-    value: { what: 'transresistance', unit: 'Ω', range: ANY }, model: undefined, currents: [''], dissipates: false,
+    value: { what: 'transresistance', unit: 'Ω', range: GAIN }, model: undefined, currents: [''], dissipates: false,
     allocationRank: 1,
     create: (name, s) => createCcvs(name, s.nodes[0], s.nodes[1], s.control, s.gain),
   },
@@ -238,10 +238,10 @@ export function kindOfLetter(letter: string): DeviceKind | undefined {
 }
 
 /** The valid range of the area factor of a device that binds a model (dimensionless). */
-export const AREA_RANGE: ValueRange = POSITIVE;
+export const AREA_RANGE: ValueRange = { above: 0, atMost: PLAUSIBLE.scaleMax };
 
 /** The valid range of a `pmax=` rating, W. */
-export const RATING_RANGE: ValueRange = POSITIVE;
+export const RATING_RANGE: ValueRange = { above: 0, atMost: PLAUSIBLE.scaleMax };
 
 /**
  * Valid ranges of source waveform arguments and small-signal magnitudes
@@ -250,15 +250,17 @@ export const RATING_RANGE: ValueRange = POSITIVE;
  */
 export const WAVEFORM_RANGES = {
   /** sin frequency, Hz: a sine of 0 Hz is a DC value (write it as one), a negative one a phase flip. */
-  frequency: POSITIVE,
+  frequency: { above: 0, atMost: PLAUSIBLE.frequencyMax },
   /** Delays, rise and fall times, pulse widths, pwl times, s: time starts at 0 and runs forward. */
-  time: NON_NEGATIVE,
+  time: { atLeast: 0, atMost: PLAUSIBLE.timeMax },
   /** sin damping theta, 1/s: a negative one makes the sine grow without bound. */
   damping: NON_NEGATIVE,
   /** pulse period, s (and at least tr + pw + tf). */
-  period: POSITIVE,
+  period: { above: 0, atMost: PLAUSIBLE.timeMax },
   /** `ac` magnitude, V or A: a phase of 180° turns it round. */
-  acMagnitude: NON_NEGATIVE,
+  acMagnitude: { atLeast: 0, atMost: PLAUSIBLE.levelMax },
+  /** DC values, sine offsets and amplitudes, pulse and pwl levels, V or A. */
+  level: LEVEL,
 } as const satisfies Record<string, ValueRange>;
 
 /** True for the kinds whose power the dissipation figure reports (read by measure/). */

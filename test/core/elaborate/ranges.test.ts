@@ -69,15 +69,34 @@ describe('element values', () => {
   test('capacitance ≥ 0 and inductance > 0, checked on expressions at elaboration', () => {
     const c = elaborationErrors('C\n.param c0=-1u\nV1 a 0 1\nR1 a b 1k\nC1 b 0 {c0}\n');
     expect(c[0]).toMatchObject({ code: 'out-of-range', pos: { line: 5 } });
-    expect(c[0]!.expected).toBe('capacitance ≥ 0');
+    expect(c[0]!.expected).toBe('capacitance ≥ 0 and ≤ 1e4');
     const l = elaborationErrors('L\n.param l0=0\nV1 a 0 1\nR1 a b 1k\nL1 b 0 {l0}\n');
-    expect(l[0]!.expected).toBe('inductance > 0');
+    expect(l[0]!.expected).toBe('inductance > 0 and ≤ 1e4');
     expect(() => flatten('C0\nV1 a 0 1\nR1 a b 1k\nC1 b 0 0\n')).not.toThrow();
   });
 
+  // Plausibility bounds (docs/models.md, "Valid ranges"; common practice, no source): values whose
+  // products overflow doubles or swamp every other stamp, found by the fuzz suite (a 1e227 V source's
+  // power came out as -Infinity; a 5e292 Ω resistor left a sine-fed stage searching for minutes).
+  test.each([
+    ['R1 a 0 {5e292}', 'resistance'],
+    ['R1 a 0 {5e-72}', 'resistance'],
+    ['V1 a 0 1e227', 'dc value'],
+    ['V1 a 0 sin(0 1e7 50)', 'sin amplitude'],
+    ['V1 a 0 sin(0 1 2e9)', 'sin frequency'],
+    ['V1 a 0 pulse(0 -2e6 0 1u 1u 1u 10u)', 'pulse level v2'],
+    ['V1 a 0 pwl(0 0 1 1e300)', 'pwl level'],
+    ['E1 a 0 b 0 {1e13}', 'gain'],
+  ])('%s is refused (%s)', (line, what) => {
+    const errs = elaborationErrors(`Big\n${line.startsWith('V1') ? '' : 'V1 b 0 1\nR2 b 0 1k\n'}${line}\nR9 a 0 1k\n`);
+    expect(errs.length).toBeGreaterThan(0);
+    expect(errs[0]).toMatchObject({ code: 'out-of-range', pos: { line: line.startsWith('V1') ? 2 : 4 } });
+    expect(errs[0]!.message).toContain(what);
+  });
+
   test('area > 0 and pmax > 0', () => {
-    expect(elaborationErrors('Area\nV1 a 0 1\nR1 a b 1k\nD1 b 0 dm {-2}\n.model dm D\n')[0]!.expected).toBe('area > 0');
-    expect(elaborationErrors('Rating\nV1 a 0 1\nR1 a b 1k pmax={0}\n')[0]!.expected).toBe('power rating (pmax) > 0');
+    expect(elaborationErrors('Area\nV1 a 0 1\nR1 a b 1k\nD1 b 0 dm {-2}\n.model dm D\n')[0]!.expected).toBe('area > 0 and ≤ 1e6');
+    expect(elaborationErrors('Rating\nV1 a 0 1\nR1 a b 1k pmax={0}\n')[0]!.expected).toBe('power rating (pmax) > 0 and ≤ 1e6');
   });
 });
 
@@ -88,7 +107,7 @@ describe('resistance > 0', () => {
     if (!parsed.ok) expect(parsed.errors[0]).toMatchObject({ code: 'bad-value', pos: { line: 3, column: 8 } });
     const errs = elaborationErrors('R\n.param r0=-1k\nV1 a 0 1\nR1 a 0 {r0}\n');
     expect(errs[0]).toMatchObject({ code: 'out-of-range', pos: { line: 4 } });
-    expect(errs[0]!.expected).toBe('resistance > 0');
+    expect(errs[0]!.expected).toBe('resistance ≥ 1e-9 and ≤ 1e15');
     expect(elaborationErrors('R\n.param r0=0\nV1 a 0 1\nR1 a 0 {r0}\n')[0]!.code).toBe('zero-resistance');
     expect(() => flatten('R\nV1 a 0 1\nR1 a 0 1u\n')).not.toThrow();
   });

@@ -47,6 +47,10 @@ const exprValue = exprTree.map((expr): Value => ({ kind: 'expr', expr, pos: P, t
 export function value(min = -1e300): fc.Arbitrary<Value> {
   return fc.oneof(finite(min).map(plain), suffixed.filter((v) => v.kind === 'number' && v.value >= min), exprValue);
 }
+/** A value whose plain numbers lie in [lo, hi]: the reader refuses main element values outside their range (docs/models.md, "Valid ranges"). */
+function within(lo: number, hi: number): fc.Arbitrary<Value> {
+  return fc.oneof(fc.double({ min: lo, max: hi, noNaN: true }).map(plain), suffixed.filter((v) => v.kind === 'number' && v.value >= lo && v.value <= hi), exprValue);
+}
 const nonZero = fc.oneof(finite(-1e300).filter((v) => v !== 0).map(plain), suffixed, exprValue);
 const positive = fc.oneof(finite(Number.MIN_VALUE).map(plain), suffixed, exprValue);
 /** A tolerance ratio: the reader refuses plain numbers outside (0, 1) (docs/netlist.md, .spread). */
@@ -86,10 +90,10 @@ function element(name: string): fc.Arbitrary<Card> {
   const n2 = fc.tuple(node, node);
   const mk = (a: fc.Arbitrary<object>) => a.map((o) => clean({ ...origin, kind, name, ...o }) as unknown as Card);
   switch (kind) {
-    case 'R': return mk(fc.record({ nodes: n2, value: positive, pmax }));
+    case 'R': return mk(fc.record({ nodes: n2, value: within(1e-9, 1e15), pmax }));
     // Values within the ranges the reader checks on plain numbers (docs/models.md): C ≥ 0, L > 0, 0 < k ≤ 1.
-    case 'C': return mk(fc.record({ nodes: n2, value: value(0), ic: opt(value()), pmax }));
-    case 'L': return mk(fc.record({ nodes: n2, value: positive, ic: opt(value()), pmax }));
+    case 'C': return mk(fc.record({ nodes: n2, value: within(0, 1e4), ic: opt(value()), pmax }));
+    case 'L': return mk(fc.record({ nodes: n2, value: within(Number.MIN_VALUE, 1e4), ic: opt(value()), pmax }));
     case 'K':
       return mk(fc.record({
         inductors: fc.tuple(fc.integer({ min: 1, max: 9 }), fc.integer({ min: 1, max: 9 })).map(([a, b]) => [`L${a}`, `Lp${b}`]),
@@ -100,8 +104,8 @@ function element(name: string): fc.Arbitrary<Card> {
       return mk(fc.record({ nodes: n2, dc: opt(value()), ac: opt(fc.tuple(value(), opt(value())).map(([mag, phase]) => clean({ mag, phase }))), waveform: opt(waveform), pmax }));
     case 'D': return mk(fc.record({ nodes: n2, model: ident, area: opt(value()), pmax }));
     case 'Q': return mk(fc.record({ nodes: fc.tuple(node, node, node), model: ident, area: opt(value()), pmax }));
-    case 'E': case 'G': return mk(fc.record({ nodes: fc.tuple(node, node, node, node), gain: value(), pmax }));
-    case 'F': case 'H': return mk(fc.record({ nodes: n2, control: fc.integer({ min: 1, max: 9 }).map((k) => `V${k}`), gain: value(), pmax }));
+    case 'E': case 'G': return mk(fc.record({ nodes: fc.tuple(node, node, node, node), gain: within(-1e12, 1e12), pmax }));
+    case 'F': case 'H': return mk(fc.record({ nodes: n2, control: fc.integer({ min: 1, max: 9 }).map((k) => `V${k}`), gain: within(-1e12, 1e12), pmax }));
     default:
       return mk(fc.record({
         nodes: fc.array(node, { maxLength: 3 }),

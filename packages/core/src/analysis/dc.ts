@@ -50,11 +50,30 @@ export function opFailure(outcome: Extract<OpOutcome, { ok: false }>, what: stri
   return errorAt('no-convergence', `${what}: ${detail}${worst ? `. Least settled: ${worst}` : ''}`, origin?.pos, origin?.lineText, 'a circuit with a solution; check element values, source polarity and model parameters');
 }
 
+/**
+ * Refuses a solution with a voltage, current or power that is no finite
+ * number (a product of two huge values overflows even when Newton settled):
+ * such a solution is reported as the analysis failing, never as numbers.
+ */
+function requireFinite(v: SolutionValues, what: string, origin: CardOrigin | undefined): void {
+  const bad = (rec: Record<string, number>, unit: string): string | undefined => {
+    for (const [k, x] of Object.entries(rec)) if (!Number.isFinite(x)) return `${unit} of ${k}`;
+    return undefined;
+  };
+  const which = bad(v.nodes, 'the voltage') ?? bad(v.currents, 'the current') ?? bad(v.power, 'the power');
+  if (which !== undefined) {
+    throw new RailcheckError([errorAt('non-finite-solution', `${what}: ${which} is not a finite number (it overflows double precision)`, origin?.pos, origin?.lineText, 'element values and source levels of physical size')]);
+  }
+}
+
 /** Solves the operating point at the present temperature; throws RailcheckError on failure. */
 export function operatingPoint(c: CompiledCircuit, temperature: number, origin?: CardOrigin, neededBy?: string): OperatingPoint {
   const outcome = solveOperatingPoint(c);
-  if (!outcome.ok) throw new RailcheckError([opFailure(outcome, `operating point at ${temperature} °C${neededBy ? ` (${neededBy})` : ''}`, origin)]);
-  return { temperature, method: outcome.method, iterations: outcome.iterations, ...readSolution(c) };
+  const what = `operating point at ${temperature} °C${neededBy ? ` (${neededBy})` : ''}`;
+  if (!outcome.ok) throw new RailcheckError([opFailure(outcome, what, origin)]);
+  const values = readSolution(c);
+  requireFinite(values, what, origin);
+  return { temperature, method: outcome.method, iterations: outcome.iterations, ...values };
 }
 
 /** Deepest step halving between two sweep points before the full strategy is tried. */

@@ -114,7 +114,30 @@ export type SteadyStateOutcome =
       readonly residual: number;
       /** The element whose charge or flux was furthest from settling (e.g. a capacitor with no discharge path). */
       readonly slowest: string | undefined;
+      /**
+       * Why the whole-cycle fallback stopped: its cycle budget ran out, the
+       * change per cycle did not decay over {@link STALLED_WINDOWS} windows of
+       * {@link DECAY_WINDOW} cycles, or its decay projected settling far
+       * beyond the budget (`projected` periods in all).
+       */
+      readonly stop: { readonly kind: 'budget' } | { readonly kind: 'not-decaying' } | { readonly kind: 'too-slow'; readonly projected: number };
     };
+
+/**
+ * Cycles per window of the whole-cycle fallback's decay watch: every
+ * window, the worst change per cycle (against its tolerance) is compared
+ * with the one a window earlier. A change that has not fallen over three
+ * windows in a row is not settling (numerical noise or a state with no
+ * restoring path); a change falling by a factor ρ per cycle needs
+ * ln(ratio)/(−ln ρ) more cycles, and one that cannot reach the tolerance
+ * within ten times the budget is given up at once (geometric decay of a linear
+ * system's slowest mode; common practice, no source).
+ */
+export const DECAY_WINDOW = 25;
+/** Windows in a row without decay after which the fallback gives up. */
+export const STALLED_WINDOWS = 3;
+/** The fallback gives up as too slow when its projection exceeds the cycle budget by this factor. */
+const TOO_SLOW_MARGIN = 10;
 
 /** Offsets of every stored charge and flux in the state vector, and the name of the element each belongs to. */
 function chargeSlots(c: CompiledCircuit): { slots: Int32Array; owners: string[] } {
@@ -342,6 +365,9 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
     let previous: Float64Array | undefined;
     let residual = Infinity;
     let slowest: string | undefined;
+    let stop: { readonly kind: 'budget' } | { readonly kind: 'not-decaying' } | { readonly kind: 'too-slow'; readonly projected: number } = { kind: 'budget' };
+    const changeRatios: number[] = [];
+    let stalled = 0;
     for (let k = 0; k < budget; k++) {
       const r = runner.run(t0, { state, guess }, 1, false);
       if ('failedAt' in r) return { ok: false, reason: 'transient-failed', time: r.failedAt };
@@ -349,10 +375,12 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
       const tolDistance = runner.tolerances(r, DISTANCE_RELTOL);
       const f = runner.change(state, r);
       let worst = 0;
+      let worstChange = 0;
       for (let j = 0; j < m; j++) {
         const now = Math.abs(f[j]!);
         const rho = previous ? now / Math.max(Math.abs(previous[j]!), 1e-300) : 1;
         const toCome = now <= 1e-2 * tol[j]! ? 0 : rho < 1 ? (now * rho) / (1 - rho) : Infinity;
+        worstChange = Math.max(worstChange, now / tol[j]!);
         const ratio = Math.max(now / tol[j]!, toCome / tolDistance[j]!);
         if (ratio > worst) {
           worst = ratio;
@@ -367,8 +395,29 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
         settled = { state, guess };
         break;
       }
+      changeRatios.push(worstChange);
+      const n = changeRatios.length;
+      if (n > DECAY_WINDOW && n % DECAY_WINDOW === 0) {
+        const then = changeRatios[n - 1 - DECAY_WINDOW]!;
+        const nowRatio = changeRatios[n - 1]!;
+        if (!(nowRatio < then)) {
+          if (++stalled >= STALLED_WINDOWS) {
+            stop = { kind: 'not-decaying' };
+            break;
+          }
+        } else {
+          stalled = 0;
+          const rate = Math.pow(nowRatio / then, 1 / DECAY_WINDOW);
+          const needed = nowRatio > 1 ? Math.log(nowRatio) / -Math.log(rate) : 0;
+          // Early cycles charge nonlinearly (diodes at their current limit), so the projection is trusted only after a few windows and with a wide margin.
+          if (n >= 4 * DECAY_WINDOW && k + 1 + needed > TOO_SLOW_MARGIN * budget) {
+            stop = { kind: 'too-slow', projected: Math.ceil(runner.periods + needed) };
+            break;
+          }
+        }
+      }
     }
-    if (!settled) return { ok: false, reason: 'not-settled', periods: runner.periods, residual, slowest };
+    if (!settled) return { ok: false, reason: 'not-settled', periods: runner.periods, residual, slowest, stop };
   }
 
   // The settled cycle, started from the consistent solution at its start.

@@ -98,18 +98,22 @@ function placeOf(card: CardOrigin, v: Value): CardOrigin {
  * "Waveforms"; docs/models.md, "Valid ranges"), each error at the
  * argument's own column. NaN (already reported) passes.
  */
-function checkWaveform(env: ElementEnv, card: DeviceCard, w: Waveform, spec: WaveformSpec): void {
+function checkWaveform(env: ElementEnv, card: DeviceCard, w: Waveform, spec: WaveformSpec, unit: string): void {
   const check = (v: Value | undefined, x: number | undefined, what: string, unit: string, range: ValueRange): void => {
     if (v === undefined || x === undefined || Number.isNaN(x) || inRange(range, x)) return;
     rangeError(env, placeOf(card, v), `${card.name}: the ${what} ${x} ${unit} is out of range`, `${what} ${describeRange(range)} ${unit}`);
   };
   match([w, spec] as const)
     .with([{ kind: 'sin' }, { kind: 'sin' }], ([a, s]) => {
+      check(a.vo, s.vo, 'sin offset', unit, WAVEFORM_RANGES.level);
+      check(a.va, s.va, 'sin amplitude', unit, WAVEFORM_RANGES.level);
       check(a.freq, s.freq, 'sin frequency', 'Hz', WAVEFORM_RANGES.frequency);
       check(a.td, s.td, 'sin delay td', 's', WAVEFORM_RANGES.time);
       check(a.theta, s.theta, 'sin damping theta', '1/s', WAVEFORM_RANGES.damping);
     })
     .with([{ kind: 'pulse' }, { kind: 'pulse' }], ([a, p]) => {
+      check(a.v1, p.v1, 'pulse level v1', unit, WAVEFORM_RANGES.level);
+      check(a.v2, p.v2, 'pulse level v2', unit, WAVEFORM_RANGES.level);
       check(a.td, p.td, 'pulse delay td', 's', WAVEFORM_RANGES.time);
       check(a.tr, p.tr, 'pulse rise time tr', 's', WAVEFORM_RANGES.time);
       check(a.tf, p.tf, 'pulse fall time tf', 's', WAVEFORM_RANGES.time);
@@ -117,12 +121,15 @@ function checkWaveform(env: ElementEnv, card: DeviceCard, w: Waveform, spec: Wav
       check(a.per, p.per, 'pulse period per', 's', WAVEFORM_RANGES.period);
       // The period holds the whole pulse: rise, width and fall as written (an omitted edge counts as 0 here).
       const shape = (p.tr ?? 0) + (p.pw ?? 0) + (p.tf ?? 0);
-      if (a.per && p.per !== undefined && p.per > 0 && p.per < shape) {
+      // Relative slack of a few rounding errors: 1f + 1f + 1f is 3.0000000000000002e-15 in doubles.
+      if (a.per && p.per !== undefined && p.per > 0 && p.per < shape * (1 - 1e-12)) {
         rangeError(env, placeOf(card, a.per), `${card.name}: the pulse period ${p.per} s is shorter than its rise, width and fall (${shape} s)`, 'per ≥ tr + pw + tf');
       }
     })
     .with([{ kind: 'pwl' }, { kind: 'pwl' }], ([a, p]) => {
       check(a.points[0]?.t, p.times[0], 'first pwl time', 's', WAVEFORM_RANGES.time);
+      check(a.points[p.times.length - 1]?.t, p.times[p.times.length - 1], 'last pwl time', 's', WAVEFORM_RANGES.time);
+      for (let k = 0; k < p.values.length; k++) check(a.points[k]?.v, p.values[k], 'pwl level', unit, WAVEFORM_RANGES.level);
       for (let k = 1; k < p.times.length; k++) {
         const t = p.times[k]!;
         const before = p.times[k - 1]!;
@@ -137,8 +144,9 @@ function checkWaveform(env: ElementEnv, card: DeviceCard, w: Waveform, spec: Wav
 function sourceSpec(env: ElementEnv, card: Extract<ElementCard, { kind: 'V' | 'I' }>): SourceSpec {
   const { ev, scope } = env;
   const waveform = card.waveform ? waveformSpec(ev, scope, card.waveform) : undefined;
-  if (card.waveform && waveform) checkWaveform(env, card, card.waveform, waveform);
-  const dc = card.dc !== undefined ? ev.num(card.dc, scope) : waveform ? valueAtZero(waveform) : 0;
+  const unit = card.kind === 'V' ? 'V' : 'A';
+  if (card.waveform && waveform) checkWaveform(env, card, card.waveform, waveform, unit);
+  const dc = card.dc !== undefined ? ranged(env, card, card.dc, 'dc value', WAVEFORM_RANGES.level) : waveform ? valueAtZero(waveform) : 0;
   return {
     dc,
     acMag: card.ac ? ranged(env, card, card.ac.mag, 'ac magnitude', WAVEFORM_RANGES.acMagnitude) : 0,

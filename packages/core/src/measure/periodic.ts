@@ -10,7 +10,8 @@ import type { LoadContext } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CardOrigin } from '../netlist/ast.js';
 import type { CompiledCircuit } from '../engine/compile.js';
-import { findPeriodicSteadyState, type SteadyStateMethod } from '../analysis/steady-state.js';
+import { match } from 'ts-pattern';
+import { DECAY_WINDOW, STALLED_WINDOWS, findPeriodicSteadyState, type SteadyStateMethod } from '../analysis/steady-state.js';
 import { formatSI } from '../units.js';
 import { argumentError, isRecord } from '../arguments.js';
 
@@ -134,7 +135,13 @@ export function settleCycle(c: CompiledCircuit, opts: PeriodicOptions, what: str
       throw new RailcheckError([errorAt('transient-failed', `${what}: the transient failed at t = ${formatSI(r.time, 's')}`, origin?.pos, origin?.lineText)]);
     }
     const slowest = r.slowest ? `; slowest to settle: the charge of ${r.slowest}` : '';
-    throw new RailcheckError([errorAt('not-settled', `${what}: no periodic steady state after ${r.periods} periods (shooting did not converge, and whole cycles still changed by ${Number(r.residual.toPrecision(2))}× their tolerance${slowest})`, origin?.pos, origin?.lineText, 'a stage whose slowest time constant is at most a few thousand source periods (a reservoir with no load and no bleeder never settles: it creeps towards the peak)')]);
+    const formatCount = (n: number): string => (n < 1e6 ? String(n) : n.toExponential(1));
+    const why = match(r.stop)
+      .with({ kind: 'budget' }, () => Number.isFinite(r.residual) ? `whole cycles still changed by ${Number(r.residual.toPrecision(2))}× their tolerance` : 'the change from one whole cycle to the next was not decaying')
+      .with({ kind: 'not-decaying' }, () => `the change over a whole cycle did not decay over ${STALLED_WINDOWS * DECAY_WINDOW} cycles`)
+      .with({ kind: 'too-slow' }, (x) => `whole cycles were settling so slowly that they would need about ${formatCount(x.projected)} periods`)
+      .exhaustive();
+    throw new RailcheckError([errorAt('not-settled', `${what}: no periodic steady state after ${r.periods} periods (shooting did not converge, and ${why}${slowest})`, origin?.pos, origin?.lineText, 'a stage whose slowest time constant is at most a few thousand source periods (a reservoir with no load and no bleeder never settles: it creeps towards the peak)')]);
   }
   const s = r.steady;
   return {
