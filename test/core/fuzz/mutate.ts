@@ -6,8 +6,8 @@
  * replays a run case for case.
  *
  * Inputs that stress budgets of the waveform, transient and include code
- * (femtosecond edges and steps, which another line of work is bounding)
- * are produced only when `pending` is set (FUZZ_PENDING=1 in the test);
+ * (femtosecond edges and steps) are produced when `pending` is set (the
+ * default of the test; FUZZ_PENDING=0 clears it);
  * without it such values are replaced by safe ones in time-like positions
  * (waveforms, .tran, .figure keys), and element values stay within 1e12 in
  * magnitude (value ranges are being added by the same line of work).
@@ -54,7 +54,7 @@ const SAFE_TIMES = ['0', '-1', '1', '1u', '1m', '10m', '50', 'NaN', '1e999', '{0
 
 const LETTERS = 'RCLKVIDQEGFHXZ'.split('');
 const NODES = ['0', 'a', 'b', 'out', 'in', 'gnd', 'res', 'ref', 'nan', '0', 'x'];
-/** Magnitudes beyond 1e12 in element values wait for the value ranges being added (FUZZ_PENDING=1 lets them in). */
+/** Magnitudes beyond 1e12 in element values: in with `pending` (the default; FUZZ_PENDING=0 holds them back). */
 const HUGE = new Set(['1e300', '-1e300', '1e18', '{-1e300*1e300}']);
 const numbers = (pending: boolean): fc.Arbitrary<string> =>
   fc.oneof(

@@ -1,10 +1,9 @@
 /**
- * Netlists the fuzzer found that crash or run past the case budget, whose
- * fixes belong to budgets (breakpoints, steps, the periodic steady state)
- * or to value ranges (element values, figure keys) being added on other
- * branches. The netlist fuzz test runs them as fixed cases with
- * FUZZ_PENDING=1; once those fixes are in, pending inputs become the
- * default and these must end as clean results or clean errors.
+ * Netlists the fuzzer once found crashing or running past the case
+ * budget, fixed by budgets (breakpoints, steps, the periodic steady
+ * state's give-up rule) and value ranges (element values, figure keys).
+ * The netlist fuzz test runs them as fixed cases (unless FUZZ_PENDING=0):
+ * each must end as a clean result or a clean error.
  */
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';

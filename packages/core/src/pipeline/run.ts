@@ -19,6 +19,7 @@ import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
 import { dcSweep, operatingPoint, type DcSweep, type OperatingPoint } from '../analysis/dc.js';
 import { safetyWarnings } from '../analysis/safety.js';
+import { operatingPointsJudged, sanityWarnings } from '../analysis/sanity.js';
 import { isSineFed, measureFigures, type FigureReport } from '../measure/figures.js';
 import { transient, type TransientResult } from '../analysis/tran.js';
 import { acFrequencies, acSweep, type AcResult } from '../analysis/ac.js';
@@ -168,14 +169,25 @@ function runParsed(parsed: ParseResult): RunResult {
   const prepared = prepare(parsed);
   if (!prepared.ok) return prepared;
   const c = prepared.compiled;
-  const warnings = [...prepared.warnings, ...safetyWarnings(c.flat), ...acDriveWarnings(c.flat), ...spreadNote(c.flat)];
+  const warnings = [...prepared.warnings, ...acDriveWarnings(c.flat), ...spreadNote(c.flat)];
   try {
     const results = analyse(c);
     // Figures are measured on a bench of their own at the first .temp (measure/create-bench.ts).
     const figures = c.flat.figures.length > 0 || c.flat.limits.length > 0 || isSineFed(c) ? measureFigures(c) : undefined;
+    // The caution judges what the analyses reached, the sine-fed steady cycle among them (analysis/safety.ts).
+    const cycle = figures?.cycleOperatingPoint?.nodes;
+    warnings.unshift(...safetyWarnings(c.flat, { ...results, ...(cycle ? { cycle } : {}) }));
+    const cycleOp = figures?.cycleOperatingPoint;
+    const judged = [
+      ...operatingPointsJudged(results.operatingPoints),
+      ...(cycleOp ? [{ where: 'averaged over the steady cycle of the sine-fed stage', currents: cycleOp.currents, power: cycleOp.power }] : []),
+    ];
+    warnings.push(...sanityWarnings(c.flat, judged));
     if (figures) warnings.push(...figures.warnings);
     return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, compiled: c, ...results, figures, warnings } };
   } catch (e) {
+    // Without results, the sources as written still earn the caution.
+    warnings.unshift(...safetyWarnings(c.flat));
     if (e instanceof RailcheckError) return { ok: false, errors: e.diagnostics, warnings };
     return { ok: false, errors: [errorAt('internal', `internal error: ${e instanceof Error ? e.message : String(e)}`)], warnings };
   }
