@@ -19,16 +19,18 @@ export const MAX_TRAN_GRID_POINTS = 2_000_000;
 /**
  * Most time steps, accepted and rejected, one transient run may take:
  * checked before the run against its fewest possible steps (the run over
- * its largest step) and counted as it goes.
+ * its largest step) and counted as it goes. A rectifier run of 200 ms takes
+ * a few thousand; 10⁶ steps are about ten seconds of stepping on a small
+ * stage at the present speed (bench/), the longest a user waits for one run.
  */
-export const MAX_TRAN_STEPS = 5_000_000;
+export const MAX_TRAN_STEPS = 1_000_000;
 
 /**
  * Most source breakpoints (waveform corners) one transient run may land on,
  * all sources together: counted before any is generated (a pulse train:
  * periods × corners per period). Each corner costs at least one step.
  */
-export const MAX_BREAKPOINTS = 1_000_000;
+export const MAX_BREAKPOINTS = 250_000;
 
 /** Most values (accepted points × (unknowns + 1)) a transient run may store: 25·10⁶ doubles are 200 MB. */
 export const MAX_TRACE_VALUES = 25_000_000;
@@ -50,7 +52,7 @@ export const MAX_OUTPUT_VALUES = 20_000_000;
  * figure may take together (a sag figure's bracket and bisection run about
  * twenty dips): past it the figure is not measured, with the budget named.
  */
-export const MAX_FIGURE_STEPS = 10_000_000;
+export const MAX_FIGURE_STEPS = 2_000_000;
 
 /**
  * Most cards (logical lines that are elements or directives) one netlist may

@@ -17,6 +17,7 @@
 import { expect, it } from 'vitest';
 import { JUNCTION_CMIN } from '@railcheck/devices';
 import { runTransient } from '@railcheck/core/internal';
+import { runNetlist } from '@railcheck/core';
 import { compile } from './support.js';
 import { CAP, FREQ, RLOAD, VPEAK, VT, clip, compareWithOdex, vs } from './rectifier-model.js';
 
@@ -59,4 +60,16 @@ it('without the minimum capacitance the same bridge fails (guards the remedy)', 
   const r = runTransient(compile(NETLIST), { tstep: 1e-4, tstop: 40e-3, junctionCmin: 0 });
   expect(r.ok).toBe(false);
   expect(r.ok ? '' : r.reason).toBe('step-too-small');
+});
+
+it('the figures of the same bridge are measured: ripple.out_pp at periodic steady state against the ODEX reference', () => {
+  // The figure benches place JUNCTION_CMIN as .tran does (docs/transient.md): a practising engineer's first netlist.
+  const r = runNetlist(NETLIST.replace('.end', '.supply in=VSEC out=out\n.figure ripple\n.figure line\n.end'));
+  if (!r.ok) throw new Error(r.errors.map((e) => e.message).join('\n'));
+  const fig = r.report.figures!;
+  expect(fig.figures.every((f) => f.ok)).toBe(true);
+  const pp = fig.values['ripple.out_pp']!;
+  console.log(`default bridge, figure: ripple.out_pp ${pp.toFixed(4)} V (reference ${data.refRipple.toFixed(4)} V, ${((pp / data.refRipple - 1) * 100).toFixed(2)} %)`);
+  // Observed 0.19 % off the reference; bound 0.6 %.
+  expect(Math.abs(pp - data.refRipple)).toBeLessThan(0.006 * data.refRipple);
 });

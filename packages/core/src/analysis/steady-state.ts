@@ -22,6 +22,7 @@
  * constant of a hundred periods changes its mean by under 1 % per cycle
  * while still far from steady.
  */
+import { JUNCTION_CMIN } from '@railcheck/devices';
 import { DEFAULT_NEWTON, type NewtonOptions } from '../engine/newton.js';
 import { createLuWorkspace, luFactor, luSolve } from '../engine/lu.js';
 import { runTransient, type TransientOptions } from '../engine/transient.js';
@@ -201,6 +202,7 @@ class PeriodRunner {
       ...(base.lteVntol !== undefined ? { lteVntol: base.lteVntol } : {}),
       ...(base.tmax !== undefined ? { tmax: base.tmax } : {}),
       newton: PERIOD_NEWTON,
+      junctionCmin: JUNCTION_CMIN,
       extraBreakpoints: [...(base.extraBreakpoints ?? []).filter((t) => t > t0 && t < tEnd), ...boundaries],
       keepTrace: false,
       ...(from === undefined ? {} : 'solution' in from ? { initialSolution: from.solution } : { initialState: from }),

@@ -110,7 +110,7 @@ function stepHint(names: readonly string[]): string {
 
 /** What would fit, per transient budget. */
 const BUDGET_EXPECTED: Record<TransientBudgetExcess['budget'], string> = {
-  MAX_TRAN_STEPS: 'a shorter run, a larger tmax or slower sources',
+  MAX_TRAN_STEPS: 'a shorter run, a larger tmax, slower sources, or damping for a lightly damped resonance (the steps follow its ringing)',
   MAX_BREAKPOINTS: 'fewer pulse periods or pwl points in the run',
   MAX_TRACE_VALUES: 'a shorter run or a smaller circuit',
   MAX_FIGURE_STEPS: 'a figure asking for fewer steps',

@@ -7,6 +7,7 @@
  * magnitudes (|Vout|, |Vin|), so that "the output droops" and "the input
  * falls" read the same on both polarities.
  */
+import { JUNCTION_CMIN } from '@railcheck/devices';
 import type { WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import { FINAL_GMIN, solveOperatingPoint } from '../engine/dcop.js';
@@ -151,6 +152,7 @@ export function createDcBench(given: Stage): DcBench {
             tstop: tEnd,
             stepsPerCycle: SAG_STEPS_PER_CYCLE,
             lteReltol: SAG_LTE_RELTOL,
+            junctionCmin: JUNCTION_CMIN,
             tmax: Math.min(shape.edge, shape.dur / 50),
             keepTrace: false,
             ...(settled ? { initialSolution: settled.solution, startTime: settled.start } : {}),

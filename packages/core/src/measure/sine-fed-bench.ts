@@ -8,6 +8,7 @@
  * that still holds the output; the ripple is the stage's own; a dip is an
  * amplitude envelope over whole cycles.
  */
+import { JUNCTION_CMIN } from '@railcheck/devices';
 import type { WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import { describeTransientFailure, runTransient, transientFailureCode } from '../engine/transient.js';
@@ -208,6 +209,7 @@ export function createSineFedBench(given: Stage): SineFedBench {
             startTime: nominalStart.start,
             initialSolution: nominalStart.solution,
             stepsPerCycle: DIP_STEPS_PER_CYCLE,
+            junctionCmin: JUNCTION_CMIN,
             extraBreakpoints: boundaries,
             keepTrace: false,
             onAccept: (t, ctx) => observe(t, railSign * vout(stage, ctx.x)),

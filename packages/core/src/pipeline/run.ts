@@ -182,7 +182,9 @@ function runParsed(parsed: ParseResult): RunResult {
       ...operatingPointsJudged(results.operatingPoints),
       ...(cycleOp ? [{ where: 'averaged over the steady cycle of the sine-fed stage', currents: cycleOp.currents, power: cycleOp.power }] : []),
     ];
-    warnings.push(...sanityWarnings(c.flat, judged));
+    // A part the dissipation figure already found over its rating (over conditions that include nominal) is named once.
+    const figureOver = new Set((figures?.warnings ?? []).filter((w) => w.code === 'over-rating').map((w) => `${w.pos?.file}:${w.pos?.line}`));
+    warnings.push(...sanityWarnings(c.flat, judged).filter((w) => w.code !== 'over-rating' || !figureOver.has(`${w.pos?.file}:${w.pos?.line}`)));
     if (figures) warnings.push(...figures.warnings);
     return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, compiled: c, ...results, figures, warnings } };
   } catch (e) {
