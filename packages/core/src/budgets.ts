@@ -55,6 +55,17 @@ export const MAX_OUTPUT_VALUES = 20_000_000;
 export const MAX_FIGURE_STEPS = 2_000_000;
 
 /**
+ * Most time steps, accepted and rejected, every transient run of one
+ * figure bench may take together: all the figures of a run, their steady
+ * states and dips (a sine-fed stage with five figures takes some tens of
+ * thousands). Past it, the figure being measured and any after it are not
+ * measured, with the budget named: about twenty seconds of stepping on a
+ * small stage at the present speed, so that no set of figures runs for
+ * minutes.
+ */
+export const MAX_BENCH_STEPS = 2_000_000;
+
+/**
  * Most cards (logical lines that are elements or directives) one netlist may
  * hold with everything it includes: well above MAX_FLAT_ELEMENTS (100 000),
  * which more element cards could never fit, and about 250 MB of read cards.

@@ -25,7 +25,10 @@
 import { JUNCTION_CMIN } from '@railcheck/devices';
 import { DEFAULT_NEWTON, type NewtonOptions } from '../engine/newton.js';
 import { createLuWorkspace, luFactor, luSolve } from '../engine/lu.js';
-import { runTransient, type TransientOptions } from '../engine/transient.js';
+import { runTransient, type TransientOptions, type TransientOutcome } from '../engine/transient.js';
+
+/** A failed transient run. */
+type TransientFailure = Extract<TransientOutcome, { ok: false }>;
 import type { CompiledCircuit } from '../engine/compile.js';
 import type { LoadContext } from '@railcheck/devices';
 
@@ -107,7 +110,7 @@ export interface SteadyState {
 /** Outcome of {@link findPeriodicSteadyState}. */
 export type SteadyStateOutcome =
   | { readonly ok: true; readonly steady: SteadyState }
-  | { readonly ok: false; readonly reason: 'transient-failed'; readonly time: number }
+  | { readonly ok: false; readonly reason: 'transient-failed'; readonly time: number; /** The period run's own failure (a step at its floor, a budget). */ readonly failure: TransientFailure }
   | {
       readonly ok: false;
       readonly reason: 'not-settled';
@@ -181,7 +184,7 @@ class PeriodRunner {
   }
 
   /** Runs `count` periods from `t0`; returns undefined (and the failure time) when the transient fails. */
-  run(t0: number, from: RunStart, count: number, record: boolean, replay?: Float64Array, onPoint?: (t: number, ctx: LoadContext) => void): PeriodRun | { failedAt: number } {
+  run(t0: number, from: RunStart, count: number, record: boolean, replay?: Float64Array, onPoint?: (t: number, ctx: LoadContext) => void): PeriodRun | { failedAt: number; failure: TransientFailure } {
     const { c, period, slots } = this;
     const m = slots.length;
     const qMin = new Float64Array(m).fill(Infinity);
@@ -221,7 +224,7 @@ class PeriodRunner {
       },
     });
     this.periods += count;
-    if (!outcome.ok) return { failedAt: outcome.time };
+    if (!outcome.ok) return { failedAt: outcome.time, failure: outcome };
     return {
       endState: new Float64Array(c.ws.states[0]!),
       endX: new Float64Array(c.ws.x),
@@ -278,7 +281,7 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
   const warm = Math.max(1, opts.warmupCycles ?? 2);
   const t0 = (opts.start ?? 0) + warm * period;
   const first = runner.run(opts.start ?? 0, opts.initialSolution ? { solution: opts.initialSolution } : undefined, warm, false);
-  if ('failedAt' in first) return { ok: false, reason: 'transient-failed', time: first.failedAt };
+  if ('failedAt' in first) return { ok: false, reason: 'transient-failed', time: first.failedAt, failure: first.failure };
 
   let state = first.endState;
   let guess = first.endX;
@@ -372,7 +375,7 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
     let stalled = 0;
     for (let k = 0; k < budget; k++) {
       const r = runner.run(t0, { state, guess }, 1, false);
-      if ('failedAt' in r) return { ok: false, reason: 'transient-failed', time: r.failedAt };
+      if ('failedAt' in r) return { ok: false, reason: 'transient-failed', time: r.failedAt, failure: r.failure };
       const tol = runner.tolerances(r);
       const tolDistance = runner.tolerances(r, DISTANCE_RELTOL);
       const f = runner.change(state, r);
@@ -424,7 +427,7 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
 
   // The settled cycle, started from the consistent solution at its start.
   const final = runner.run(t0, { solution: settled.guess }, 1, false, undefined, opts.onCycle);
-  if ('failedAt' in final) return { ok: false, reason: 'transient-failed', time: final.failedAt };
+  if ('failedAt' in final) return { ok: false, reason: 'transient-failed', time: final.failedAt, failure: final.failure };
   const residual = m === 0 ? 0 : worstRatio(runner.change(settled.state, final), runner.tolerances(final));
   return {
     ok: true,

@@ -114,6 +114,7 @@ const BUDGET_EXPECTED: Record<TransientBudgetExcess['budget'], string> = {
   MAX_BREAKPOINTS: 'fewer pulse periods or pwl points in the run',
   MAX_TRACE_VALUES: 'a shorter run or a smaller circuit',
   MAX_FIGURE_STEPS: 'a figure asking for fewer steps',
+  MAX_BENCH_STEPS: 'fewer figures, or a stage that settles in fewer cycles',
 };
 
 /**

@@ -8,6 +8,7 @@
  * estimate ({@link SolutionHistory}); every pulse/pwl corner is landed on.
  * Nothing is allocated per step except the stored output point.
  */
+import type { SharedStepBudget } from './workspace.js';
 import { type IndependentSource, type LoadContext, type WaveformSpec } from '@railcheck/devices';
 import type { CompiledCircuit } from './compile.js';
 import { DEFAULT_NEWTON, loadAll, newtonSolve, type NewtonOptions } from './newton.js';
@@ -83,7 +84,7 @@ export interface TransientOptions {
    * Capacitance in farads placed across every diode junction whose model has
    * CJO = 0 (default 0). The `.tran` analysis passes JUNCTION_CMIN so that a
    * bridge of default diodes on a floating secondary can be followed; the
-   * figure benches keep 0 (docs/transient.md, "Minimum junction capacitance").
+   * figure benches pass it too (docs/transient.md, "Minimum junction capacitance").
    */
   readonly junctionCmin?: number;
   /**
@@ -94,12 +95,7 @@ export interface TransientOptions {
   readonly shared?: SharedStepBudget;
 }
 
-/** Steps left to a group of transient runs, and the budget they come from. */
-export interface SharedStepBudget {
-  left: number;
-  readonly budget: 'MAX_FIGURE_STEPS';
-  readonly limit: number;
-}
+export type { SharedStepBudget } from './workspace.js';
 
 /** Counters of one run. */
 export interface TransientStats {
@@ -128,7 +124,7 @@ export interface TransientTrace {
 /** A budget (docs/engine.md, "Budgets") that a transient run would exceed, and by how much. */
 export interface TransientBudgetExcess {
   /** The budget's name in budgets.ts. */
-  readonly budget: 'MAX_TRAN_STEPS' | 'MAX_BREAKPOINTS' | 'MAX_TRACE_VALUES' | 'MAX_FIGURE_STEPS';
+  readonly budget: 'MAX_TRAN_STEPS' | 'MAX_BREAKPOINTS' | 'MAX_TRACE_VALUES' | 'MAX_FIGURE_STEPS' | 'MAX_BENCH_STEPS';
   /** The budget's value. */
   readonly limit: number;
   /** The count that exceeded it (an estimate made before the run, or the counter when it ran over). */
@@ -160,6 +156,7 @@ const BUDGET_CODES: Record<TransientBudgetExcess['budget'], string> = {
   MAX_BREAKPOINTS: 'budget-breakpoints',
   MAX_TRACE_VALUES: 'budget-tran-trace',
   MAX_FIGURE_STEPS: 'budget-figure-steps',
+  MAX_BENCH_STEPS: 'budget-bench-steps',
 };
 
 /** The diagnostic code of a failed transient: `transient-failed`, or `budget-…` naming the budget it exceeded. */
@@ -349,10 +346,12 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     // Every step tried, accepted or rejected, counts against MAX_TRAN_STEPS: no input keeps the loop going.
     let tried = 0;
     const shared = opts.shared;
+    const bench = c.ws.stepAllowance;
     const traceFull = (): TransientOutcome => overBudget(t, { budget: 'MAX_TRACE_VALUES', limit: MAX_TRACE_VALUES, value: (trace.count + 1) * trace.size, what: 'stored values (accepted points × unknowns)', source: undefined });
     while (t < tstop) {
       if (++tried > MAX_TRAN_STEPS) return overBudget(t, { budget: 'MAX_TRAN_STEPS', limit: MAX_TRAN_STEPS, value: tried, source: undefined, what: 'time steps or more (accepted and rejected)' });
       if (shared && --shared.left < 0) return overBudget(t, { budget: shared.budget, limit: shared.limit, value: shared.limit + 1, source: undefined, what: 'time steps or more over its runs together' });
+      if (bench && --bench.left < 0) return overBudget(t, { budget: bench.budget, limit: bench.limit, value: bench.limit + 1, source: undefined, what: 'time steps or more over all the figures of the stage together' });
       // A step that is not a number, or not positive, would never reach tstop.
       if (!(h > 0)) return fail('step-too-small', t);
       const target = breakpoints[nextBreak]!;

@@ -37,6 +37,13 @@ class EngineLoadContext implements LoadContext {
   }
 }
 
+/** Steps left to a group of transient runs, and the budget they come from (budgets.ts). */
+export interface SharedStepBudget {
+  left: number;
+  readonly budget: 'MAX_FIGURE_STEPS' | 'MAX_BENCH_STEPS';
+  readonly limit: number;
+}
+
 /** Preallocated storage for one circuit. */
 export interface Workspace {
   /** Unknowns + 1 (the ground row). */
@@ -53,6 +60,8 @@ export interface Workspace {
   /** Device state (charges and their currents, junction memory): [0] at the point being solved, [1] at the last accepted time point. */
   readonly states: readonly [Float64Array, Float64Array];
   readonly ctx: EngineLoadContext;
+  /** A step allowance every transient run on this circuit draws from (a figure bench's MAX_BENCH_STEPS), or none. */
+  stepAllowance: SharedStepBudget | undefined;
 }
 
 /** Allocates a workspace. */
@@ -64,7 +73,7 @@ export function createWorkspace(unknowns: number, stateSize: number): Workspace 
   // Each state slot pair is (charge, current); backward Euler and the trapezoidal rule need the present and the last accepted state only.
   const states = [new Float64Array(Math.max(stateSize, 1)), new Float64Array(Math.max(stateSize, 1))] as const;
   const ctx = new EngineLoadContext(lu.matrix, rhs, x, states[0], states[1]);
-  return { size, unknowns, lu, rhs, x, xNext: new Float64Array(size), states, ctx };
+  return { size, unknowns, lu, rhs, x, xNext: new Float64Array(size), states, ctx, stepAllowance: undefined };
 }
 
 export type { EngineLoadContext };

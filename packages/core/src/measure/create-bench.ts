@@ -4,6 +4,7 @@
  * to the temperature of the figures, with the strategy the stage's input
  * asks for: a `sin` input gets the sine-fed bench, any other the DC bench.
  */
+import { MAX_BENCH_STEPS } from '../budgets.js';
 import { errorAt, RailcheckError } from '../errors.js';
 import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
@@ -35,6 +36,8 @@ export function createBench(compiled: CompiledCircuit, options: BenchOptions = {
   const own = compileCircuit(flat);
   if (!own.ok) throw new RailcheckError(own.errors);
   setCircuitTemperature(own.circuit, options.celsius ?? flat.temperatures[0] ?? 27);
+  // Every transient of every figure on this bench draws from one allowance (budgets.ts).
+  own.circuit.ws.stepAllowance = { left: MAX_BENCH_STEPS, budget: 'MAX_BENCH_STEPS', limit: MAX_BENCH_STEPS };
   const stage = makeStage(own.circuit, supply);
   return BENCHES.mark(stage.inputWaveform?.kind === 'sin' ? createSineFedBench(stage) : createDcBench(stage));
 }

@@ -184,7 +184,7 @@ function notMeasuredNote(f: FlatFigure, reason: Diagnostic): Diagnostic {
 }
 
 /** A non-finite value in words. */
-const nonFinite = (v: number): string => (Number.isNaN(v) ? 'NaN' : v > 0 ? '+∞' : '−∞');
+const nonFinite = (v: number): string => (Number.isNaN(v) ? 'undefined (zero divided by zero)' : v > 0 ? '+∞' : '−∞');
 
 /**
  * A measured figure with the unit of each value; a value that is not a

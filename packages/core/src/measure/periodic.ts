@@ -6,6 +6,7 @@
  * into the mean, least and greatest value of each, and says how the state
  * was found. A failure is a located RailcheckError.
  */
+import { describeTransientFailure, transientFailureCode } from '../engine/transient.js';
 import type { LoadContext } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CardOrigin } from '../netlist/ast.js';
@@ -132,7 +133,7 @@ export function settleCycle(c: CompiledCircuit, opts: PeriodicOptions, what: str
   });
   if (!r.ok) {
     if (r.reason === 'transient-failed') {
-      throw new RailcheckError([errorAt('transient-failed', `${what}: the transient failed at t = ${formatSI(r.time, 's')}`, origin?.pos, origin?.lineText)]);
+      throw new RailcheckError([errorAt(transientFailureCode(r.failure), `${what}: the transient failed ${describeTransientFailure(r.failure, (s) => formatSI(s, 's'))}`, origin?.pos, origin?.lineText)]);
     }
     const slowest = r.slowest ? `; slowest to settle: the charge of ${r.slowest}` : '';
     const formatCount = (n: number): string => (n < 1e6 ? String(n) : n.toExponential(1));
