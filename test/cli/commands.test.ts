@@ -1,10 +1,12 @@
 /**
  * The command line's commands and options (docs/output.md, Exit status: exit
  * status 0 when every limit passes, 1 when one fails, 2 when the netlist
- * has an error; the message on standard error). Help goes to standard
- * output with exit 0; a mistake on the command line is exit 2 with a
- * message saying what was expected.
+ * has an error; the message on standard error). Help asked for goes to
+ * standard output with exit 0; no command at all prints it on standard
+ * error with exit 2; a mistake on the command line is exit 2 with a
+ * message naming the word and saying what was expected.
  */
+import { readFileSync } from 'node:fs';
 import { describe, expect, test } from 'vitest';
 import { cli, netlistFile, STACK_LINE } from './support.js';
 
@@ -12,7 +14,7 @@ const DIVIDER = 'Bench divider\nV1 in 0 12\nR1 in out 3k\nR2 out 0 1k\n.op\n';
 
 describe('help', () => {
   test.each([
-    [['--help']], [['-h']], [['help']], [[]], [['help', 'run']], [['run', '--help']], [['help', 'demo']], [['demo', '--help']], [['run', '-h']],
+    [['--help']], [['-h']], [['help']], [['help', 'run']], [['--help', 'run']], [['run', '--help']], [['help', 'demo']], [['demo', '--help']], [['run', '-h']],
   ])('railcheck %j prints usage and exits 0', async (argv) => {
     const run = await cli(argv);
     expect(run.status).toBe(0);
@@ -42,18 +44,47 @@ describe('mistakes on the command line exit 2 with a message', () => {
   test.each([
     ['unknown command', ['simulate', 'x.cir'], /unknown command 'simulate'/],
     ['unknown option on run', ['run', 'x.cir', '--fast'], /unknown option '--fast'.*--json/],
-    ['unknown option on demo', ['demo', '--csv'], /unknown option/],
-    ['a value given to a flag that takes none', ['run', 'x.cir', '--json=yes'], /takes no value/],
+    ['unknown short option on run', ['run', 'x.cir', '-q'], /unknown option '-q'.*-j\/--json/],
+    ['unknown option on demo', ['demo', '--csv'], /unknown option '--csv'/],
+    ['unknown option before a command', ['--json', 'run', 'x.cir'], /unknown option '--json'.*after the command/],
+    ['unknown short option before a command', ['-z'], /unknown option '-z'/],
+    ['a value given to a flag that takes none', ['run', 'x.cir', '--json=yes'], /'--json' takes no value/],
+    ['an option where --csv wants its file name', ['run', 'x.cir', '--csv', '--json'], /'--csv' needs a value.*followed by the option '--json'/],
+    ['the short form the same', ['run', 'x.cir', '-c', '-j'], /'-c' needs a value.*followed by the option '-j'/],
+    ['--csv at the end', ['run', 'x.cir', '--csv'], /'--csv' needs a value \(OUT\.csv\)/],
+    ['--csv with an empty value', ['run', 'x.cir', '--csv='], /'--csv' needs a value/],
+    ['an option given twice', ['run', 'x.cir', '--csv', 'a.csv', '-c', 'b.csv'], /'-c' is given twice/],
+    ['--version with more', ['--version', 'run'], /--version: takes nothing else/],
     ['run without a file', ['run'], /expected one netlist FILE/],
-    ['run with two files', ['run', 'a.cir', 'b.cir'], /expected one netlist FILE/],
+    ['run with two files', ['run', 'a.cir', 'b.cir'], /expected one netlist FILE, got 2: a\.cir b\.cir/],
     ['demo with a file', ['demo', 'x.cir'], /takes no file/],
     ['help on an unknown command', ['help', 'simulate'], /simulate/],
+    ['no command at all: help on standard error', [], /no command given[\s\S]*usage:/],
   ])('%s', async (_name, argv, message) => {
     const run = await cli(argv);
     expect(run.status).toBe(2);
     expect(run.err).toMatch(message);
     expect(run.out).toBe('');
     expect(run.err).not.toMatch(STACK_LINE);
+  });
+});
+
+describe('short options and --version', () => {
+  test('-j before the file is --json, not a second file', async () => {
+    const run = await cli(['run', '-j', netlistFile(DIVIDER)]);
+    expect(run.err).toBe('');
+    expect(run.status).toBe(0);
+    // Ohm's law: 12 V over 3k + 1k puts out at 3 V; observed exact, bound 2 eps.
+    const out = (JSON.parse(run.out) as { op: { nodes: Record<string, number> } }).op.nodes['out']!;
+    expect(Math.abs(out - 3)).toBeLessThanOrEqual(2 * Number.EPSILON * 3);
+  });
+
+  test.each([[['--version']], [['-V']]])('railcheck %j prints the CLI package version and exits 0', async (argv) => {
+    const pkg = JSON.parse(readFileSync(new URL('../../packages/cli/package.json', import.meta.url), 'utf8')) as { version: string };
+    const run = await cli(argv);
+    expect(run.status).toBe(0);
+    expect(run.out.trim()).toBe(pkg.version);
+    expect(run.err).toBe('');
   });
 });
 

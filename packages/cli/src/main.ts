@@ -12,7 +12,7 @@ import { match } from 'ts-pattern';
 import { isAbsolute, relative } from 'node:path';
 import { transientCsv } from './present/waves.js';
 import { refuseOutput, writeOutputFiles } from './present/files.js';
-import { realpathSync } from 'node:fs';
+import { readFileSync, realpathSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { flagHelp, parseArgs, type FlagSpec } from './args.js';
 import { formatReport, formatWarnings } from './present/text.js';
@@ -38,16 +38,22 @@ export const EXIT_LIMIT_FAILED = 1;
 export const EXIT_ERROR = 2;
 
 const RUN_FLAGS: readonly FlagSpec[] = [
-  { name: 'json', takesValue: false, help: 'print the result as one JSON object on standard output' },
-  { name: 'csv', takesValue: true, valueName: 'OUT.csv', help: 'write the transient waveforms (time and every node) to OUT.csv' },
-  { name: 'steps', takesValue: false, help: 'with --json or --csv: every accepted time step instead of the tstep grid' },
+  { name: 'json', short: 'j', takesValue: false, help: 'print the result as one JSON object on standard output' },
+  { name: 'csv', short: 'c', takesValue: true, valueName: 'OUT.csv', help: 'write the transient waveforms (time and every node) to OUT.csv' },
+  { name: 'steps', short: 's', takesValue: false, help: 'with --json or --csv: every accepted time step instead of the tstep grid' },
   { name: 'allow-outside-includes', takesValue: false, help: 'let .include reach files outside the netlist\'s folder tree' },
-  { name: 'help', takesValue: false, help: 'show this help' },
+  { name: 'help', short: 'h', takesValue: false, help: 'show this help' },
 ];
 
 const DEMO_FLAGS: readonly FlagSpec[] = [
-  { name: 'json', takesValue: false, help: 'print the result as JSON' },
-  { name: 'help', takesValue: false, help: 'show this help' },
+  { name: 'json', short: 'j', takesValue: false, help: 'print the result as JSON' },
+  { name: 'help', short: 'h', takesValue: false, help: 'show this help' },
+];
+
+/** Options before (or instead of) a command. */
+const TOP_FLAGS: readonly FlagSpec[] = [
+  { name: 'help', short: 'h', takesValue: false, help: 'show this help' },
+  { name: 'version', short: 'V', takesValue: false, help: 'print the version of railcheck' },
 ];
 
 const USAGE = `railcheck: checks a discrete linear supply stage from its netlist before you solder.
@@ -57,6 +63,9 @@ usage:
                                   simulate a netlist and report its operating point, sweeps, waveforms and figures
   railcheck demo [--json]         run the built-in example stage
   railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
+  railcheck --version             print the version (also -V)
+
+Paths are read from the folder you are in.
 
 exit status: 0 all limits pass, 1 a limit failed, 2 the netlist has an error, an analysis failed
 or a limit could not be evaluated (its figure was not measured).
@@ -78,6 +87,13 @@ weather-station sensor rail (examples/sensor-rail-follower.cir).
 
 options:
 ${flagHelp(DEMO_FLAGS)}`;
+
+/** The version of the command: the `version` of the CLI package's package.json (beside src/ and dist/ alike). */
+export function cliVersion(): string {
+  const pkg: unknown = JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8'));
+  const v = typeof pkg === 'object' && pkg !== null && 'version' in pkg ? pkg.version : undefined;
+  return typeof v === 'string' ? v : 'unknown';
+}
 
 /** Path of the built-in demo netlist (shipped in examples/). */
 export function demoPath(): string {
@@ -162,7 +178,7 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
   }
   const expected = demo ? 0 : 1;
   if (positionals.length !== expected) {
-    io.err(demo ? `railcheck demo: takes no file (got ${positionals.join(' ')})` : `railcheck run: expected one netlist FILE${positionals.length ? `, got ${positionals.length}` : ''}\n\n${RUN_HELP}`);
+    io.err(demo ? `railcheck demo: takes no file (got ${positionals.join(' ')})` : `railcheck run: expected one netlist FILE${positionals.length ? `, got ${positionals.length}: ${positionals.join(' ')}` : ''}\n\n${RUN_HELP}`);
     return EXIT_ERROR;
   }
   // The demo's path is shown relative to where the user stands when that is shorter.
@@ -182,6 +198,36 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
   return present(io, result, flags, file);
 }
 
+/** `railcheck --help [COMMAND]`, `railcheck --version`, or a mistake among the options before a command. */
+function topOptions(argv: readonly string[], io: CliIo): number {
+  const parsed = parseArgs(argv, TOP_FLAGS);
+  if (!parsed.ok) {
+    io.err(`railcheck: ${parsed.message}; options of run and demo go after the command\n\n${USAGE}`);
+    return EXIT_ERROR;
+  }
+  const { positionals, flags } = parsed.args;
+  if (flags.has('version')) {
+    if (flags.size > 1 || positionals.length > 0) {
+      io.err(`railcheck --version: takes nothing else (got ${argv.join(' ')})`);
+      return EXIT_ERROR;
+    }
+    io.out(cliVersion());
+    return EXIT_OK;
+  }
+  return helpCommand(positionals, io);
+}
+
+/** `railcheck help [COMMAND]`: the help asked for on standard output. */
+function helpCommand(rest: readonly string[], io: CliIo): number {
+  const topic = rest[0];
+  if (rest.length > 1 || (topic !== undefined && topic !== 'run' && topic !== 'demo' && topic !== 'help')) {
+    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, demo or help\n\n${USAGE}`);
+    return EXIT_ERROR;
+  }
+  io.out(topic === 'run' ? RUN_HELP : topic === 'demo' ? DEMO_HELP : USAGE);
+  return EXIT_OK;
+}
+
 /** Runs the command line `argv` (without `node` and the script); resolves to the exit status. */
 export async function main(argv: readonly string[], io: CliIo = defaultIo): Promise<number> {
   try {
@@ -192,19 +238,13 @@ export async function main(argv: readonly string[], io: CliIo = defaultIo): Prom
       case 'demo':
         return runCommand(rest, io, true);
       case undefined:
+        io.err(`railcheck: no command given; expected run, demo, help or --version\n\n${USAGE}`);
+        return EXIT_ERROR;
       case 'help':
-      case '--help':
-      case '-h': {
-        const topic = rest[0];
-        if (topic !== undefined && topic !== 'run' && topic !== 'demo' && topic !== 'help') {
-          io.err(`railcheck help: no command '${topic}'; expected run, demo or help\n\n${USAGE}`);
-          return EXIT_ERROR;
-        }
-        io.out(topic === 'run' ? RUN_HELP : topic === 'demo' ? DEMO_HELP : USAGE);
-        return EXIT_OK;
-      }
+        return helpCommand(rest, io);
       default:
-        io.err(`railcheck: unknown command '${command}'\n\n${USAGE}`);
+        if (command.startsWith('-')) return topOptions(argv, io);
+        io.err(`railcheck: unknown command '${command}'; expected run, demo or help\n\n${USAGE}`);
         return EXIT_ERROR;
     }
   } catch (e) {

@@ -51,6 +51,17 @@ export function refuseOutput(path: string, protect: string): string | undefined 
   return undefined;
 }
 
+/**
+ * Why a write failed, for messages: the absolute path it was meant for and
+ * the operating system's code and reason ("EACCES: permission denied"),
+ * without the temporary name node's message carries.
+ */
+function writeFailure(real: string, e: unknown): string {
+  const text = e instanceof Error ? e.message : String(e);
+  const m = /^([A-Z][A-Z0-9_]*): ([^,]+)/.exec(text);
+  return `${real}: ${m ? `${m[1]}: ${m[2]}` : text}`;
+}
+
 /** A temporary name beside `real`, hidden and unlikely to clash. */
 function temporaryName(real: string, k: number): string {
   return join(dirname(real), `.${basename(real)}.railcheck-${process.pid}-${Date.now().toString(36)}-${k}.tmp`);
@@ -88,7 +99,7 @@ export function writeOutputFiles(files: readonly OutputFile[], protect: string):
       writeFileSync(temp, f.text, { flag: 'wx' });
     } catch (e) {
       discard();
-      return { ok: false, message: `cannot write ${f.path}: ${e instanceof Error ? e.message : String(e)}; no output file was written` };
+      return { ok: false, message: `cannot write ${f.path} (${writeFailure(real, e)}); no output file was written` };
     }
   }
   for (const [k, s] of staged.entries()) {
@@ -97,7 +108,7 @@ export function writeOutputFiles(files: readonly OutputFile[], protect: string):
     } catch (e) {
       for (const rest of staged.slice(k)) removeQuietly(rest.temp);
       const done = staged.slice(0, k).map((d) => d.path);
-      return { ok: false, message: `cannot put ${s.path} in place: ${e instanceof Error ? e.message : String(e)}${done.length ? `; already written: ${done.join(', ')}` : '; no output file was written'}` };
+      return { ok: false, message: `cannot put ${s.path} in place (${writeFailure(s.real, e)})${done.length ? `; already written: ${done.join(', ')}` : '; no output file was written'}` };
     }
   }
   return { ok: true };

@@ -57,11 +57,15 @@ function realOrSelf(p: string): string {
   }
 }
 
-/** What a node:fs error says, for messages ("no such file or directory", "permission denied", ...). */
+/**
+ * What a node:fs error says, for messages: the operating system's code and
+ * reason ("ENOENT: no such file or directory", "EACCES: permission
+ * denied"), without the path node appends (the message names it already).
+ */
 function describeFsError(e: unknown): string {
-  const code = typeof e === 'object' && e !== null && 'code' in e ? String((e as { code: unknown }).code) : '';
-  const known: Record<string, string> = { ENOENT: 'no such file', EACCES: 'permission denied', EISDIR: 'a folder', ELOOP: 'too many levels of symbolic links' };
-  return known[code] ?? (e instanceof Error ? e.message : String(e));
+  const text = e instanceof Error ? e.message : String(e);
+  const m = /^([A-Z][A-Z0-9_]*): ([^,]+)/.exec(text);
+  return m ? `${m[1]}: ${m[2]}` : text;
 }
 
 /** Names the kind of a non-regular file from its status. */
@@ -203,8 +207,10 @@ export function resolveInclude(ctx: IncludeState, c: Cursor, path: string, at: T
  * diagnostic fields of the refusal (code `file-…`, located at no line).
  */
 export function readTopFile(path: string, source: FileSource): { ok: true; text: string } | { ok: false; code: string; message: string; expected: string } {
-  const got = source.read(resolve(path));
+  const abs = resolve(path);
+  const got = source.read(abs);
   if (got.kind === 'text') return { ok: true, text: got.text };
   const { suffix, reason } = describeRefusal(got.refusal);
-  return { ok: false, code: `file-${suffix}`, message: `the netlist file ${path} ${reason}`, expected: `an existing, readable regular file of at most ${MAX_FILE_BYTES} bytes` };
+  const where = abs === path ? path : `${path} (looked for ${abs})`;
+  return { ok: false, code: `file-${suffix}`, message: `the netlist file ${where} ${reason}`, expected: `an existing, readable regular file of at most ${MAX_FILE_BYTES} bytes` };
 }
