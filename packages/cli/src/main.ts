@@ -12,7 +12,7 @@ import { match } from 'ts-pattern';
 import { isAbsolute, relative } from 'node:path';
 import { transientCsv } from './present/waves.js';
 import { refuseOutput, writeOutputFiles } from './present/files.js';
-import { realpathSync } from 'node:fs';
+import { existsSync, realpathSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { flagHelp, parseArgs, type FlagSpec } from './args.js';
 import { formatReport, formatWarnings } from './present/text.js';
@@ -79,9 +79,14 @@ weather-station sensor rail (examples/sensor-rail-follower.cir).
 options:
 ${flagHelp(DEMO_FLAGS)}`;
 
-/** Path of the built-in demo netlist (shipped in examples/). */
+/**
+ * Path of the built-in demo netlist. An installed package carries a copy in
+ * its own examples/ folder (packages/cli/examples/, made by scripts/build.mjs);
+ * in the workspace the sources fall back to the repository's examples/.
+ */
 export function demoPath(): string {
-  return fileURLToPath(new URL('../../../examples/sensor-rail-follower.cir', import.meta.url));
+  const inPackage = fileURLToPath(new URL('../examples/sensor-rail-follower.cir', import.meta.url));
+  return existsSync(inPackage) ? inPackage : fileURLToPath(new URL('../../../examples/sensor-rail-follower.cir', import.meta.url));
 }
 
 function printErrors(io: CliIo, errors: readonly Diagnostic[], warnings: readonly Diagnostic[]): void {
