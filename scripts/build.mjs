@@ -1,17 +1,47 @@
-// Bundles each package's barrel and the CLI entry with esbuild, so that the
-// `railcheck` command starts from plain JavaScript (no transpiling at start-up).
+// Builds what the packages ship, into each packages/X/dist/:
+// - JavaScript bundles made with esbuild, so that the `railcheck` command
+//   starts from plain JavaScript (no transpiling at start-up);
+// - declaration files (.d.ts) emitted by tsc from the sources
+//   (packages/X/tsconfig.build.json), in dependency order devices -> core -> cli,
+//   because each package's declarations import the previous one's through its
+//   package.json `types`;
+// - packages/cli/examples/: a copy of the example netlists, so that an
+//   installed CLI finds the demo netlist inside its own package.
+// When the launcher (scripts/railcheck.mjs) imports this file to refresh a
+// stale bundle, only the JavaScript is rebuilt (quick); `node scripts/build.mjs`
+// (prepare, build) does everything.
+// Inside the workspace, tests and the type check read the sources (vitest
+// aliases, tsconfig.json paths); see DEVELOPERS.md, Packaging.
 import { build } from 'esbuild';
+import { execFileSync } from 'node:child_process';
+import { cpSync, mkdirSync, readdirSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { dirname, join } from 'node:path';
+import { dirname, join, resolve } from 'node:path';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 const common = { bundle: true, platform: 'node', format: 'esm', target: 'node20', sourcemap: true, logLevel: 'warning' };
+const pkg = (p) => join(root, 'packages', p);
+const full = process.argv[1] !== undefined && resolve(process.argv[1]) === fileURLToPath(import.meta.url);
+
+
+// dist/ is overwritten, not emptied first: two tests may build at the same time.
+const examples = join(pkg('cli'), 'examples');
+mkdirSync(examples, { recursive: true });
+for (const f of readdirSync(join(root, 'examples'))) {
+  if (f.endsWith('.cir')) cpSync(join(root, 'examples', f), join(examples, f));
+}
 
 await Promise.all([
-  build({ ...common, entryPoints: [join(root, 'packages/devices/src/index.ts')], outfile: join(root, 'packages/devices/dist/index.js'), packages: 'external' }),
-  build({ ...common, entryPoints: [join(root, 'packages/core/src/index.ts')], outfile: join(root, 'packages/core/dist/index.js'), external: ['ts-pattern'] }),
-  build({ ...common, entryPoints: [join(root, 'packages/core/src/internal.ts')], outfile: join(root, 'packages/core/dist/internal.js'), external: ['ts-pattern'] }),
-  build({ ...common, entryPoints: [join(root, 'packages/cli/src/index.ts')], outfile: join(root, 'packages/cli/dist/index.js'), external: ['ts-pattern'] }),
-  build({ ...common, entryPoints: [join(root, 'packages/cli/src/main.ts')], outfile: join(root, 'packages/cli/dist/railcheck.mjs'), external: ['ts-pattern'],
+  build({ ...common, entryPoints: [join(pkg('devices'), 'src/index.ts')], outfile: join(pkg('devices'), 'dist/index.js'), packages: 'external' }),
+  // index and internal share one chunk, so both entry points see the same classes and tables.
+  build({ ...common, entryPoints: [join(pkg('core'), 'src/index.ts'), join(pkg('core'), 'src/internal.ts')], outdir: join(pkg('core'), 'dist'),
+    splitting: true, chunkNames: 'chunk-[hash]', external: ['ts-pattern'] }),
+  build({ ...common, entryPoints: [join(pkg('cli'), 'src/index.ts')], outfile: join(pkg('cli'), 'dist/index.js'), external: ['ts-pattern'] }),
+  build({ ...common, entryPoints: [join(pkg('cli'), 'src/main.ts')], outfile: join(pkg('cli'), 'dist/railcheck.mjs'), external: ['ts-pattern'],
     banner: { js: '#!/usr/bin/env node' } }),
 ]);
+
+const tsc = join(root, 'node_modules', 'typescript', 'bin', 'tsc');
+for (const p of full ? ['devices', 'core', 'cli'] : []) {
+  execFileSync(process.execPath, [tsc, '-p', join(pkg(p), 'tsconfig.build.json')], { cwd: root, stdio: 'inherit' });
+}

@@ -12,7 +12,7 @@ import { match } from 'ts-pattern';
 import { isAbsolute, relative } from 'node:path';
 import { transientCsv } from './present/waves.js';
 import { refuseOutput, writeOutputFiles } from './present/files.js';
-import { readFileSync, realpathSync } from 'node:fs';
+import { existsSync, readFileSync, realpathSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { flagHelp, parseArgs, type FlagSpec } from './args.js';
 import { formatReport, formatWarnings } from './present/text.js';
@@ -95,9 +95,14 @@ export function cliVersion(): string {
   return typeof v === 'string' ? v : 'unknown';
 }
 
-/** Path of the built-in demo netlist (shipped in examples/). */
+/**
+ * Path of the built-in demo netlist. An installed package carries a copy in
+ * its own examples/ folder (packages/cli/examples/, made by scripts/build.mjs);
+ * in the workspace the sources fall back to the repository's examples/.
+ */
 export function demoPath(): string {
-  return fileURLToPath(new URL('../../../examples/sensor-rail-follower.cir', import.meta.url));
+  const inPackage = fileURLToPath(new URL('../examples/sensor-rail-follower.cir', import.meta.url));
+  return existsSync(inPackage) ? inPackage : fileURLToPath(new URL('../../../examples/sensor-rail-follower.cir', import.meta.url));
 }
 
 function printErrors(io: CliIo, errors: readonly Diagnostic[], warnings: readonly Diagnostic[]): void {

@@ -10,6 +10,9 @@
  * Layers, each importing only those before it (test/core/layers.test.ts):
  * netlist → elaborate → engine → analysis → measure → pipeline, with the
  * shared errors.ts, units.ts and figure-registry.ts below them all.
+  *
+ * @packageDocumentation
+ * @module @railcheck/core
  */
 export { RailcheckError, formatDiagnostic, errorAt, warningAt } from './errors.js';
 export type { Diagnostic, SourcePos } from './errors.js';

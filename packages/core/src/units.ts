@@ -20,7 +20,7 @@ export const NOT_FINITE_TEXT = 'not finite';
  * Values below 1e-18 in magnitude print as 0 (numerical dust: gmin
  * currents, rounding); magnitudes from 1e-18 up to 1e-15 and from 1e15 up
  * print in exponent notation with the bare unit; NaN and ±Infinity print
- * as {@link NOT_FINITE_TEXT}. Throws RailcheckError (`bad-argument`) when
+ * as `not finite`. Throws RailcheckError (`bad-argument`) when
  * `value` is not a number, `unit` not a string or `digits` out of range.
  */
 export function formatSI(value: number, unit: string, digits = 4): string {

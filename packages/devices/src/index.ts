@@ -2,6 +2,9 @@
  * railcheck device models: linear elements, independent and controlled
  * sources, the Shockley diode with breakdown and the Ebers-Moll transistor,
  * with the engine contract they implement.
+  *
+ * @packageDocumentation
+ * @module @railcheck/devices
  */
 
 export { BOLTZMANN, CHARGE, JUNCTION_CMIN, TNOM, ZERO_CELSIUS, thermalVoltage } from './constants.js';
