@@ -76,7 +76,8 @@ export function checkTopology(flat: FlatCircuit, devices: readonly Device[], unk
     errors.push(errorAt(
       'no-dc-path',
       `node${names.length > 1 ? 's' : ''} ${names.join(', ')} ha${names.length > 1 ? 've' : 's'} no DC path to ground (connected only through ${elements.join(', ') || 'nothing'})`,
-      first?.origin.pos, first?.origin.lineText,
+      // No element names the node (it comes from a directive or a subcircuit's internals): the netlist as a whole, at its title line.
+      first?.origin.pos ?? { file: flat.file, line: 1, column: 1 }, first ? first.origin.lineText : flat.title,
       'a resistive or conducting path from every node to ground (a capacitor or current source alone is not one)',
     ));
   }
