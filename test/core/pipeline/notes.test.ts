@@ -46,6 +46,13 @@ describe('the mains caution judges the levels the circuit reaches', () => {
     expect(cautioned(lines('split rails', 'V1 p 0 80', 'V2 0 n 80', 'R1 p n 10k', '.op'))).toBe(true);
     expect(cautioned(lines('split rails, low', 'V1 p 0 50', 'V2 0 n 50', 'R1 p n 10k', '.op'))).toBe(false);
   });
+
+  test('two 49.5 V r.m.s. sines in antiphase: each node is below 50 V r.m.s., the 99 V between them is not', () => {
+    const sines = (peak: number): string => lines('antiphase', `V1 p 0 sin(0 ${peak} 50)`, `V2 0 n sin(0 ${peak} 50)`, 'R1 p n 10k', '.tran 200u 40m');
+    expect(cautioned(sines(70))).toBe(true);
+    // 2 × 17 V peak is 24 V r.m.s. between the nodes.
+    expect(cautioned(sines(17))).toBe(false);
+  });
 });
 
 describe('sanity notes', () => {

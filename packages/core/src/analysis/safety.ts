@@ -115,8 +115,17 @@ function firstExceeded(flat: FlatCircuit, reached: ReachedLevels): string | unde
       const l = levelOf(tr.nodes[name]!);
       if (exceedsElv(l)) return says(`node ${name}`, l, `in the transient at ${tr.temperature} °C`);
     }
-    const spread = tr.times.map((_, k) => spreadAt(names.map((n) => tr.nodes[n]![k]!)));
-    const l = levelOf(spread);
+    // The widest difference at each grid point: the highest node (or ground) less the lowest.
+    const hi = new Float64Array(tr.times.length);
+    const lo = new Float64Array(tr.times.length);
+    for (const name of names) {
+      const vs = tr.nodes[name]!;
+      for (let k = 0; k < vs.length; k++) {
+        hi[k] = Math.max(hi[k]!, vs[k]!);
+        lo[k] = Math.min(lo[k]!, vs[k]!);
+      }
+    }
+    const l = levelOf(hi.map((h, k) => h - lo[k]!));
     if (exceedsElv(l)) return says('the widest difference between two nodes', l, `in the transient at ${tr.temperature} °C`);
   }
   for (const [name, c] of Object.entries(reached.cycle ?? {})) {

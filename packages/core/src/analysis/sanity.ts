@@ -5,6 +5,7 @@
  * under the report's Notes (warnings at the element's line), so that a
  * rating exceeded is never seen only as a mark in a table.
  */
+import { DEVICES } from '@railcheck/devices';
 import { warningAt, type Diagnostic } from '../errors.js';
 import type { FlatCircuit, FlatElement } from '../elaborate/flat.js';
 import type { OperatingPoint } from './dc.js';
@@ -56,9 +57,10 @@ export function sanityWarnings(flat: FlatCircuit, points: readonly JudgedPoint[]
     for (const pt of points) {
       const p = pt.power[el.name];
       if (p !== undefined && Number.isFinite(p) && (!worstPower || p > worstPower.p)) worstPower = { p, where: pt.where };
-      for (const [label, i] of Object.entries(pt.currents)) {
-        if (label !== el.name && !label.startsWith(`${el.name}.`)) continue;
-        if (Number.isFinite(i) && (!worstCurrent || Math.abs(i) > worstCurrent.i)) worstCurrent = { i: Math.abs(i), where: pt.where };
+      // The element's own current labels, named as readSolution names them (`R1`, `Q1.c`).
+      for (const label of DEVICES[el.kind].currents) {
+        const i = pt.currents[label ? `${el.name}.${label}` : el.name];
+        if (i !== undefined && Number.isFinite(i) && (!worstCurrent || Math.abs(i) > worstCurrent.i)) worstCurrent = { i: Math.abs(i), where: pt.where };
       }
     }
     if (el.pmax !== undefined && worstPower && worstPower.p > el.pmax) {
