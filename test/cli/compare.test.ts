@@ -70,6 +70,16 @@ describe('exit status', () => {
     expect(run.err).toMatch(/the modified netlist .*b\.cir has \d+ errors? \(run with the original's \.supply, \.figure, \.limit lines/);
   });
 
+  test('2: a limit of the modified stage not evaluated (its figure not measured); the report is still printed', async () => {
+    const withLoad = divider('3k').replace('.limit line.delta <= 0.7', '.limit load.rout <= 800');
+    const noLoad = withLoad.replace('.supply in=V1 out=out load=ILOAD', '.supply in=V1 out=out');
+    const run = await cli(['compare', netlistFile(withLoad, 'a.cir'), netlistFile(noLoad, 'b.cir')]);
+    expect(run.status).toBe(2);
+    expect(run.out).toMatch(/load\.rout <= 800 +pass \(750 Ω\) +not evaluated/);
+    expect(run.out).toMatch(/load\.rout not measured in the modified: /);
+    expect(run.err).toMatch(/1 limit was not evaluated on the modified netlist .*b\.cir/);
+  });
+
   test('2: wrong number of files', async () => {
     const run = await cli(['compare', 'a.cir']);
     expect(run.status).toBe(2);

@@ -146,6 +146,9 @@ describe('a Zener shunt whose series resistor is changed, against the small-sign
   const zener = (rs: string) =>
     lines('zener shunt', 'V1 in 0 15', `RS in out ${rs}`, 'DZ 0 out ZD', '.model ZD D (IS=1e-14 N=1 BV=6.2 IBV=1m NBV=1 RS=2)', '.supply in=V1 out=out', '.figure line from=14.9 to=15.1');
   const r = compared(compareNetlists(parse(zener('470'), 'a.cir'), parse(zener('1k'), 'b.cir')));
+  test('the change is RS 470 Ω → 1 kΩ', () => {
+    expect(r.changes.elements).toEqual([{ change: 'modified', element: 'RS', kind: 'resistor', moved: undefined, values: [{ what: 'resistance', unit: 'Ω', original: 470, modified: 1000 }] }]);
+  });
   test('line.slope follows rz/(RS + rz) in both versions; the verdict is better', () => {
     const f = figure(r, 'line.slope');
     const VT = (1.380649e-23 * 300.15) / 1.602176634e-19; // k·T/q at 27 °C (CODATA 2018 constants)
@@ -250,6 +253,20 @@ describe('conditions the modified netlist inherits', () => {
     expect(r.file).toBe('modified');
     expect(r.conditions?.supply).toBe('inherited');
     expect(r.errors[0]!.pos).toMatchObject({ file: 'a.cir', line: 6 }); // line 6 of divider(): the .supply card naming V1
+  });
+});
+
+describe('a figure one version cannot measure', () => {
+  test('the load figure without load= on the modified .supply: not measured there, with the reason, and not compared', () => {
+    const noLoad = divider('3k').replace('.supply in=V1 out=out load=ILOAD', '.supply in=V1 out=out');
+    const r = compared(compareNetlists(parse(divider('3k'), 'a.cir'), parse(noLoad, 'b.cir')));
+    for (const name of ['load.delta', 'load.pct', 'load.rout']) {
+      const f = figure(r, name);
+      expect([f.original.status, f.modified.status, f.verdict, f.absolute]).toEqual(['measured', 'not-measured', 'not-compared', undefined]);
+    }
+    expect(r.figures.some((f) => f.name === 'load')).toBe(false);
+    const rout = r.limits.find((l) => l.figure === 'load.rout')!;
+    expect([rout.original.status, rout.modified.status]).toEqual(['pass', 'not-evaluated']);
   });
 });
 

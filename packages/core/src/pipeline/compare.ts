@@ -395,11 +395,12 @@ export function verdictOf(original: number, modified: number, better: Better): V
     .exhaustive();
 }
 
-/** Every figure value of a report by lower-case name, with its unit, and the values not measured with their reasons. */
-function figureSides(r: RunReport): { names: string[]; sides: Map<string, FigureSide>; units: Map<string, FigureUnit> } {
+/** Every figure value of a report by lower-case name, with its unit, the values not measured with their reasons, and the figures not measured as a whole, by kind. */
+function figureSides(r: RunReport): { names: string[]; sides: Map<string, FigureSide>; units: Map<string, FigureUnit>; failedKinds: Map<string, Diagnostic> } {
   const names: string[] = [];
   const sides = new Map<string, FigureSide>();
   const units = new Map<string, FigureUnit>();
+  const failedKinds = new Map<string, Diagnostic>();
   for (const f of r.figures?.figures ?? []) {
     if (f.ok) {
       for (const [n, v] of Object.entries(f.values)) {
@@ -411,30 +412,45 @@ function figureSides(r: RunReport): { names: string[]; sides: Map<string, Figure
         names.push(v.name);
         sides.set(v.name.toLowerCase(), { status: 'not-measured', reason: v.reason });
       }
-    } else {
-      // A figure not measured as a whole: one row under its kind's name.
-      names.push(f.kind);
-      sides.set(f.kind, { status: 'not-measured', reason: f.reason });
-    }
+    } else if (!failedKinds.has(f.kind)) failedKinds.set(f.kind, f.reason);
   }
-  return { names, sides, units };
+  return { names, sides, units, failedKinds };
+}
+
+/**
+ * One version's side of a value: measured or not measured as itself, not
+ * measured because its whole figure was not, or absent. A figure not
+ * measured as a whole in both versions is one row under its kind's name.
+ */
+function sideOf(s: ReturnType<typeof figureSides>, key: string): FigureSide {
+  const own = s.sides.get(key);
+  if (own) return own;
+  const kind = figureEntry(key)?.kind ?? key;
+  const reason = s.failedKinds.get(kind);
+  return reason ? { status: 'not-measured', reason } : { status: 'absent' };
 }
 
 function compareFigures(a: RunReport, b: RunReport): FigureComparison[] {
   const fa = figureSides(a);
   const fb = figureSides(b);
+  // A kind neither version measured gets one row under its name; a kind one version measured gets that version's value names.
+  const kindRows = (s: ReturnType<typeof figureSides>, other: ReturnType<typeof figureSides>): string[] =>
+    [...s.failedKinds.keys()].filter((k) => ![...other.names].some((n) => figureEntry(n)?.kind === k));
   const seen = new Set<string>();
   const out: FigureComparison[] = [];
-  for (const name of [...fa.names, ...fb.names]) {
+  for (const name of [...fa.names, ...kindRows(fa, fb), ...fb.names, ...kindRows(fb, fa)]) {
     const key = name.toLowerCase();
     if (seen.has(key)) continue;
     seen.add(key);
-    const original = fa.sides.get(key) ?? { status: 'absent' };
-    const modified = fb.sides.get(key) ?? { status: 'absent' };
+    const original = sideOf(fa, key);
+    const modified = sideOf(fb, key);
     const entry = figureEntry(name);
-    const unit = fa.units.get(key) ?? fb.units.get(key) ?? 'ratio';
+    const ua = fa.units.get(key);
+    const ub = fb.units.get(key);
+    const unit = ua ?? ub ?? 'ratio';
     const better = entry?.better ?? 'none';
-    if (original.status === 'measured' && modified.status === 'measured') {
+    // Values in different units (a DC-fed and a sine-fed version: dropout.headroom in V and as a ratio) are not compared.
+    if (original.status === 'measured' && modified.status === 'measured' && ua === ub) {
       out.push({ name, unit, better, original, modified, absolute: modified.value - original.value, relative: relativeChange(original.value, modified.value, unit), verdict: verdictOf(original.value, modified.value, better) });
     } else {
       out.push({ name, unit, better, original, modified, absolute: undefined, relative: undefined, verdict: 'not-compared' });
