@@ -216,7 +216,12 @@ export function formatComparison(r: CompareReport): string {
   const parts: string[] = [`railcheck compare — ${r.original.title || '(untitled)'}`, `  original ${r.original.file}`, `  modified ${r.modified.file}`, ''];
   if (r.mainsFed.original || r.mainsFed.modified) {
     const which = r.mainsFed.original && r.mainsFed.modified ? 'both stages' : `the ${r.mainsFed.original ? 'original' : 'modified'} stage`;
-    parts.push(`CAUTION (${which}): ${MAINS_CAUTION}`, '');
+    parts.push(`CAUTION (${which}): ${MAINS_CAUTION}`);
+    // Where each stage goes above extra-low voltage, as its run says it (analysis/safety.ts).
+    for (const [side, rep] of [['original', r.original], ['modified', r.modified]] as const) {
+      for (const w of rep.warnings) if (w.code === 'above-elv') parts.push(`  ${side}: ${w.message.startsWith(MAINS_CAUTION) ? w.message.slice(MAINS_CAUTION.length).trim() : w.message}`);
+    }
+    parts.push('');
   }
   for (const section of [overRatingText(r), conditionsText(r.conditions), changesText(r), figuresText(r), limitsText(r), nodesText(r), dissipationText(r), ...warningsText(r).map((w) => [w])]) {
     if (section.length > 0) parts.push(section.join('\n'), '');
