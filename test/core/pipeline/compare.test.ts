@@ -297,6 +297,12 @@ describe('errors name the file', () => {
     const r = compareNetlistFiles('examples/sensor-rail-follower.cir', 'examples/no-such-file.cir');
     expect(r.ok ? undefined : [r.file, r.path]).toEqual(['modified', 'examples/no-such-file.cir']);
   });
+  test('a parse result edited by hand (its cards not a list) is a bad-argument result, not an exception', () => {
+    const good = parse(divider('3k'), 'b.cir');
+    if (!good.ok) throw new Error('does not parse');
+    const r = compareNetlists(parse(divider('3k'), 'a.cir'), { ...good, netlist: { ...good.netlist, cards: 7 as never } });
+    expect(r.ok ? undefined : [r.file, r.errors[0]!.code]).toEqual(['modified', 'bad-argument']);
+  });
   test('an argument that is no parse result', () => {
     const r = compareNetlists({} as never, parse(divider('3k'), 'b.cir'));
     expect(r.ok ? undefined : [r.file, r.errors[0]!.code]).toEqual(['original', 'bad-argument']);

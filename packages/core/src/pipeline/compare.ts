@@ -16,9 +16,9 @@ import { dissipates } from '@railcheck/devices';
 import type { SourceSpec, WaveformSpec } from '@railcheck/devices';
 import { match } from 'ts-pattern';
 import { type Diagnostic } from '../errors.js';
-import { argumentDiagnostic, isRecord } from '../arguments.js';
+import { argumentDiagnostic, foreignFailure, isRecord } from '../arguments.js';
 import { figureEntry, type Better, type FigureUnit } from '../figure-registry.js';
-import { NETLISTS, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
+import { NETLISTS, netlistShapeProblem, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
 import type { Card, LimitOp, Netlist } from '../netlist/ast.js';
 import type { FlatCircuit, FlatElement } from '../elaborate/flat.js';
 import { limitHolds, type LimitResult } from '../measure/figures.js';
@@ -550,7 +550,7 @@ function differingConditions(a: FlatCircuit, b: FlatCircuit, used: Omit<Conditio
 const mainsFed = (r: RunReport): boolean => r.warnings.some((w) => w.code === 'above-elv');
 
 function parseResultProblem(fn: string, name: string, v: unknown): Diagnostic | undefined {
-  if (!isRecord(v) || typeof v['ok'] !== 'boolean' || !Array.isArray(v['warnings']) || (v['ok'] === true ? !isRecord(v['netlist']) : !Array.isArray(v['errors']))) {
+  if (!isRecord(v) || typeof v['ok'] !== 'boolean' || !Array.isArray(v['warnings']) || (v['ok'] === true ? netlistShapeProblem(v['netlist']) !== undefined : !Array.isArray(v['errors']))) {
     return argumentDiagnostic(fn, name, 'a result of parseNetlist or readNetlistFile', v);
   }
   return undefined;
@@ -587,6 +587,16 @@ export function compareNetlists(original: ParseResult, modified: ParseResult): C
   if (wrongA) return bad('original', wrongA);
   const wrongB = parseResultProblem('compareNetlists', 'modified', modified);
   if (wrongB) return bad('modified', wrongB);
+  try {
+    return compareChecked(original, modified);
+  } catch (e) {
+    // A foreign exception here comes from a parse result edited by hand (bad-argument) or is a bug (internal).
+    const made = (!original.ok || NETLISTS.has(original.netlist)) && (!modified.ok || NETLISTS.has(modified.netlist));
+    return bad('modified', foreignFailure('compareNetlists', e, made, 'results of parseNetlist or readNetlistFile').diagnostics[0]!);
+  }
+}
+
+function compareChecked(original: ParseResult, modified: ParseResult): CompareResult {
   const pathOf = (p: ParseResult, side: CompareSide): string => (p.ok ? p.netlist.file : (p.errors.find((e) => e.pos)?.pos?.file ?? side));
   const ranA = runParsed(original);
   if (!ranA.ok) return { ok: false, file: 'original', path: pathOf(original, 'original'), errors: ranA.errors, warnings: ranA.warnings, conditions: undefined };
