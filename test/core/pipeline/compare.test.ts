@@ -166,6 +166,19 @@ describe('a Zener shunt whose series resistor is changed, against the small-sign
 });
 
 describe('two spellings of one circuit show no change', () => {
+  test('10k, 10000 and 10K; 4.7u, 4.7e-6 and 4.7U; {4.7/1e6}: one value each (SPICE suffixes are case-insensitive, netlist.md)', () => {
+    const rc = (r: string, c: string) => lines('rc', 'V1 in 0 5', `R1 in out ${r}`, `C1 out 0 ${c}`, 'R2 out 0 22k', '.op');
+    const spellings = [rc('10k', '4.7u'), rc('10000', '4.7e-6'), rc('10K', '4.7U'), rc('{5k*2}', '{4.7/1e6}')];
+    for (const a of spellings) {
+      for (const b of spellings) {
+        expect(compared(compareNetlists(parse(a, 'a.cir'), parse(b, 'b.cir'))).changes).toEqual({ elements: [], models: [], params: [] });
+      }
+    }
+    // And the comparison does see a change of one part in a million.
+    const r = compared(compareNetlists(parse(rc('10k', '4.7u'), 'a.cir'), parse(rc('10.00001k', '4.7u'), 'b.cir')));
+    expect(r.changes.elements.map((e) => e.element)).toEqual(['R1']);
+  });
+
   const original = readFileSync('examples/sensor-rail-follower.cir', 'utf8');
   // The same stage with its cards in another order, other spacing and case, and other number spellings
   // (680 ↔ 0.68k, 47u ↔ 47e-6, 100u ↔ 100U, 50m ↔ 0.05, 5.6 ↔ 5600m, 1e-14 ↔ 0.01p, 150 ↔ 1.5e2).
