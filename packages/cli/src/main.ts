@@ -18,6 +18,7 @@ import { flagHelp, parseArgs, type FlagSpec } from './args.js';
 import { formatReport, formatWarnings } from './present/text.js';
 import { reportJson } from './present/json.js';
 import { notEvaluatedErrors } from './present/figures.js';
+import { COMPARE_HELP, compareCommand } from './commands/compare.js';
 
 /** Where output goes; tests pass their own. */
 export interface CliIo {
@@ -61,6 +62,8 @@ const USAGE = `railcheck: checks a discrete linear supply stage from its netlist
 usage:
   railcheck run FILE [--json] [--csv OUT.csv]
                                   simulate a netlist and report its operating point, sweeps, waveforms and figures
+  railcheck compare ORIGINAL MODIFIED [--json]
+                                  run two versions of a stage under the same conditions, side by side
   railcheck demo [--json]         run the built-in example stage
   railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
   railcheck --version             print the version (also -V)
@@ -225,11 +228,11 @@ function topOptions(argv: readonly string[], io: CliIo): number {
 /** `railcheck help [COMMAND]`: the help asked for on standard output. */
 function helpCommand(rest: readonly string[], io: CliIo): number {
   const topic = rest[0];
-  if (rest.length > 1 || (topic !== undefined && topic !== 'run' && topic !== 'demo' && topic !== 'help')) {
-    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, demo or help\n\n${USAGE}`);
+  if (rest.length > 1 || (topic !== undefined && topic !== 'run' && topic !== 'demo' && topic !== 'compare' && topic !== 'help')) {
+    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, compare, demo or help\n\n${USAGE}`);
     return EXIT_ERROR;
   }
-  io.out(topic === 'run' ? RUN_HELP : topic === 'demo' ? DEMO_HELP : USAGE);
+  io.out(topic === 'run' ? RUN_HELP : topic === 'demo' ? DEMO_HELP : topic === 'compare' ? COMPARE_HELP : USAGE);
   return EXIT_OK;
 }
 
@@ -242,14 +245,16 @@ export async function main(argv: readonly string[], io: CliIo = defaultIo): Prom
         return runCommand(rest, io, false);
       case 'demo':
         return runCommand(rest, io, true);
+      case 'compare':
+        return compareCommand(rest, io);
       case undefined:
-        io.err(`railcheck: no command given; expected run, demo, help or --version\n\n${USAGE}`);
+        io.err(`railcheck: no command given; expected run, compare, demo, help or --version\n\n${USAGE}`);
         return EXIT_ERROR;
       case 'help':
         return helpCommand(rest, io);
       default:
         if (command.startsWith('-')) return topOptions(argv, io);
-        io.err(`railcheck: unknown command '${command}'; expected run, demo or help\n\n${USAGE}`);
+        io.err(`railcheck: unknown command '${command}'; expected run, compare, demo or help\n\n${USAGE}`);
         return EXIT_ERROR;
     }
   } catch (e) {

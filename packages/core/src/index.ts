@@ -27,13 +27,18 @@ export type {
 
 export { elaborate } from './elaborate/elaborate.js';
 export type { ElaborateResult } from './elaborate/elaborate.js';
-export type { FlatCircuit, FlatElement, FlatNode, FlatAnalysis, FlatSupply, FlatFigure, FlatLimit, FlatSpread } from './elaborate/flat.js';
+export type { FlatCircuit, FlatElement, FlatNode, FlatAnalysis, FlatSupply, FlatFigure, FlatLimit, FlatSpread, FlatParam } from './elaborate/flat.js';
 
 export { compileCircuit } from './engine/compile.js';
 export type { CompiledCircuit, CompileResult } from './engine/compile.js';
 
 export { runNetlist, runNetlistFile, prepare } from './pipeline/run.js';
 export type { RunReport, RunResult } from './pipeline/run.js';
+export { compareNetlists, compareNetlistFiles, SAME_VALUE_RTOL, SAME_FIGURE_RTOL } from './pipeline/compare.js';
+export type {
+  CompareResult, CompareReport, CompareSide, ConditionsUsed, ConditionSource, CircuitChanges, ElementChange, ModelChange, ParamChange,
+  QuantityChange, QuantityValue, FigureComparison, FigureSide, Verdict, LimitComparison, LimitSide, NodeComparison, DissipationComparison, DissipationSide,
+} from './pipeline/compare.js';
 export type { OperatingPoint, DcSweep } from './analysis/dc.js';
 export { sampleTrace, acceptedTimes } from './analysis/tran.js';
 export type { TransientResult } from './analysis/tran.js';

@@ -45,6 +45,7 @@ export { complexLuFactor, complexLuSolve, createComplexLuWorkspace } from './eng
 export type { ComplexLuWorkspace } from './engine/complex-lu.js';
 export { runNetlist, runNetlistFile, prepare, analyse } from './pipeline/run.js';
 export type { RunReport, RunResult } from './pipeline/run.js';
+export { compareNetlists, compareNetlistFiles, SAME_VALUE_RTOL, SAME_FIGURE_RTOL, circuitChanges, inheritConditions, relativeChange, verdictOf } from './pipeline/compare.js';
 export { safetyWarnings, exceedsElv, MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/safety.js';
 export type { VoltageLevel, ReachedLevels } from './analysis/safety.js';
 export { sanityWarnings, operatingPointsJudged, ABSURD_CURRENT, ABSURD_POWER } from './analysis/sanity.js';

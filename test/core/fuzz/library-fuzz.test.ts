@@ -64,7 +64,7 @@ const options: fc.Arbitrary<unknown> = fc.dictionary(fc.constantFrom(...OPTION_N
 
 /** The public functions, by name, and whether each returns a result instead of throwing. */
 const FUNCTIONS = Object.entries(core).filter(([, v]) => typeof v === 'function') as [string, (...a: unknown[]) => unknown][];
-const RETURNS_RESULT = new Set(['parseNetlist', 'readNetlistFile', 'elaborate', 'compileCircuit', 'runNetlist', 'runNetlistFile', 'prepare']);
+const RETURNS_RESULT = new Set(['parseNetlist', 'readNetlistFile', 'elaborate', 'compileCircuit', 'runNetlist', 'runNetlistFile', 'prepare', 'compareNetlists', 'compareNetlistFiles']);
 
 /** What went wrong with one call, or undefined when it returned or threw only RailcheckError (and no internal error). */
 function callProblem(name: string, f: (...a: unknown[]) => unknown, args: readonly unknown[]): string | undefined {

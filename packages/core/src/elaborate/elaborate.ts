@@ -9,7 +9,7 @@ import { kindOfLetter } from '@railcheck/devices';
 import { match, P } from 'ts-pattern';
 import { warningAt, type Diagnostic } from '../errors.js';
 import type { AnalysisCard, Card, DeviceCard, InstanceCard, SupplyCard } from '../netlist/ast.js';
-import type { FlatCircuit, FlatElement, FlatNode } from './flat.js';
+import type { FlatCircuit, FlatElement, FlatNode, FlatParam } from './flat.js';
 import { FLAT_CIRCUITS, GROUND_KEY } from './flat.js';
 import { createEvaluator, type Evaluator } from './evaluate.js';
 import { flattenElement } from './elements.js';
@@ -227,6 +227,20 @@ export function elaborate(netlist: Netlist): ElaborateResult {
   }
 }
 
+/** The top-level `.param` values as evaluated into the top scope, each with its first spelling and card. */
+function topParams(netlist: Netlist, top: Scope): FlatParam[] {
+  const out = new Map<string, FlatParam>();
+  for (const card of netlist.cards) {
+    if (card.kind !== 'param') continue;
+    for (const a of card.assignments) {
+      const key = a.name.toLowerCase();
+      const value = top.params.get(key);
+      if (!out.has(key) && value !== undefined) out.set(key, { key, name: a.name, value, origin: { pos: card.pos, lineText: card.lineText } });
+    }
+  }
+  return [...out.values()];
+}
+
 function elaborateChecked(netlist: Netlist): ElaborateResult {
   const w: Walk = { ev: createEvaluator(), elements: [], nodes: new Map(), analyses: [], directives: [], names: new Map(), full: false, reported: new Set() };
   const top = topScope();
@@ -243,6 +257,7 @@ function elaborateChecked(netlist: Netlist): ElaborateResult {
     nodes: [...w.nodes.values()],
     elements,
     ...resolved,
+    params: topParams(netlist, top),
   };
   const connections = checkConnections(circuit);
   for (const d of connections.warnings) warnings.push(d); // not push(...): a long list would overflow the call stack

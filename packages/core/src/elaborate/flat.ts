@@ -89,6 +89,18 @@ export interface FlatSpread {
   readonly distribution: 'uniform' | 'gauss';
 }
 
+/** A top-level `.param` value after evaluation (the last assignment of a name wins, as in elaboration). */
+export interface FlatParam {
+  /** Lower-case name. */
+  readonly key: string;
+  /** The name as first written. */
+  readonly name: string;
+  /** The evaluated value (a plain number; parameters carry no unit). */
+  readonly value: number;
+  /** The `.param` card that first assigns it. */
+  readonly origin: CardOrigin;
+}
+
 /** The whole elaborated circuit, ready to compile. */
 export interface FlatCircuit {
   readonly title: string;
@@ -103,6 +115,8 @@ export interface FlatCircuit {
   readonly figures: readonly FlatFigure[];
   readonly limits: readonly FlatLimit[];
   readonly spreads: readonly FlatSpread[];
+  /** The top-level `.param` values, in order of first assignment (subcircuit parameters are not listed: they live in their instances' element values). */
+  readonly params: readonly FlatParam[];
 }
 
 /** Flat circuits elaborate made: compileCircuit tells a failure on one of them (a bug) from one on a circuit edited by hand. */

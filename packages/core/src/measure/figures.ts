@@ -97,7 +97,8 @@ function unitOf(name: string, bench: BenchKind): FigureUnit {
   return unit;
 }
 
-function compare(actual: number, op: LimitOp, value: number): boolean {
+/** True when `actual` satisfies the limit `op value` (both in the figure's unit). */
+export function limitHolds(actual: number, op: LimitOp, value: number): boolean {
   return match(op)
     .with('<', () => actual < value)
     .with('<=', () => actual <= value)
@@ -145,7 +146,7 @@ export function checkLimits(limits: readonly FlatLimit[], values: Readonly<Recor
       throw new RailcheckError([errorAt('limit-without-figure', `.limit ${l.figure}: ${why}`, l.origin.pos, l.origin.lineText, `one of: ${[...lower.keys()].join(', ') || '(no figures measured)'}`)]);
     }
     const common = { figure: l.figure, op: l.op, value: l.value, origin: l.origin, actual };
-    return compare(actual, l.op, l.value) ? { ...common, status: 'pass', pass: true } : { ...common, status: 'fail', pass: false };
+    return limitHolds(actual, l.op, l.value) ? { ...common, status: 'pass', pass: true } : { ...common, status: 'fail', pass: false };
   });
 }
 

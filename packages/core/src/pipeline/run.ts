@@ -165,7 +165,8 @@ export function runNetlistFile(path: string, options: Omit<ParseOptions, 'file'>
   return runParsed(readNetlistFile(path, options));
 }
 
-function runParsed(parsed: ParseResult): RunResult {
+/** Runs a parse result (the whole pipeline after reading); never throws for anything a netlist can contain. */
+export function runParsed(parsed: ParseResult): RunResult {
   const prepared = prepare(parsed);
   if (!prepared.ok) return prepared;
   const c = prepared.compiled;
