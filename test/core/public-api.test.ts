@@ -16,6 +16,7 @@ const PUBLIC_VALUES = [
   'parseNetlist', 'parseNetlistOrThrow', 'readNetlistFile', 'printNetlist',
   'elaborate', 'compileCircuit',
   'runNetlist', 'runNetlistFile', 'prepare',
+  'checkNetlists', 'mergeCheckResults', 'DEFAULT_TOLERANCES', 'readBaseline',
   'sampleTrace', 'acceptedTimes', 'phasorDb', 'phasorDeg',
   'MAINS_CAUTION', 'ELV_AC_RMS', 'ELV_DC', 'formatSI',
   'FIGURES', 'FIGURE_KIND_INFO', 'FIGURE_KINDS', 'BENCH_KINDS', 'figureEntry', 'figureKindOf', 'figureUnit',
