@@ -306,7 +306,11 @@ export async function checkNetlists(paths: readonly string[], options: CheckOpti
     const f = all[job.k]!;
     cases[j] = netlistCheck(job.k, f.shown, f.key, run, compared);
     options.onProgress?.(++finished, mine.length);
-    while (emitted < mine.length && cases[emitted] !== undefined) options.onNetlist?.(cases[emitted++]!, mine.length);
+    while (emitted < mine.length && cases[emitted] !== undefined) {
+      const c = cases[emitted]!;
+      emitted += 1;
+      options.onNetlist?.(c, mine.length);
+    }
   };
   const allow = options.allowOutsideIncludes === true;
   options.onStart?.(mine.length);
