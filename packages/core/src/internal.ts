@@ -45,6 +45,12 @@ export { complexLuFactor, complexLuSolve, createComplexLuWorkspace } from './eng
 export type { ComplexLuWorkspace } from './engine/complex-lu.js';
 export { runNetlist, runNetlistFile, prepare, analyse } from './pipeline/run.js';
 export type { RunReport, RunResult } from './pipeline/run.js';
+export { checkNetlists, mergeCheckResults, expandCheckPaths, writeCheckBaseline, CHECK_FORMAT, CHECK_VERSION } from './pipeline/check.js';
+export type { CheckResult, CheckOptions, CheckOutcome, NetlistCheck, CheckTest } from './pipeline/check.js';
+export { runForCheck, netlistRunOf } from './pipeline/check-run.js';
+export type { NetlistRun, CheckLimit } from './pipeline/check-run.js';
+export { DEFAULT_TOLERANCES, readBaseline, parseBaseline, baselineText, writeFileAtomic, compareValue, BASELINE_FORMAT, BASELINE_VERSION } from './pipeline/check-baseline.js';
+export type { Baseline, BaselineEntry, BaselineRead, Tolerance } from './pipeline/check-baseline.js';
 export { safetyWarnings, exceedsElv, MAINS_CAUTION, ELV_AC_RMS, ELV_DC } from './analysis/safety.js';
 export type { VoltageLevel, ReachedLevels } from './analysis/safety.js';
 export { sanityWarnings, operatingPointsJudged, ABSURD_CURRENT, ABSURD_POWER } from './analysis/sanity.js';

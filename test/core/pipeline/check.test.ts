@@ -188,13 +188,13 @@ describe('shares, threads and merge', () => {
     const shares = await Promise.all([1, 2, 3].map((index) => check([dir], { baseline, shard: { index, count: 3 } })));
     const two = await check([dir], { baseline, shard: { index: 1, count: 2 } });
     const m1 = mergeCheckResults([shares[0], shares[1]]);
-    expect(!m1.ok && m1.message).toMatch(/shard 3\/3 missing/);
+    expect(!m1.ok && m1.errors[0]!.message).toMatch(/shard 3\/3 missing/);
     const m2 = mergeCheckResults([shares[0], shares[1], shares[1]]);
-    expect(!m2.ok && m2.message).toMatch(/shard 2\/3 is given twice/);
+    expect(!m2.ok && m2.errors[0]!.message).toMatch(/shard 2\/3 is given twice/);
     const m3 = mergeCheckResults([shares[0], shares[1], two]);
-    expect(!m3.ok && m3.message).toMatch(/not shares of one run/);
+    expect(!m3.ok && m3.errors[0]!.message).toMatch(/not shares of one run/);
     const m4 = mergeCheckResults([{ format: 'something-else' }]);
-    expect(!m4.ok && m4.message).toMatch(/not a railcheck-check/);
+    expect(!m4.ok && m4.errors[0]!.message).toMatch(/not a railcheck-check/);
   });
 
   test('--jobs 1 and --jobs 4 give the same result; the threaded run ran on worker threads', async () => {
@@ -232,6 +232,13 @@ describe('the caution and the usage errors', () => {
     const outcome = await checkNetlists([...paths], options);
     expect(outcome.ok).toBe(false);
     if (!outcome.ok) expect(outcome.errors[0]!.code).toBe(code);
+  });
+
+  test.each([
+    [null, {}], ['rail', {}], [[1], {}], [[''], {}], [['.'], null], [['.'], { jobs: '2' }], [['.'], { shard: '1/2' }], [['.'], { onNetlist: 1 }], [['.'], { baseline: 7 }],
+  ] as const)('checkNetlists(%j, %j) is a bad-argument result, never a throw', async (paths, options) => {
+    const outcome = await checkNetlists(paths as unknown as string[], options as unknown as Parameters<typeof checkNetlists>[1]);
+    expect(!outcome.ok && outcome.errors[0]!.code).toBe('bad-argument');
   });
 
   test('a missing or malformed baseline is refused; an empty folder has no netlists', async () => {

@@ -59,7 +59,7 @@ export function mergeCommand(argv: readonly string[], io: CliIo): number {
   }
   const merged = mergeCheckResults(shards);
   if (!merged.ok) {
-    io.err(`railcheck merge: ${merged.message}`);
+    for (const e of merged.errors) io.err(`railcheck merge: ${e.message}`);
     return EXIT_ERROR;
   }
   const json = flags.has('json');

@@ -11,6 +11,7 @@ import { closeSync, fsyncSync, openSync, readFileSync, renameSync, writeSync } f
 import { basename, dirname, join } from 'node:path';
 import { match } from 'ts-pattern';
 import { errorAt, type Diagnostic } from '../errors.js';
+import { argumentDiagnostic } from '../arguments.js';
 import type { FigureUnit } from '../figure-registry.js';
 import { formatSI } from '../units.js';
 import { sortedRecord } from './check-run.js';
@@ -73,8 +74,8 @@ const isTolerance = (v: unknown): v is Tolerance =>
   isRecord(v) && Object.keys(v).every((k) => k === 'rel' || k === 'abs') && typeof v['rel'] === 'number' && typeof v['abs'] === 'number' && v['rel'] >= 0 && v['abs'] >= 0 && Number.isFinite(v['rel']) && Number.isFinite(v['abs']);
 
 /** Reads a baseline from its text; an error names the file and what was expected. */
-export function parseBaseline(text: string, file: string): { ok: true; baseline: Baseline } | { ok: false; error: Diagnostic } {
-  const bad = (message: string, expected: string): { ok: false; error: Diagnostic } => ({ ok: false, error: errorAt('baseline-format', `${file}: ${message}`, { file, line: 1, column: 1 }, undefined, expected) });
+export function parseBaseline(text: string, file: string): BaselineRead {
+  const bad = (message: string, expected: string): BaselineRead => ({ ok: false, errors: [errorAt('baseline-format', `${file}: ${message}`, { file, line: 1, column: 1 }, undefined, expected)] });
   let data: unknown;
   try {
     data = JSON.parse(text);
@@ -93,14 +94,28 @@ export function parseBaseline(text: string, file: string): { ok: true; baseline:
   return { ok: true, baseline: data as unknown as Baseline };
 }
 
-/** Reads a baseline file; a missing or malformed file is an error naming it. */
-export function readBaseline(file: string): { ok: true; baseline: Baseline } | { ok: false; error: Diagnostic } {
+/** A baseline read, or the error (one) that says why not: code `baseline-missing`, `baseline-unreadable`, `baseline-format` or `bad-argument`. */
+export type BaselineRead = { readonly ok: true; readonly baseline: Baseline } | { readonly ok: false; readonly errors: readonly Diagnostic[] };
+
+/**
+ * Reads a baseline file (format `railcheck-baseline`, version 1); a
+ * missing, unreadable or malformed file is an `ok: false` result whose
+ * error names it and says what was expected.
+ *
+ * @example
+ * ```ts
+ * const read = readBaseline('suite/baseline.json');
+ * if (read.ok) console.log(Object.keys(read.baseline.netlists)); // paths relative to suite/
+ * ```
+ */
+export function readBaseline(file: string): BaselineRead {
+  if (typeof file !== 'string' || file === '') return { ok: false, errors: [argumentDiagnostic('readBaseline', 'file', 'a file path', file)] };
   let text: string;
   try {
     text = readFileSync(file, 'utf8');
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    return { ok: false, error: errorAt(code === 'ENOENT' ? 'baseline-missing' : 'baseline-unreadable', `${file}: ${code === 'ENOENT' ? 'no such baseline file' : `cannot read the baseline (${code ?? String(e)})`}`, undefined, undefined, 'a baseline written by railcheck check --baseline FILE --update-baseline') };
+    return { ok: false, errors: [errorAt(code === 'ENOENT' ? 'baseline-missing' : 'baseline-unreadable', `${file}: ${code === 'ENOENT' ? 'no such baseline file' : `cannot read the baseline (${code ?? String(e)})`}`, undefined, undefined, 'a baseline written by railcheck check --baseline FILE --update-baseline')] };
   }
   return parseBaseline(text, file);
 }

@@ -14,7 +14,8 @@ import { availableParallelism } from 'node:os';
 import { dirname, join, relative, resolve, sep } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import { errorAt, type Diagnostic } from '../errors.js';
+import { errorAt, RailcheckError, type Diagnostic } from '../errors.js';
+import { argumentDiagnostic, isRecord } from '../arguments.js';
 import { figureUnit, type FigureUnit } from '../figure-registry.js';
 import { MAINS_CAUTION } from '../analysis/safety.js';
 import { runForCheck, type NetlistRun } from './check-run.js';
@@ -276,8 +277,40 @@ async function runOnWorkers(jobs: readonly Job[], lanes: number, script: string 
  * ```
  */
 export async function checkNetlists(paths: readonly string[], options: CheckOptions = {}): Promise<CheckOutcome> {
+  try {
+    const wrong = optionsProblem(options);
+    if (wrong) return { ok: false, errors: [wrong] };
+    return await checkChecked(paths, options);
+  } catch (e) {
+    if (e instanceof RailcheckError) return { ok: false, errors: e.diagnostics };
+    return { ok: false, errors: [errorAt('internal', `internal error: ${e instanceof Error ? e.message : String(e)}`)] };
+  }
+}
+
+/** The first option of the wrong type, as a `bad-argument` diagnostic. */
+function optionsProblem(options: unknown): Diagnostic | undefined {
+  if (!isRecord(options)) return argumentDiagnostic('checkNetlists', 'options', 'an options object', options);
+  const kinds: Record<string, (v: unknown) => boolean> = {
+    baseline: (v) => typeof v === 'string' && v !== '',
+    updateBaseline: (v) => typeof v === 'boolean',
+    jobs: (v) => typeof v === 'number',
+    shard: (v) => isRecord(v) && typeof v['index'] === 'number' && typeof v['count'] === 'number',
+    allowOutsideIncludes: (v) => typeof v === 'boolean',
+    workerScript: (v) => (typeof v === 'string' && v !== '') || v instanceof URL,
+    onNetlist: (v) => typeof v === 'function',
+    onStart: (v) => typeof v === 'function',
+    onProgress: (v) => typeof v === 'function',
+  };
+  for (const [k, ok] of Object.entries(kinds)) {
+    const v = options[k];
+    if (v !== undefined && !ok(v)) return argumentDiagnostic('checkNetlists', `options.${k}`, `a value of the documented type for ${k}`, v);
+  }
+  return undefined;
+}
+
+async function checkChecked(paths: readonly string[], options: CheckOptions): Promise<CheckOutcome> {
   const usage = (code: string, message: string, expected: string): CheckOutcome => ({ ok: false, errors: [errorAt(code, message, undefined, undefined, expected)] });
-  if (!Array.isArray(paths) || !paths.every((p) => typeof p === 'string')) return usage('bad-argument', 'checkNetlists: paths must be an array of strings', 'file and folder paths');
+  if (!Array.isArray(paths) || !paths.every((p) => typeof p === 'string' && p !== '')) return { ok: false, errors: [argumentDiagnostic('checkNetlists', 'paths', 'an array of file and folder paths', paths)] };
   const shard = options.shard ?? { index: 1, count: 1 };
   if (!Number.isInteger(shard.count) || !Number.isInteger(shard.index) || shard.count < 1 || shard.index < 1 || shard.index > shard.count) return usage('check-bad-shard', `shard ${shard.index}/${shard.count} is not one of the shares`, 'K/N with whole numbers 1 ≤ K ≤ N');
   const jobs = options.jobs ?? availableParallelism();
@@ -291,7 +324,7 @@ export async function checkNetlists(paths: readonly string[], options: CheckOpti
   if (options.baseline !== undefined) {
     const read = readBaseline(options.baseline);
     if (read.ok) baseline = read.baseline;
-    else if (!(updating && read.error.code === 'baseline-missing')) return { ok: false, errors: [read.error] };
+    else if (!(updating && read.errors[0]?.code === 'baseline-missing')) return { ok: false, errors: read.errors };
   }
   const baseDir = options.baseline !== undefined ? dirname(resolve(options.baseline)) : undefined;
   const all = expanded.files.map((f) => ({ ...f, key: baseDir !== undefined ? slashed(relative(baseDir, resolve(f.file))) : f.shown }));
@@ -347,7 +380,9 @@ export function writeCheckBaseline(file: string, cases: readonly NetlistCheck[],
   writeFileAtomic(file, baselineText({ format: BASELINE_FORMAT, version: BASELINE_VERSION, netlists }));
 }
 
-const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+/** Whether a value has the shape of a netlist's outcome, as far as a merge reads it. */
+const isNetlistCheck = (v: unknown): boolean =>
+  isRecord(v) && Number.isInteger(v['index']) && typeof v['path'] === 'string' && typeof v['key'] === 'string' && typeof v['passed'] === 'boolean' && Array.isArray(v['tests']) && isRecord(v['run']) && typeof v['run']['aboveElv'] === 'boolean';
 
 /**
  * Combines the JSON results of shards 1..N of one run (each exactly once,
@@ -365,12 +400,16 @@ const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'obj
  * if (merged.ok) console.log(merged.result.summary);
  * ```
  */
-export function mergeCheckResults(shards: readonly unknown[]): { ok: true; result: CheckResult } | { ok: false; message: string } {
-  const bad = (message: string): { ok: false; message: string } => ({ ok: false, message });
+export function mergeCheckResults(shards: readonly unknown[]): CheckOutcome {
+  const bad = (message: string): CheckOutcome => ({ ok: false, errors: [errorAt('merge-shards', message, undefined, undefined, 'the --json results of railcheck check --shard K/N, for every K from 1 to N once')] });
   if (!Array.isArray(shards) || shards.length === 0) return bad('no shard results to merge');
   const parts: CheckResult[] = [];
   for (const [i, s] of shards.entries()) {
-    if (!isRecord(s) || s['format'] !== CHECK_FORMAT || s['version'] !== CHECK_VERSION || !Array.isArray(s['netlists']) || !Array.isArray(s['cases']) || !isRecord(s['shard'])) {
+    const shard = isRecord(s) ? s['shard'] : undefined;
+    const wellFormed = isRecord(s) && s['format'] === CHECK_FORMAT && s['version'] === CHECK_VERSION && Array.isArray(s['netlists']) && s['netlists'].every((n) => typeof n === 'string')
+      && Array.isArray(s['cases']) && s['cases'].every(isNetlistCheck) && Array.isArray(s['gone']) && isRecord(shard) && Number.isInteger(shard['index']) && Number.isInteger(shard['count'])
+      && (shard['count'] as number) >= 1 && (shard['index'] as number) >= 1 && (shard['index'] as number) <= (shard['count'] as number) && (shard['count'] as number) <= 1_000_000;
+    if (!wellFormed) {
       return bad(`shard result ${i + 1} is not a ${CHECK_FORMAT} version ${CHECK_VERSION} result (railcheck check --json)`);
     }
     parts.push(s as unknown as CheckResult);
