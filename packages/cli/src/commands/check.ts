@@ -94,7 +94,11 @@ async function progressBar(): Promise<{ start: (total: number) => void; tick: (d
       const m = multi;
       return m ? (text: string) => m.log(`${text}\n`) : undefined;
     },
-    stop: () => multi?.stop(),
+    stop: () => {
+      // The bar writes logged lines at its next redraw: draw once more so the last ones are not lost, then clear it.
+      multi?.update();
+      multi?.stop();
+    },
   };
 }
 
