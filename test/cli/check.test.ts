@@ -114,6 +114,26 @@ describe('railcheck check', () => {
   });
 });
 
+describe('the examples end to end', () => {
+  test('a sine-fed stage is checked on its cycle means, as run --json reports op; the caution once, naming the stage above extra-low voltage', async () => {
+    const examples = join(root, 'examples');
+    const check = await cli(['check', examples, '--json', '--jobs', '1']);
+    expect(check.status).toBe(0);
+    const result = JSON.parse(check.out) as { cases: { path: string; run: { nodes: Record<string, number>; aboveElv: boolean } }[] };
+    const follower = result.cases.find((c) => c.path.endsWith('railway-transformer-follower.cir'))!;
+    const run = JSON.parse((await cli(['run', join(examples, 'railway-transformer-follower.cir'), '--json'])).out) as { op: { basis: string; nodes: Record<string, number> } };
+    // Consistency check between two of our own presenters (no outside reference): the same cycle means.
+    expect(run.op.basis).toBe('cycle-average');
+    expect(follower.run.nodes).toEqual(run.op.nodes);
+    const hot = result.cases.filter((c) => c.run.aboveElv).map((c) => c.path.replace(/^.*\//, ''));
+    expect(hot.length).toBeGreaterThan(0);
+    const cautions = check.err.split('\n').filter((l) => l.startsWith('caution'));
+    expect(cautions).toHaveLength(1);
+    for (const name of hot) expect(cautions[0]).toContain(name);
+    expect(cautions[0]).toMatch(/can kill[\s\S]*local electrical codes/);
+  });
+});
+
 describe('railcheck merge', () => {
   test('the merge of 3 shards is what one run reports: the text, the JSON and the JUnit file byte for byte, the status', async () => {
     const { dir, baseline } = await planted();

@@ -36,7 +36,7 @@ export function summaryText(r: CheckResult): string {
     const written = r.cases.filter((c) => c.run.ok).length;
     lines.push(`baseline written: ${r.baseline.file} (${plural(written, 'netlist')} measured${written < r.cases.length ? `; ${plural(r.cases.length - written, 'netlist')} that did not run: left as the old baseline had ${r.cases.length - written === 1 ? 'it' : 'them'}` : ''})`);
   }
-  if (r.caution) lines.push(`caution: ${r.caution}`);
+  if (r.caution) lines.push(`caution (${r.cases.filter((c) => c.run.aboveElv).map((c) => c.path).join(', ')}): ${r.caution}`);
   if (r.shard.count > 1) lines.push(`shard ${r.shard.index}/${r.shard.count} of ${plural(r.netlists.length, 'netlist')}`);
   lines.push(`${plural(r.summary.netlists, 'netlist')}, ${r.summary.passed} passed, ${r.summary.failed} failed`);
   return lines.join('\n');
