@@ -211,6 +211,24 @@ describe('shares, threads and merge', () => {
   });
 });
 
+describe('a limit not evaluated', () => {
+  test('is a failed test with the reason (its figure was not measured); the netlist fails, the run goes on', async () => {
+    const dir = freshDir('check-ne');
+    // An ideal current source sets the output (Ohm's law: 1 mA into 1 kΩ is 1 V) whatever the input, so the output never
+    // falls and there is no dropout to measure (as in test/core/measure/not-measured.test.ts).
+    writeFiles(dir, {
+      'a.cir': 'output set by a current source\nV1 in 0 12\nI1 in out 1m\nR4 out 0 1k\n.supply in=V1 out=out\n.figure line\n.figure dropout\n.limit line.delta <= 1m\n.limit dropout.vin < 5\n.end\n',
+      'b.cir': 'Plain\nV1 in 0 10\nR1 in mid 2k\nR2 mid 0 3k\n.op\n.end\n',
+    });
+    const r = await check([dir]);
+    const [a, b] = r.cases;
+    expect(a!.passed).toBe(false);
+    expect(a!.tests.map((t) => [t.name, t.status])).toEqual([['run', 'pass'], ['limit line.delta <= 0.001', 'pass'], ['limit dropout.vin < 5', 'fail']]);
+    expect(a!.tests[2]!.message).toMatch(/^not evaluated: the figure was not measured: .*a\.cir:5:1\)$/);
+    expect(b!.passed).toBe(true);
+  });
+});
+
 describe('the caution and the usage errors', () => {
   test('stages above extra-low voltage earn the caution once, and only then', async () => {
     const dir = freshDir('check-hot');
