@@ -17,6 +17,7 @@ const PUBLIC_VALUES = [
   'elaborate', 'compileCircuit',
   'runNetlist', 'runNetlistFile', 'prepare',
   'compareNetlists', 'compareNetlistFiles', 'SAME_VALUE_RTOL', 'SAME_FIGURE_RTOL',
+  'checkNetlists', 'mergeCheckResults', 'DEFAULT_TOLERANCES', 'readBaseline',
   'sampleTrace', 'acceptedTimes', 'phasorDb', 'phasorDeg',
   'MAINS_CAUTION', 'ELV_AC_RMS', 'ELV_DC', 'formatSI',
   'FIGURES', 'FIGURE_KIND_INFO', 'FIGURE_KINDS', 'BENCH_KINDS', 'figureEntry', 'figureKindOf', 'figureUnit',

@@ -19,6 +19,8 @@ import { formatReport, formatWarnings } from './present/text.js';
 import { reportJson } from './present/json.js';
 import { notEvaluatedErrors } from './present/figures.js';
 import { COMPARE_HELP, compareCommand } from './commands/compare.js';
+import { CHECK_HELP, checkCommand } from './commands/check.js';
+import { MERGE_HELP, mergeCommand } from './commands/merge.js';
 
 /** Where output goes; tests pass their own. */
 export interface CliIo {
@@ -65,13 +67,18 @@ usage:
   railcheck compare ORIGINAL MODIFIED [--json]
                                   run two versions of a stage under the same conditions, side by side
   railcheck demo [--json]         run the built-in example stage
+  railcheck check PATH... [--baseline FILE] [--update-baseline] [--junit FILE] [--jobs N] [--shard K/N]
+                                  regression run of saved netlists (files or folders of *.cir)
+  railcheck merge SHARD.json... [--junit FILE]
+                                  combine the --json results of check's shards into one report
   railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
   railcheck --version             print the version (also -V)
 
 Paths are read from the folder you are in.
 
-exit status: 0 all limits pass, 1 a limit failed, 2 the netlist has an error, an analysis failed
+exit status of run, compare and demo: 0 all limits pass, 1 a limit failed, 2 a netlist has an error, an analysis failed
 or a limit could not be evaluated (its figure was not measured).
+check and merge: 0 every netlist passed, 1 any failed, 2 a usage error.
 The netlist language is described in docs/netlist.md.`;
 
 const RUN_HELP = `usage: railcheck run FILE [options]
@@ -210,7 +217,7 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
 function topOptions(argv: readonly string[], io: CliIo): number {
   const parsed = parseArgs(argv, TOP_FLAGS);
   if (!parsed.ok) {
-    io.err(`railcheck: ${parsed.message}; options of run and demo go after the command\n\n${USAGE}`);
+    io.err(`railcheck: ${parsed.message}; a command's options go after the command\n\n${USAGE}`);
     return EXIT_ERROR;
   }
   const { positionals, flags } = parsed.args;
@@ -228,11 +235,12 @@ function topOptions(argv: readonly string[], io: CliIo): number {
 /** `railcheck help [COMMAND]`: the help asked for on standard output. */
 function helpCommand(rest: readonly string[], io: CliIo): number {
   const topic = rest[0];
-  if (rest.length > 1 || (topic !== undefined && topic !== 'run' && topic !== 'demo' && topic !== 'compare' && topic !== 'help')) {
-    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, compare, demo or help\n\n${USAGE}`);
+  const helps: Record<string, string> = { run: RUN_HELP, compare: COMPARE_HELP, demo: DEMO_HELP, check: CHECK_HELP, merge: MERGE_HELP, help: USAGE };
+  if (rest.length > 1 || (topic !== undefined && !Object.hasOwn(helps, topic))) {
+    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, compare, check, merge, demo or help\n\n${USAGE}`);
     return EXIT_ERROR;
   }
-  io.out(topic === 'run' ? RUN_HELP : topic === 'demo' ? DEMO_HELP : topic === 'compare' ? COMPARE_HELP : USAGE);
+  io.out(topic === undefined ? USAGE : helps[topic]!);
   return EXIT_OK;
 }
 
@@ -247,14 +255,18 @@ export async function main(argv: readonly string[], io: CliIo = defaultIo): Prom
         return runCommand(rest, io, true);
       case 'compare':
         return compareCommand(rest, io);
+      case 'check':
+        return await checkCommand(rest, io);
+      case 'merge':
+        return mergeCommand(rest, io);
       case undefined:
-        io.err(`railcheck: no command given; expected run, compare, demo, help or --version\n\n${USAGE}`);
+        io.err(`railcheck: no command given; expected run, compare, check, merge, demo, help or --version\n\n${USAGE}`);
         return EXIT_ERROR;
       case 'help':
         return helpCommand(rest, io);
       default:
         if (command.startsWith('-')) return topOptions(argv, io);
-        io.err(`railcheck: unknown command '${command}'; expected run, compare, demo or help\n\n${USAGE}`);
+        io.err(`railcheck: unknown command '${command}'; expected run, compare, check, merge, demo or help\n\n${USAGE}`);
         return EXIT_ERROR;
     }
   } catch (e) {

@@ -39,6 +39,11 @@ export type {
   CompareResult, CompareReport, CompareSide, ConditionsUsed, ConditionSource, CircuitChanges, ElementChange, ModelChange, ParamChange,
   QuantityChange, QuantityValue, FigureComparison, FigureSide, Verdict, LimitComparison, LimitSide, NodeComparison, DissipationComparison, DissipationSide,
 } from './pipeline/compare.js';
+export { checkNetlists, mergeCheckResults } from './pipeline/check.js';
+export type { CheckResult, CheckOptions, CheckOutcome, NetlistCheck, CheckTest } from './pipeline/check.js';
+export type { NetlistRun, CheckLimit } from './pipeline/check-run.js';
+export { DEFAULT_TOLERANCES, readBaseline } from './pipeline/check-baseline.js';
+export type { Baseline, BaselineEntry, BaselineRead, Tolerance } from './pipeline/check-baseline.js';
 export type { OperatingPoint, DcSweep } from './analysis/dc.js';
 export { sampleTrace, acceptedTimes } from './analysis/tran.js';
 export type { TransientResult } from './analysis/tran.js';
