@@ -8,7 +8,7 @@
  * unit the figure registry gives them, temperatures in °C).
  */
 import type { Diagnostic } from '../errors.js';
-import type { Better, FigureUnit } from '../figure-registry.js';
+import type { BenchKind, Better, FigureUnit } from '../figure-registry.js';
 import type { LimitOp } from '../netlist/ast.js';
 import type { ParseOptions } from '../netlist/index.js';
 
@@ -245,6 +245,8 @@ export interface SpreadResult {
   readonly caution: string | null;
   /** Runs per second of this result's runs on this machine (not part of the reproducible data: a merge sums nothing and sets null). */
   readonly runsPerSecond: number | null;
+  /** The kind of bench the figures were measured on (units follow it); null when the nominal stage has no figures. */
+  readonly bench: BenchKind | null;
 }
 
 /** What a spread returns: the result, or the errors that stopped it before any run (a netlist error, bad options). */
