@@ -189,11 +189,36 @@ describe('railcheck spread on a divider', () => {
     const again = await cli(words.slice(1));
     expect(again.status).toBe(1);
     // The same figure value in the same units and digits as the spread's worst-unit line.
-    const printed = /highest line\.slope (\S+ \S+)/.exec(text.out)![1]!;
+    // The limit's worst run is the figure's highest (lower is better, one limit from above), named once on the limit's line.
+    expect(j.at[0]!.limits[0]!.worst!.run).toBe(worst.run);
+    const printed = /line\.slope <= 0\.26: (\S+ \S+), /.exec(text.out)![1]!;
     expect(again.out).toMatch(new RegExp(`line\\.slope\\s+${printed.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}`));
     const againJson = JSON.parse((await cli([...words.slice(1), '--json'])).out) as { at: { values: Record<string, number> }[]; sample: { name: string; value: number }[] };
     expect(againJson.at[0]!.values['line.slope']).toBe(worst.value);
     expect(againJson.sample).toEqual(worst.sample);
+  });
+
+  test('a run that does not run counts against the yield and is listed with its sample; run --sample repeats the failure (exit 2)', async () => {
+    // R1 spread 99 % as 3σ: a factor 1 + 0.33·z is ≤ 0 for z ≤ −3.03, about 1.2 in 1000 runs (normal tail,
+    // Abramowitz & Stegun, Handbook of Mathematical Functions, table 26.1), so 2000 runs hold a few such runs.
+    const file = netlistFile(divider('line.slope <= 1').replace('.spread R1 5%\n.spread R2 5%\n', '.spread R1 99% gauss\n'));
+    const j = json((await cli(['spread', file, '--runs', '2000', '--json', '--jobs', '1'])).out);
+    const text = await cli(['spread', file, '--runs', '2000', '--jobs', '1']);
+    expect(text.status).toBe(1);
+    const at = j.at[0]! as SpreadJson['at'][number] & { failed: { run: number; reason: string; sample: { name: string; value: number }[] }[] };
+    expect(at.failed.length).toBeGreaterThan(0);
+    const limit = at.limits[0]!;
+    expect(limit.passes + limit.fails + limit.notEvaluated).toBe(2000);
+    expect(limit.notEvaluated).toBeGreaterThanOrEqual(at.failed.length);
+    for (const f of at.failed) {
+      // Each failed run is a negative resistance: nominal 3 kΩ times a factor ≤ 0.
+      expect(f.sample[0]!.value).toBeLessThanOrEqual(0);
+      expect(text.out).toContain(`run ${f.run}: did not run: `);
+      expect(text.out).toContain(`--sample ${f.run} --seed 1 --temp 27`);
+    }
+    const again = await cli(['run', file, '--sample', String(at.failed[0]!.run), '--seed', '1']);
+    expect(again.status).toBe(2);
+    expect(again.out).toContain('did not run: ');
   });
 
   test('--seed: the same seed gives the same report, another seed another one', async () => {

@@ -6,7 +6,7 @@
  * in it depends on the machine (no times, no rates, no thread count).
  */
 import {
-  figureEntry, formatSI, histogram,
+  figureEntry, formatSI,
   type FigureUnit, type SampledValue, type SpreadFigure, type SpreadLimit, type SpreadResult, type SpreadRun, type SpreadRunRef, type SpreadTemperature, type SpreadVariable,
 } from '@railcheck/core';
 import { BJT_PARAMS, DEVICES, DIODE_PARAMS, kindOfLetter } from '@railcheck/devices';
@@ -48,6 +48,28 @@ export function percentText(p: number): string {
     if (Number(t) !== 0 && Number(t) !== 100) return `${t} %`;
   }
   return `${p * 100} %`;
+}
+
+/**
+ * Equal-width bins from the least value to the greatest, Sturges' count
+ * ⌈log2 n⌉ + 1 (H. A. Sturges, J. Am. Stat. Assoc. 21, 1926); bin i holds
+ * edges[i] ≤ v < edges[i+1], the last also v = max; one bin when all values
+ * are equal. (Stand-in until stats.ts's histogram is in core's public barrel.)
+ */
+export function histogram(values: readonly number[]): { edges: number[]; counts: number[] } {
+  const lo = values.reduce((a, b) => Math.min(a, b), Infinity);
+  const hi = values.reduce((a, b) => Math.max(a, b), -Infinity);
+  if (lo === hi) return { edges: [lo, hi], counts: [values.length] };
+  const k = Math.ceil(Math.log2(values.length)) + 1;
+  const edges = Array.from({ length: k + 1 }, (_, i) => (i === k ? hi : lo + ((hi - lo) * i) / k));
+  const counts = new Array<number>(k).fill(0);
+  for (const v of values) {
+    let i = Math.min(k - 1, Math.floor(((v - lo) / (hi - lo)) * k));
+    while (i > 0 && v < edges[i]!) i--;
+    while (i < k - 1 && v >= edges[i + 1]!) i++;
+    counts[i]! += 1;
+  }
+  return { edges, counts };
 }
 
 /** Bin edges with their unit: as figure values, with more digits when neighbouring edges would otherwise print alike. */
@@ -118,7 +140,7 @@ function shellWord(w: string): string {
  */
 export function repeatCommand(r: SpreadResult, run: number, celsius: number): string {
   const words = ['railcheck', 'run', r.file, '--sample', String(run)];
-  if (r.method === 'corners') words.push('--corners');
+  if (r.method === "corners") words.push("--corner");
   else words.push('--seed', String(r.seed));
   const models = r.variables.filter((v) => v.sampling !== null);
   if (models.length > 0 && models.every((v) => v.sampling === 'lot')) words.push('--model-sampling', 'lot');
@@ -160,9 +182,11 @@ function yieldText(t: SpreadTemperature, r: SpreadResult): string {
   const conf = `${Number((r.confidence * 100).toPrecision(4))} %`;
   const rows = [['limit', 'pass', 'yield', `${conf} Wilson interval`, 'fail', 'not measured']];
   for (const l of t.limits) {
-    rows.push([limitName(l), `${l.passes}/${l.passes + l.fails + l.notEvaluated}`, percentText(l.yield), `${percentText(l.interval.low)} – ${percentText(l.interval.high)}`, String(l.fails), String(l.notEvaluated)]);
+    const interval = r.method === 'corners' ? '—' : `${percentText(l.interval.low)} – ${percentText(l.interval.high)}`;
+    rows.push([limitName(l), `${l.passes}/${l.passes + l.fails + l.notEvaluated}`, percentText(l.yield), interval, String(l.fails), String(l.notEvaluated)]);
   }
-  return table(rows);
+  const note = r.method === 'corners' ? ['  (corner runs are not a random sample of parts: the yield counts corners, and no confidence interval applies)'] : [];
+  return [table(rows), ...note].join('\n');
 }
 
 /** The unit a limit's figure is measured in, from the figures of its temperature (a figure never measured: the registry's DC unit). */
@@ -171,17 +195,27 @@ function unitOf(name: string, t: SpreadTemperature): FigureUnit {
   return f?.unit ?? figureEntry(name)?.units.dc ?? 'ratio';
 }
 
-/** One figure: its statistics in a compact table. */
+/** Relative width below which a figure counts as the same in every run (rounding of the solves; common practice, no source). */
+export const SAME_IN_EVERY_RUN = 1e-9;
+
+/** True when a figure's values differ by no more than rounding over the runs: it has no worst unit to name. */
+export function sameInEveryRun(f: SpreadFigure): boolean {
+  const s = f.summary;
+  return s !== null && s.max - s.min <= SAME_IN_EVERY_RUN * Math.max(Math.abs(s.max), Math.abs(s.min));
+}
+
+/** One figure: a line with its runs, mean, standard deviation and direction, then min, percentiles and max in a compact table. */
 function figureStats(f: SpreadFigure, r: SpreadResult): string {
   const better = match(f.better).with('lower', () => 'lower is better').with('higher', () => 'higher is better').with('none', () => 'a condition, not a merit').exhaustive();
   const counts = f.notMeasured > 0 ? `measured in ${f.measured} of ${f.measured + f.notMeasured} runs` : `${plural(f.measured, 'run')}`;
-  const head = `  ${f.name} — ${counts}; ${better}`;
-  if (!f.summary) return `${head}\n      not measured in any run`;
   const s = f.summary;
+  if (!s) return `  ${f.name} — not measured in any run; ${better}`;
   const v = (x: number): string => formatFigureValue(f.name, x, f.unit);
+  if (sameInEveryRun(f)) return `  ${f.name} — ${counts}, ${v(s.mean)} in every run (to ${Math.round(-Math.log10(SAME_IN_EVERY_RUN))} digits); ${better}`;
+  const head = `  ${f.name} — ${counts}, mean ${v(s.mean)}, standard deviation ${v(s.std)}; ${better}`;
   const ps = r.percentiles.map((p) => String(p));
-  const header = ['min', ...ps.map((p) => `p${p}`), 'max', 'mean', 'std'];
-  const values = [v(s.min), ...ps.map((p) => v(s.percentiles[p]!)), v(s.max), v(s.mean), v(s.std)];
+  const header = ['min', ...ps.map((p) => `p${p}`), 'max'];
+  const values = [v(s.min), ...ps.map((p) => v(s.percentiles[p]!)), v(s.max)];
   return [head, table([header, values].map((row) => ['', ...row]), '    ')].join('\n');
 }
 
@@ -216,7 +250,7 @@ export function histogramText(values: readonly number[], f: SpreadFigure, limits
   return [laidOut, ...outside.map((o) => `    ${o}`)].join('\n');
 }
 
-/** One entry of the worst units: what the run is worst for, in words. */
+/** One entry of the worst units: the run and what it is worst for, in words. */
 interface WorstEntry {
   readonly ref: SpreadRunRef;
   readonly what: string;
@@ -225,6 +259,7 @@ interface WorstEntry {
 /** The worst runs of a temperature: per limit the least margin, per figure its worst end (figure registry's `better`). */
 function worstEntries(t: SpreadTemperature): WorstEntry[] {
   const out: WorstEntry[] = [];
+  const named = new Set<string>();
   for (const l of t.limits) {
     const w = l.worst;
     if (!w) continue;
@@ -232,21 +267,26 @@ function worstEntries(t: SpreadTemperature): WorstEntry[] {
     const what =
       w.value === null || w.margin === null
         ? `${limitName(l)}: not measured`
-        : `${limitName(l)}: ${l.figure} ${formatFigureValue(l.figure, w.value, unit)}, ${w.margin < 0 ? `${formatFigureValue(l.figure, -w.margin, unit)} beyond the limit (FAIL)` : `${formatFigureValue(l.figure, w.margin, unit)} inside the limit`}`;
+        : `${limitName(l)}: ${formatFigureValue(l.figure, w.value, unit)}, ${w.margin < 0 ? `${formatFigureValue(l.figure, -w.margin, unit)} beyond the limit (FAIL)` : `${formatFigureValue(l.figure, w.margin, unit)} inside the limit`}`;
+    if (w.value !== null) named.add(`${w.run}:${l.figure.toLowerCase()}:${w.value}`);
     out.push({ ref: w, what });
   }
-  for (const f of t.figures) {
+  for (const f of t.figures.filter((g) => !sameInEveryRun(g))) {
     const sides = match(f.better)
       .with('lower', () => ['highest'])
       .with('higher', () => ['lowest'])
       .with('none', () => ['lowest', 'highest'])
       .exhaustive();
-    f.worst.forEach((w, i) => out.push({ ref: w, what: `${sides[i] ?? 'worst'} ${f.name} ${w.value === null ? 'not measured' : formatFigureValue(f.name, w.value, f.unit)}` }));
+    f.worst.forEach((w, i) => {
+      // The run a limit on this figure already names with this value: the limit's line says it.
+      if (w.value !== null && named.has(`${w.run}:${f.name.toLowerCase()}:${w.value}`)) return;
+      out.push({ ref: w, what: `${sides[i] ?? 'worst'} ${f.name}: ${w.value === null ? 'not measured' : formatFigureValue(f.name, w.value, f.unit)}` });
+    });
   }
   return out;
 }
 
-/** The worst units, one block per run (in the order first named): what it is worst for, its sample and the command that repeats it. */
+/** The worst units, one block per run (in the order first named): what it is worst for, one line each, its sample and the command that repeats it. */
 function worstText(t: SpreadTemperature, r: SpreadResult): string {
   const entries = worstEntries(t);
   if (entries.length === 0) return '  no run measured anything';
@@ -255,7 +295,7 @@ function worstText(t: SpreadTemperature, r: SpreadResult): string {
   const blocks: string[] = [];
   for (const [run, list] of byRun) {
     blocks.push(
-      [`  run ${run}: ${list.map((e) => e.what).join('; ')}`, `      sample  ${sampleText(list[0]!.ref.sample, r.variables)}`, `      repeat  ${repeatCommand(r, run, t.celsius)}`].join('\n'),
+      [`  run ${run}, the worst for`, ...list.map((e) => `      ${e.what}`), `    sample  ${sampleText(list[0]!.ref.sample, r.variables)}`, `    repeat  ${repeatCommand(r, run, t.celsius)}`].join('\n'),
     );
   }
   return blocks.join('\n');
@@ -271,7 +311,7 @@ function worstText(t: SpreadTemperature, r: SpreadResult): string {
 function failedText(t: SpreadTemperature, k: number, r: SpreadResult): string | undefined {
   const blocks: string[] = [];
   for (const f of t.failed) {
-    blocks.push([`  run ${f.run}: did not run: ${f.reason}`, `      sample  ${sampleText(f.sample, r.variables)}`, `      repeat  ${repeatCommand(r, f.run, t.celsius)}`].join('\n'));
+    blocks.push([`  run ${f.run}: did not run: ${f.reason}`, `    sample  ${sampleText(f.sample, r.variables)}`, `    repeat  ${repeatCommand(r, f.run, t.celsius)}`].join('\n'));
   }
   const failedRuns = new Set(t.failed.map((f) => f.run));
   for (const run of r.runs ?? []) {
@@ -280,8 +320,8 @@ function failedText(t: SpreadTemperature, k: number, r: SpreadResult): string | 
     blocks.push(
       [
         `  run ${run.run}: not measured: ${at.notMeasured.map((m) => `${m.name} (${m.reason})`).join('; ')}`,
-        `      sample  ${sampleText(sampleOf(run, r.variables), r.variables)}`,
-        `      repeat  ${repeatCommand(r, run.run, t.celsius)}`,
+        `    sample  ${sampleText(sampleOf(run, r.variables), r.variables)}`,
+        `    repeat  ${repeatCommand(r, run.run, t.celsius)}`,
       ].join('\n'),
     );
   }
@@ -353,8 +393,8 @@ export function spreadText(r: SpreadResult, options: SpreadTextOptions = {}): st
     table(
       [
         ['design', designText(r)],
-        ['statistics', `min, ${ps} (Hyndman & Fan definition 7), max, mean, sample standard deviation`],
-        ['yield', `passes over runs, with the ${Number((r.confidence * 100).toPrecision(4))} % Wilson score interval; a run whose figure was not measured counts as a fail`],
+        ['statistics', `min, percentiles ${ps} (Hyndman & Fan definition 7), max; mean and sample standard deviation`],
+        ['yield', `${r.method === 'corners' ? 'corners passed over corners run' : `passes over runs, with the ${Number((r.confidence * 100).toPrecision(4))} % Wilson score interval`}; a run whose figure was not measured counts as a fail`],
       ],
       '  ',
       true,
