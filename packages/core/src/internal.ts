@@ -56,6 +56,7 @@ export type {
   SpreadOptions, SpreadOutcome, SpreadResult, SpreadTemperature, SpreadFigure, SpreadLimit, SpreadRun, SpreadRunAt, SpreadRunRef, SpreadSummary,
   SpreadVariable, SampledValue, SpreadDesign, SpreadMethod, ModelSampling, SpreadDistribution, SampleOptions, SampleOutcome,
 } from './pipeline/spread-types.js';
+export { histogram } from './stats.js';
 export { spreadVariables, monteCarloFactors, cornerFactors, sampledCircuit, sampleOf } from './pipeline/spread-sample.js';
 export type { NetlistRun, CheckLimit } from './pipeline/check-run.js';
 export { DEFAULT_TOLERANCES, readBaseline, parseBaseline, baselineText, writeFileAtomic, compareValue, BASELINE_FORMAT, BASELINE_VERSION } from './pipeline/check-baseline.js';
