@@ -270,3 +270,26 @@ describe('model spreads: each element its own factor, or one for the lot', () =>
     if (!p.ok) expect(p.errors[0]!.message).toMatch(/applies to model spreads only/);
   });
 });
+
+describe('arguments and usage errors', () => {
+  test('junk arguments and options come back as ok: false with a located or bad-argument error, never a throw', async () => {
+    const text = divider(['.spread R1 5%']);
+    const cases: [unknown, unknown][] = [
+      [undefined, {}], [42, {}], [text, null], [text, { runs: 0 }], [text, { runs: 1.5 }], [text, { seed: -1 }], [text, { method: 'sideways' }],
+      [text, { shard: { index: 3, count: 2 } }], [text, { jobs: 0 }], [text, { percentiles: [101] }], [text, { confidence: 1 }], [text, { temperatures: [] }],
+      [divider([]), {}],
+    ];
+    for (const [t, o] of cases) {
+      const r = await spreadNetlist(t as string, o as never);
+      expect(r.ok).toBe(false);
+      if (!r.ok) {
+        expect(r.errors.length).toBeGreaterThan(0);
+        expect(r.errors.some((e) => e.code === 'internal')).toBe(false);
+      }
+    }
+    const none = await spreadNetlist(divider([]), {});
+    expect(!none.ok && none.errors[0]!.code).toBe('spread-none');
+    const late = runSampleNetlist(text, { run: 5, runs: 5 });
+    expect(!late.ok && late.errors[0]!.code).toBe('spread-bad-sample');
+  });
+});
