@@ -6,7 +6,7 @@
  * in it depends on the machine (no times, no rates, no thread count).
  */
 import {
-  figureEntry, formatSI,
+  figureEntry, formatSI, histogram,
   type FigureUnit, type SampledValue, type SpreadFigure, type SpreadLimit, type SpreadResult, type SpreadRun, type SpreadRunRef, type SpreadTemperature, type SpreadVariable,
 } from '@railcheck/core';
 import { BJT_PARAMS, DEVICES, DIODE_PARAMS, kindOfLetter } from '@railcheck/devices';
@@ -48,28 +48,6 @@ export function percentText(p: number): string {
     if (Number(t) !== 0 && Number(t) !== 100) return `${t} %`;
   }
   return `${p * 100} %`;
-}
-
-/**
- * Equal-width bins from the least value to the greatest, Sturges' count
- * ⌈log2 n⌉ + 1 (H. A. Sturges, J. Am. Stat. Assoc. 21, 1926); bin i holds
- * edges[i] ≤ v < edges[i+1], the last also v = max; one bin when all values
- * are equal. (Stand-in until stats.ts's histogram is in core's public barrel.)
- */
-export function histogram(values: readonly number[]): { edges: number[]; counts: number[] } {
-  const lo = values.reduce((a, b) => Math.min(a, b), Infinity);
-  const hi = values.reduce((a, b) => Math.max(a, b), -Infinity);
-  if (lo === hi) return { edges: [lo, hi], counts: [values.length] };
-  const k = Math.ceil(Math.log2(values.length)) + 1;
-  const edges = Array.from({ length: k + 1 }, (_, i) => (i === k ? hi : lo + ((hi - lo) * i) / k));
-  const counts = new Array<number>(k).fill(0);
-  for (const v of values) {
-    let i = Math.min(k - 1, Math.floor(((v - lo) / (hi - lo)) * k));
-    while (i > 0 && v < edges[i]!) i--;
-    while (i < k - 1 && v >= edges[i + 1]!) i++;
-    counts[i]! += 1;
-  }
-  return { edges, counts };
 }
 
 /** Bin edges with their unit: as figure values, with more digits when neighbouring edges would otherwise print alike. */
@@ -223,8 +201,8 @@ function figureStats(f: SpreadFigure, r: SpreadResult): string {
 const passesBelow = (l: SpreadLimit): boolean => match(l.op).with('<', '<=', () => true).with('>', '>=', () => false).exhaustive();
 
 /**
- * A histogram of a figure over the runs: one row per bin (Sturges' rule,
- * stats.ts) with its range, a bar scaled to the fullest bin and the count;
+ * A histogram of a figure over the runs: one row per bin (stats.ts
+ * `histogram`: equal bins by Sturges' rule, J. Am. Stat. Assoc. 21, 1926) with its range, a bar scaled to the fullest bin and the count;
  * each limit on the figure marked on the bin it falls in, or named below
  * when it lies outside every run's value.
  */
