@@ -3,7 +3,7 @@
  * options, the result and its parts. Everything in a result is plain
  * JSON-serialisable data (numbers, strings, booleans, null, arrays and
  * plain objects), so that a worker thread can hand back its runs, a shard
- * can be written as JSON and {@link SpreadMerge} can rebuild the whole run
+ * can be written as JSON and `mergeSpreadResults` can rebuild the whole run
  * from the shards' JSON. Quantities are in SI units (figure values in the
  * unit the figure registry gives them, temperatures in °C).
  */
@@ -42,7 +42,7 @@ export type ModelSampling = 'each' | 'lot';
 /** The distribution of a spread's factor: uniform over 1 ± ratio, or gaussian with ratio = 3σ. */
 export type SpreadDistribution = 'uniform' | 'gauss';
 
-/** Options of a tolerance run ({@link SpreadNetlist}). */
+/** Options of a tolerance run (`spreadNetlist`). */
 export interface SpreadOptions {
   /** `monte-carlo` (default) or `corners`. */
   readonly method?: SpreadMethod;
@@ -70,7 +70,7 @@ export interface SpreadOptions {
   readonly workerScript?: string | URL;
   /** Hears each completed run (any order): runs done and the total of this share. */
   readonly onProgress?: (done: number, total: number) => void;
-  /** Reading options of the netlist (include handling; `file` for {@link SpreadNetlist} on text). */
+  /** Reading options of the netlist (include handling; `file` for `spreadNetlist` on text). */
   readonly parse?: ParseOptions;
 }
 
@@ -254,7 +254,7 @@ export type SpreadOutcome =
   | { readonly ok: true; readonly result: SpreadResult }
   | { readonly ok: false; readonly errors: readonly Diagnostic[]; readonly warnings: readonly Diagnostic[] };
 
-/** Options of {@link SampleRun}: which run to repeat, with the options of the spread that made it. */
+/** Options of `runSampleNetlist`: which run to repeat, with the options of the spread that made it. */
 export interface SampleOptions {
   /** The run index (0-based, as the spread reports it). */
   readonly run: number;
