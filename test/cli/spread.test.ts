@@ -299,6 +299,37 @@ describe('railcheck spread on a divider', () => {
     expect(text.out).toContain(j.design!.name);
   });
 
+  test('a model spread: each part its own value by default, one per model with --model-sampling lot, and the repeat line carries the mode', async () => {
+    // A consistency check of the command line (sampling modes and the repeat line), not of a figure.
+    const file = netlistFile('Two-Zener stack\nV1 in 0 24\nRS in out 1k\nD2 mid out ZX\nD1 0 mid ZX\nRL out 0 10k\n.model ZX D (IS=1e-14 BV=5.6 IBV=5m RS=3)\n.supply in=V1 out=out load=RL\n.figure line\n.spread ZX.BV 2% gauss\n.spread RS 5%\n.end\n');
+    const each = json((await cli(['spread', file, '--runs', '20', '--json', '--jobs', '1'])).out);
+    expect(each.variables.map((v) => v.name)).toEqual(['ZX.BV@D2', 'ZX.BV@D1', 'RS']);
+    const lotText = await cli(['spread', file, '--runs', '20', '--model-sampling', 'lot', '--jobs', '1']);
+    const lot = json((await cli(['spread', file, '--runs', '20', '--model-sampling', 'lot', '--json', '--jobs', '1'])).out);
+    expect(lot.variables.map((v) => v.name)).toEqual(['ZX.BV', 'RS']);
+    const worst = lot.at[0]!.figures.find((f) => f.name === 'line.slope')!.worst[0]!;
+    const repeat = lotText.out.split('\n').find((l) => l.includes(`--sample ${worst.run} `))!;
+    expect(repeat).toContain('--model-sampling lot');
+    const words = repeat.trim().replace(/^repeat\s+/, '').split(/\s+/);
+    const again = JSON.parse((await cli([...words.slice(1), '--json'])).out) as { at: { values: Record<string, number> }[] };
+    expect(again.at[0]!.values['line.slope']).toBe(worst.value);
+  });
+
+  test('merge refuses shards of check and spread mixed, and --junit on spread shards: exit 2', async () => {
+    const file = netlistFile(divider());
+    const dir = freshDir('spread-mixed');
+    const spreadShard = join(dir, 'spread-1.json');
+    writeFileSync(spreadShard, (await cli(['spread', file, '--runs', '10', '--shard', '1/2', '--json', '--jobs', '1'])).out);
+    const checkShard = join(dir, 'check-1.json');
+    writeFileSync(checkShard, (await cli(['check', file, '--shard', '1/2', '--json', '--jobs', '1'])).out);
+    const mixed = await cli(['merge', spreadShard, checkShard]);
+    expect(mixed.status).toBe(2);
+    expect(mixed.err).toMatch(/different commands \(railcheck-spread, railcheck-check\)/);
+    const junit = await cli(['merge', spreadShard, '--junit', join(dir, 'j.xml')]);
+    expect(junit.status).toBe(2);
+    expect(junit.err).toMatch(/--junit is for the shards of railcheck check/);
+  });
+
   test('a stage above extra-low voltage carries the mains caution at the top', async () => {
     const file = netlistFile('Mains divider\nV1 in 0 325\nR1 in out 3k\nR2 out 0 1k\n.supply in=V1 out=out load=R2\n.figure line\n.spread R1 5%\n.end\n');
     const r = await cli(['spread', file, '--runs', '5', '--jobs', '1']);

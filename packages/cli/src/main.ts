@@ -1,11 +1,12 @@
 /**
- * The `railcheck` command. Exit status (figures.md, docs/output.md): 0
+ * The `railcheck` command. Exit status of run (figures.md, docs/output.md): 0
  * when every limit passes, 1 when a limit fails, 2 when the netlist has an
  * error, an analysis fails, or a limit could not be evaluated because its
  * figure was not measured (the messages on standard error; in that last
  * case the report is still printed). A figure not measured without a limit
- * on it is a note in the report and leaves the status alone. A user never
- * sees a stack trace.
+ * on it is a note in the report and leaves the status alone. `spread`,
+ * `check`, `merge` and `compare` say theirs in their own modules. A user
+ * never sees a stack trace.
  */
 import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
 import { match } from 'ts-pattern';

@@ -10,6 +10,7 @@ import {
   DEFAULT_MAX_CORNER_RUNS, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, elaborate, formatDiagnostic, readNetlistFile, runSampleNetlistFile, spreadNetlistFile,
   type Diagnostic, type ModelSampling, type SpreadResult,
 } from '@railcheck/core';
+import { match } from 'ts-pattern';
 import { flagHelp, parseArgs, type FlagSpec } from '../args.js';
 import { EXIT_ERROR, EXIT_LIMIT_FAILED, EXIT_OK, type CliIo } from '../main.js';
 import { formatWarnings } from '../present/text.js';
@@ -160,10 +161,13 @@ function timeLeft(seconds: number): string {
   return seconds < 120 ? `about ${Math.ceil(seconds)} s left` : `about ${Math.ceil(seconds / 60)} min left`;
 }
 
+/** A rate in runs per second: whole above 10, two digits below. */
+const rateText = (rate: number): string => String(rate >= 10 ? Math.round(rate) : Number(rate.toPrecision(2)));
+
 /** The plain progress line: `spread: 400/1000 runs, 38 runs/s, about 16 s left`. */
 export function progressLine(done: number, total: number, seconds: number): string {
   const rate = seconds > 0 ? done / seconds : 0;
-  return `spread: ${done}/${total} runs, ${rate >= 10 ? Math.round(rate) : Number(rate.toPrecision(2))} runs/s, ${rate > 0 ? timeLeft((total - done) / rate) : 'time left not known yet'}`;
+  return `spread: ${done}/${total} runs, ${rateText(rate)} runs/s, ${rate > 0 ? timeLeft((total - done) / rate) : 'time left not known yet'}`;
 }
 
 /** The progress display for this run: a cli-progress bar when standard error is a terminal, plain lines to `err` otherwise. */
@@ -175,11 +179,13 @@ async function progress(err: (text: string) => void, now: () => number = Date.no
     return {
       tick: (done, total) => {
         if (!bar) {
-          bar = new SingleBar({ stream: process.stderr, clearOnComplete: true, hideCursor: true, etaBuffer: 50, format: 'spread [{bar}] {value}/{total} runs, {rate} runs/s, about {eta}s left' }, Presets.shades_classic);
-          bar.start(total, 0, { rate: '0' });
+          bar = new SingleBar({ stream: process.stderr, clearOnComplete: true, hideCursor: true, format: 'spread [{bar}] {value}/{total} runs, {rate} runs/s, {left}' }, Presets.shades_classic);
+          bar.start(total, 0, { rate: '0', left: 'time left not known yet' });
         }
+        // The rate over the whole run so far, and the time left at that rate (the same words as the plain line).
         const seconds = (now() - start) / 1000;
-        bar.update(done, { rate: seconds > 0 ? String(Math.round(done / seconds)) : '0' });
+        const rate = seconds > 0 ? done / seconds : 0;
+        bar.update(done, { rate: rateText(rate), left: rate > 0 ? timeLeft((total - done) / rate) : 'time left not known yet' });
       },
       stop: () => bar?.stop(),
     };
@@ -347,5 +353,8 @@ export function sampleCommand(file: string, flags: ReadonlyMap<string, string | 
     io.err(`railcheck run: run ${index} did not run at every temperature; the reasons are in the report`);
     return EXIT_ERROR;
   }
-  return judged.reduce((worst, l) => Math.max(worst, l.status === 'pass' ? EXIT_OK : l.status === 'fail' ? EXIT_LIMIT_FAILED : EXIT_ERROR), EXIT_OK);
+  return judged.reduce(
+    (worst, l) => Math.max(worst, match(l.status).with('pass', () => EXIT_OK).with('fail', () => EXIT_LIMIT_FAILED).with('not-evaluated', () => EXIT_ERROR).exhaustive()),
+    EXIT_OK,
+  );
 }
