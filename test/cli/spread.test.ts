@@ -221,6 +221,18 @@ describe('railcheck spread on a divider', () => {
     expect(again.out).toContain('did not run: ');
   });
 
+  test('--temp with a temperature below 0 °C: a section per temperature, and the repeat line at -20 °C runs', async () => {
+    const file = netlistFile(divider());
+    const text = await cli(['spread', file, '--runs', '30', '--temp=-20,27', '--jobs', '1']);
+    expect(text.out).toContain('At -20 °C');
+    expect(text.out).toContain('At 27 °C');
+    const repeat = text.out.split('\n').find((l) => l.includes('--temp=-20'))!;
+    const again = await cli(repeat.trim().replace(/^repeat\s+/, '').split(/\s+/).slice(1));
+    expect(again.err).not.toMatch(/needs a value/);
+    expect(again.out).toContain('Figures at -20 °C');
+    expect(again.out).not.toContain('Figures at 27 °C');
+  });
+
   test('--seed: the same seed gives the same report, another seed another one', async () => {
     const file = netlistFile(divider());
     const a = await cli(['spread', file, '--runs', '50', '--seed', '7', '--jobs', '1']);

@@ -112,9 +112,9 @@ function shellWord(w: string): string {
 
 /**
  * The command that repeats run `run` of the result at `celsius`:
- * `railcheck run FILE --sample RUN --seed S --temp C`, with `--corners`
- * for a corner design (whose rows need no seed) and `--model-sampling lot`
- * when every model spread was sampled per lot.
+ * `railcheck run FILE --sample RUN --seed S --temp C` (`--temp=C` below
+ * 0 °C), with `--corners` for a corner design (whose rows need no seed)
+ * and `--model-sampling lot` when every model spread was sampled per lot.
  */
 export function repeatCommand(r: SpreadResult, run: number, celsius: number): string {
   const words = ['railcheck', 'run', r.file, '--sample', String(run)];
@@ -122,7 +122,8 @@ export function repeatCommand(r: SpreadResult, run: number, celsius: number): st
   else words.push('--seed', String(r.seed));
   const models = r.variables.filter((v) => v.sampling !== null);
   if (models.length > 0 && models.every((v) => v.sampling === 'lot')) words.push('--model-sampling', 'lot');
-  words.push('--temp', String(celsius));
+  // A negative temperature is joined to its option, or the command line would read it as an option of its own.
+  words.push(...(celsius < 0 ? [`--temp=${celsius}`] : ['--temp', String(celsius)]));
   return words.map(shellWord).join(' ');
 }
 
