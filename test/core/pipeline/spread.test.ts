@@ -293,3 +293,14 @@ describe('arguments and usage errors', () => {
     expect(!late.ok && late.errors[0]!.code).toBe('spread-bad-sample');
   });
 });
+
+describe('a spread on a model no element uses', () => {
+  test('varies nothing, with a note at its line; alone it is an error', async () => {
+    const unused = ['.model dz D (BV=5)', '.spread dz.BV 5%'];
+    const res = await spread(divider([...unused, '.spread R1 5%']), { runs: 3, jobs: 1 });
+    expect(res.variables.map((v) => v.name)).toEqual(['R1']);
+    expect(res.warnings.filter((w) => w.code === 'spread-unused-model').map((w) => w.pos?.line)).toEqual([8]);
+    const alone = await spreadNetlist(divider(unused), { runs: 3, jobs: 1 });
+    expect(!alone.ok && alone.errors[0]!.code).toBe('spread-none');
+  });
+});

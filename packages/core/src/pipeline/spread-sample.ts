@@ -51,7 +51,8 @@ const modelOf = (el: FlatElement): { name: string; values: Readonly<Record<strin
  * The variables of a flat circuit's spreads, in the order they are drawn:
  * the `.spread` lines in netlist order; an `each` model spread gives one
  * variable per element of the model, in flat element order. `sampling` is
- * the mode of model spreads whose line names none.
+ * the mode of model spreads whose line names none. A spread on a model
+ * that no element uses gives no variable.
  */
 export function spreadVariables(flat: FlatCircuit, sampling: ModelSampling): BoundVariable[] {
   const out: BoundVariable[] = [];
@@ -66,6 +67,8 @@ export function spreadVariables(flat: FlatCircuit, sampling: ModelSampling): Bou
       continue;
     }
     const users = flat.elements.flatMap((e, i) => (modelOf(e)?.name === m.model ? [i] : []));
+    // A model no element uses has nothing to vary: no variable (spreadSetup notes it).
+    if (users.length === 0) continue;
     const first = users[0] === undefined ? undefined : modelOf(flat.elements[users[0]]!);
     const nominal = Number(first?.values[m.param]);
     const mode = s.sampling ?? sampling;

@@ -9,7 +9,7 @@
  * against the yield and listed with its sample, never dropped.
  */
 import { availableParallelism } from 'node:os';
-import { errorAt, RailcheckError, type Diagnostic } from '../errors.js';
+import { errorAt, RailcheckError, warningAt, type Diagnostic } from '../errors.js';
 import { argumentDiagnostic, isRecord } from '../arguments.js';
 import { figureEntry, figureUnit, type BenchKind, type FigureUnit } from '../figure-registry.js';
 import { MAINS_CAUTION } from '../analysis/safety.js';
@@ -43,6 +43,8 @@ export interface SpreadSetup {
   readonly runCount: number;
   readonly temperatures: readonly number[];
   readonly design: SpreadDesign | null;
+  /** Notes on the spreads (a model no element uses). */
+  readonly notes: readonly Diagnostic[];
 }
 
 /** The options that decide the runs (and only those: a worker gets them as plain data). */
@@ -72,16 +74,22 @@ export function spreadSetup(flat: FlatCircuit, o: RunOptions): SpreadSetup {
     throw new RailcheckError([errorAt('spread-none', 'the netlist has no .spread line, so there is nothing to vary', where.pos, where.lineText, '.spread <element>|<model>.<PARAM> <ratio> [uniform|gauss] [each|lot] (docs/spread.md)')]);
   }
   const variables = spreadVariables(flat, sampling);
+  const notes = flat.spreads.filter((sp) => !variables.some((v) => v.target === sp.target))
+    .map((sp) => warningAt('spread-unused-model', `.spread ${sp.target}: no element uses this model, so the spread varies nothing`, sp.origin.pos, sp.origin.lineText));
+  if (variables.length === 0) {
+    const first = flat.spreads[0]!.origin;
+    throw new RailcheckError([errorAt('spread-none', 'no .spread line varies a part of the circuit (each names a model no element uses)', first.pos, first.lineText, 'a .spread on an element, or on a model an element uses')]);
+  }
   if (method === 'corners') {
     const max = o.maxCornerRuns ?? DEFAULT_MAX_CORNER_RUNS;
     if (!Number.isInteger(max) || max < 2) throw usage('spread-bad-corners', `max corner runs ${max} is not a whole number ≥ 2`, 'a whole number ≥ 2');
     const d = cornerDesign(variables.length, max);
     const design: SpreadDesign = { kind: d.kind, name: d.name, rows: d.rows.map((r) => [...r]) };
-    return { flat, variables, method, seed, runCount: design.rows.length, temperatures, design };
+    return { flat, variables, method, seed, runCount: design.rows.length, temperatures, design, notes };
   }
   const runCount = o.runs ?? DEFAULT_SPREAD_RUNS;
   if (!Number.isInteger(runCount) || runCount < 1 || runCount > MAX_SPREAD_RUNS) throw usage('spread-bad-runs', `runs ${runCount} is not a whole number from 1 to ${MAX_SPREAD_RUNS}`, `a whole number from 1 to ${MAX_SPREAD_RUNS}`);
-  return { flat, variables, method, seed, runCount, temperatures, design: null };
+  return { flat, variables, method, seed, runCount, temperatures, design: null, notes };
 }
 
 /** The factors of run `run` of the setup. */
@@ -243,8 +251,8 @@ async function spreadChecked(src: Source, options: SpreadOptions): Promise<Sprea
   const parsed = parseSource(src, parse);
   const nominal = runParsed(parsed);
   if (!nominal.ok) return nominal;
-  const warnings = nominal.report.warnings.filter((w) => w.code !== 'spread-not-used');
   const setup = spreadSetup(nominal.report.circuit, runOptionsOf(options));
+  const warnings = [...nominal.report.warnings.filter((w) => w.code !== 'spread-not-used'), ...setup.notes];
   const shard = options.shard ?? { index: 1, count: 1 };
   if (!Number.isInteger(shard.count) || !Number.isInteger(shard.index) || shard.count < 1 || shard.index < 1 || shard.index > shard.count) throw usage('spread-bad-shard', `shard ${shard.index}/${shard.count} is not one of the shares`, 'K/N with whole numbers 1 ≤ K ≤ N');
   const jobs = options.jobs ?? availableParallelism();
