@@ -92,6 +92,7 @@ describe('railcheck spread: help and usage errors', () => {
     [['FILE', '--corners', '--runs', '5'], /--runs cannot be given with --corners/],
     [['FILE', '--all-runs'], /--all-runs needs --json/],
     [['FILE', '--frobnicate'], /unknown option '--frobnicate'/],
+    [['FILE', '--runs', '2000000'], /runs 2000000 is not a whole number from 1 to 1000000/],
   ])('railcheck spread %j is a usage error: exit 2, a message, nothing on standard output', async (args, message) => {
     const file = netlistFile(divider());
     const r = await cli(['spread', ...args.map((a) => (a === 'FILE' ? file : a))]);
