@@ -4,7 +4,7 @@
 // ratio of the two rates measured in this one process. Not a test: the numbers depend on the machine.
 //   node bench/spread.mjs [RUNS]      (pnpm bench:spread)
 import { mkdtempSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { build } from 'esbuild';
@@ -30,11 +30,12 @@ async function rate(jobs) {
   return { seconds, perSecond: runs / seconds, result: o.result };
 }
 
-await rate(1).catch(() => undefined); // warm the JIT on a first pass
+const cold = await rate(1); // the first pass on this thread, before the JIT has warmed up (each worker thread starts cold like this)
 const one = await rate(1);
 const two = await rate(2);
 const same = JSON.stringify({ ...one.result, runsPerSecond: null }) === JSON.stringify({ ...two.result, runsPerSecond: null });
-console.log(`spread of ${runs} runs (line, load, dropout, ripple; 27 °C)`);
+console.log(`spread of ${runs} runs (line, load, dropout, ripple; 27 °C); ${availableParallelism()} cores, load average ${loadavg().map((l) => l.toFixed(1)).join(' ')} (other work on the machine lowers the jobs 2 ratio)`);
+console.log(`  jobs 1, first pass (cold): ${cold.seconds.toFixed(2)} s, ${cold.perSecond.toFixed(1)} runs/s`);
 console.log(`  jobs 1: ${one.seconds.toFixed(2)} s, ${one.perSecond.toFixed(1)} runs/s`);
 console.log(`  jobs 2: ${two.seconds.toFixed(2)} s, ${two.perSecond.toFixed(1)} runs/s`);
-console.log(`  ratio jobs 2 / jobs 1: ${(two.perSecond / one.perSecond).toFixed(2)}  (same result: ${same})`);
+console.log(`  ratio jobs 2 / jobs 1: ${(two.perSecond / one.perSecond).toFixed(2)}; jobs 2 / jobs 1 cold: ${(two.perSecond / cold.perSecond).toFixed(2)}  (same result: ${same})`);
