@@ -343,6 +343,27 @@ describe('railcheck spread on a divider', () => {
     expect(junit.err).toMatch(/--junit is for the shards of railcheck check/);
   });
 
+  test('--corners with 9 spreads (2^9 = 512 > 256): a fractional design named in the report, balanced and orthogonal columns', async () => {
+    const ladder = ['Ladder', 'V1 in 0 12', ...Array.from({ length: 8 }, (_, i) => `R${i + 1} ${i === 0 ? 'in' : `n${i}`} n${i + 1} 100`), 'RL n8 0 1k', '.supply in=V1 out=n8 load=RL', '.figure line',
+      ...Array.from({ length: 8 }, (_, i) => `.spread R${i + 1} 5%`), '.spread RL 5%', '.end', ''].join('\n');
+    const file = netlistFile(ladder);
+    const j = json((await cli(['spread', file, '--corners', '--json', '--all-runs', '--jobs', '1'])).out);
+    const text = await cli(['spread', file, '--corners', '--jobs', '1']);
+    expect(j.design!.kind).toBe('fractional');
+    expect(j.runCount).toBeLessThan(512);
+    expect(text.out).toContain(`corners: ${j.design!.name}, ${j.runCount} runs instead of all 2^9 corners`);
+    // A two-level fractional factorial design has balanced, pairwise orthogonal columns
+    // (Box, Hunter & Hunter, Statistics for Experimenters, 2nd ed., ch. 6; from memory): every column sums to 0
+    // and every two columns have a zero dot product. Integer arithmetic: exact.
+    const rows = j.design!.rows;
+    for (let a = 0; a < 9; a++) {
+      expect(rows.reduce((sum, r) => sum + r[a]!, 0)).toBe(0);
+      for (let b = a + 1; b < 9; b++) expect(rows.reduce((sum, r) => sum + r[a]! * r[b]!, 0)).toBe(0);
+    }
+    // Each run's factors are its row's ends: 1 ± 5 %.
+    j.runs!.forEach((run, k) => run.factors.forEach((f, i) => expect(Math.abs(f - (1 + 0.05 * rows[k]![i]!))).toBeLessThanOrEqual(1e-15)));
+  });
+
   test('a stage above extra-low voltage carries the mains caution at the top', async () => {
     const file = netlistFile('Mains divider\nV1 in 0 325\nR1 in out 3k\nR2 out 0 1k\n.supply in=V1 out=out load=R2\n.figure line\n.spread R1 5%\n.end\n');
     const r = await cli(['spread', file, '--runs', '5', '--jobs', '1']);

@@ -8,7 +8,7 @@
  */
 import {
   DEFAULT_MAX_CORNER_RUNS, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, elaborate, formatDiagnostic, readNetlistFile, runSampleNetlistFile, spreadNetlistFile,
-  type Diagnostic, type ModelSampling, type SpreadResult,
+  type Diagnostic, type ModelSampling, type SpreadOptions, type SpreadResult,
 } from '@railcheck/core';
 import { match } from 'ts-pattern';
 import { flagHelp, parseArgs, type FlagSpec } from '../args.js';
@@ -89,64 +89,52 @@ export function modelSamplingOption(text: string): { ok: true; value: ModelSampl
 
 /** What the options of `spread` say, read and checked. */
 interface SpreadArgs {
-  readonly file: string;
-  readonly runs?: number;
-  readonly seed?: number;
-  readonly corners: boolean;
-  readonly temperatures?: number[];
-  readonly modelSampling?: ModelSampling;
-  readonly percentiles?: number[];
+  readonly options: Pick<SpreadOptions, 'method' | 'runs' | 'seed' | 'temperatures' | 'modelSampling' | 'percentiles' | 'jobs' | 'shard'>;
   readonly histograms: HistogramChoice;
   readonly json: boolean;
   readonly allRuns: boolean;
-  readonly jobs?: number;
-  readonly shard?: { index: number; count: number };
-  readonly allowOutsideIncludes: boolean;
 }
 
 type Read<T> = { ok: true; value: T } | { ok: false; message: string };
 
+/** An option's value read by `parse`, or undefined when the option is not given. */
+function optional<T>(flags: ReadonlyMap<string, string | true>, name: string, parse: (text: string) => Read<T>): Read<T | undefined> {
+  const v = flags.get(name);
+  return typeof v === 'string' ? parse(v) : { ok: true, value: undefined };
+}
+
+/** `--temp LIST`: temperatures in °C above absolute zero. */
+const temperaturesOption = (t: string): Read<number[]> => numberList('temp', t, (x) => x > -273.15, 'a temperature in °C above absolute zero');
+/** `--seed S`: a whole number ≥ 0. */
+const seedOption = (t: string): Read<number> => wholeNumber('seed', t, 0, 'a whole number, 0 or more');
+
 /** Reads every option of `spread`; the first mistake as a message. */
-function readSpreadArgs(file: string, flags: ReadonlyMap<string, string | true>): Read<SpreadArgs> {
-  const text = (name: string): string | undefined => {
-    const v = flags.get(name);
-    return typeof v === 'string' ? v : undefined;
-  };
-  const read: Record<string, Read<unknown> | undefined> = {};
-  const runsText = text('runs');
-  const seedText = text('seed');
-  const jobsText = text('jobs');
-  const shardText = text('shard');
-  const tempText = text('temp');
-  const modelText = text('model-sampling');
-  const pctText = text('percentiles');
-  const histText = text('histograms');
-  if (runsText !== undefined) read['runs'] = wholeNumber('runs', runsText, 1, 'a whole number of runs, 1 or more');
-  if (seedText !== undefined) read['seed'] = wholeNumber('seed', seedText, 0, 'a whole number, 0 or more');
-  if (jobsText !== undefined) read['jobs'] = wholeNumber('jobs', jobsText, 1, 'a whole number of threads, 1 or more');
-  if (shardText !== undefined) read['shard'] = shardOption(shardText);
-  if (tempText !== undefined) read['temperatures'] = numberList('temp', tempText, (x) => x > -273.15, 'a temperature in °C above absolute zero');
-  if (modelText !== undefined) read['modelSampling'] = modelSamplingOption(modelText);
-  if (pctText !== undefined) read['percentiles'] = numberList('percentiles', pctText, (x) => x >= 0 && x <= 100, 'a percentile from 0 to 100');
-  if (histText !== undefined) read['histograms'] = histText === 'limits' || histText === 'all' ? { ok: true, value: histText } : { ok: false, message: `--histograms ${histText}: expected limits or all` };
-  for (const r of Object.values(read)) if (r && !r.ok) return r;
-  if (flags.has('corners') && runsText !== undefined) return { ok: false, message: '--runs cannot be given with --corners: the corner design fixes the number of runs' };
-  if (flags.has('corners') && seedText !== undefined) return { ok: false, message: '--seed cannot be given with --corners: corners are not drawn at random' };
+function readSpreadArgs(flags: ReadonlyMap<string, string | true>): Read<SpreadArgs> {
+  const runs = optional(flags, 'runs', (t) => wholeNumber('runs', t, 1, 'a whole number of runs, 1 or more'));
+  const seed = optional(flags, 'seed', seedOption);
+  const jobs = optional(flags, 'jobs', (t) => wholeNumber('jobs', t, 1, 'a whole number of threads, 1 or more'));
+  const shard = optional(flags, 'shard', shardOption);
+  const temperatures = optional(flags, 'temp', temperaturesOption);
+  const modelSampling = optional(flags, 'model-sampling', modelSamplingOption);
+  const percentiles = optional(flags, 'percentiles', (t) => numberList('percentiles', t, (x) => x >= 0 && x <= 100, 'a percentile from 0 to 100'));
+  const histograms = optional(flags, 'histograms', (t): Read<HistogramChoice> => (t === 'limits' || t === 'all' ? { ok: true, value: t } : { ok: false, message: `--histograms ${t}: expected limits or all` }));
+  for (const r of [runs, seed, jobs, shard, temperatures, modelSampling, percentiles, histograms]) if (!r.ok) return r;
+  // Every option read well (above): its value, or undefined when not given.
+  const val = <T>(r: Read<T | undefined>): T | undefined => (r.ok ? r.value : undefined);
+  const corners = flags.has('corners');
+  if (corners && val(runs) !== undefined) return { ok: false, message: '--runs cannot be given with --corners: the corner design fixes the number of runs' };
+  if (corners && val(seed) !== undefined) return { ok: false, message: '--seed cannot be given with --corners: corners are not drawn at random' };
   if (flags.has('all-runs') && !flags.has('json')) return { ok: false, message: '--all-runs needs --json (every run\'s figures go into the JSON; the text report lists the runs that matter)' };
-  const value = <T>(name: string): T | undefined => {
-    const r = read[name];
-    return r && r.ok ? (r.value as T) : undefined;
+  const given = { runs: val(runs), seed: val(seed), jobs: val(jobs), shard: val(shard), temperatures: val(temperatures), modelSampling: val(modelSampling), percentiles: val(percentiles) };
+  return {
+    ok: true,
+    value: {
+      options: { method: corners ? 'corners' : 'monte-carlo', ...Object.fromEntries(Object.entries(given).filter(([, v]) => v !== undefined)) },
+      histograms: val(histograms) ?? 'limits',
+      json: flags.has('json'),
+      allRuns: flags.has('all-runs'),
+    },
   };
-  const args: SpreadArgs = {
-    file,
-    corners: flags.has('corners'),
-    histograms: value<HistogramChoice>('histograms') ?? 'limits',
-    json: flags.has('json'),
-    allRuns: flags.has('all-runs'),
-    allowOutsideIncludes: flags.has('allow-outside-includes'),
-    ...Object.fromEntries(['runs', 'seed', 'jobs', 'shard', 'temperatures', 'modelSampling', 'percentiles'].flatMap((n) => (value(n) === undefined ? [] : [[n, value(n)]]))),
-  };
-  return { ok: true, value: args };
 }
 
 /** A progress display on standard error: a bar on a terminal, else a plain line every {@link PROGRESS_LINE_SECONDS} s. */
@@ -250,26 +238,19 @@ export async function spreadCommand(argv: readonly string[], io: CliIo): Promise
     io.err(`railcheck spread: expected one netlist FILE${positionals.length ? `, got ${positionals.length}: ${positionals.join(' ')}` : ''}\n\n${SPREAD_HELP}`);
     return EXIT_ERROR;
   }
-  const read = readSpreadArgs(positionals[0]!, flags);
+  const read = readSpreadArgs(flags);
   if (!read.ok) {
     io.err(`railcheck spread: ${read.message}`);
     return EXIT_ERROR;
   }
   const a = read.value;
   const shown = await progress(io.err);
-  const outcome = await spreadNetlistFile(a.file, {
-    method: a.corners ? 'corners' : 'monte-carlo',
-    ...(a.runs !== undefined ? { runs: a.runs } : {}),
-    ...(a.seed !== undefined ? { seed: a.seed } : {}),
-    ...(a.temperatures !== undefined ? { temperatures: a.temperatures } : {}),
-    ...(a.modelSampling !== undefined ? { modelSampling: a.modelSampling } : {}),
-    ...(a.percentiles !== undefined ? { percentiles: a.percentiles } : {}),
-    ...(a.jobs !== undefined ? { jobs: a.jobs } : {}),
-    ...(a.shard !== undefined ? { shard: a.shard } : {}),
+  const outcome = await spreadNetlistFile(positionals[0]!, {
+    ...a.options,
     // Every run is kept: the text report draws its histograms and lists the runs not measured from them.
     allRuns: true,
     onProgress: shown.tick,
-    parse: { allowOutsideIncludes: a.allowOutsideIncludes },
+    parse: { allowOutsideIncludes: flags.has('allow-outside-includes') },
   });
   shown.stop();
   if (!outcome.ok) {
@@ -305,9 +286,9 @@ export function sampleCommand(file: string, flags: ReadonlyMap<string, string | 
   const runText = text('sample')!;
   const run = wholeNumber('sample', runText, 0, 'a run number, 0 or more, as the spread report gives it');
   const seedText = text('seed');
-  const seed = seedText === undefined ? undefined : wholeNumber('seed', seedText, 0, 'a whole number, 0 or more');
+  const seed = seedText === undefined ? undefined : seedOption(seedText);
   const tempText = text('temp');
-  const temps = tempText === undefined ? undefined : numberList('temp', tempText, (x) => x > -273.15, 'a temperature in °C above absolute zero');
+  const temps = tempText === undefined ? undefined : temperaturesOption(tempText);
   const modelText = text('model-sampling');
   const model = modelText === undefined ? undefined : modelSamplingOption(modelText);
   for (const r of [run, seed, temps, model]) {
