@@ -324,7 +324,8 @@ function temperatureText(t: SpreadTemperature, k: number, r: SpreadResult, histo
   const limited = new Set(t.limits.map((l) => l.figure.toLowerCase()));
   for (const f of t.figures) {
     parts.push(figureStats(f, r));
-    if (histograms === 'all' || limited.has(f.name.toLowerCase())) {
+    // A figure the same in every run has nothing to draw: its line says the value.
+    if ((histograms === 'all' || limited.has(f.name.toLowerCase())) && !sameInEveryRun(f)) {
       const values = valuesOf(r, k, f.name);
       if (values && values.length > 0) parts.push(histogramText(values, f, t.limits));
     }
