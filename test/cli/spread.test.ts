@@ -370,6 +370,11 @@ describe('railcheck spread on a divider', () => {
     expect(r.status).toBe(0);
     const head = r.out.split('\n').slice(0, 4).join('\n');
     expect(head).toMatch(/caution: .*extra-low voltage/);
+    // The repeat of one run carries it too, under its header.
+    const again = await cli(['run', file, '--sample', '0']);
+    expect(again.out.split('\n').slice(0, 6).join('\n')).toMatch(/caution: .*extra-low voltage/);
+    const below = await cli(['run', netlistFile(divider()), '--sample', '0']);
+    expect(below.out).not.toContain('caution');
   });
 
   test('run on a netlist with .spread lines notes that railcheck spread reads them', async () => {

@@ -7,8 +7,8 @@
  * not run at all, 2 for a netlist error or a usage error.
  */
 import {
-  DEFAULT_MAX_CORNER_RUNS, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, elaborate, formatDiagnostic, readNetlistFile, runSampleNetlistFile, spreadNetlistFile,
-  type Diagnostic, type ModelSampling, type SpreadOptions, type SpreadResult,
+  DEFAULT_MAX_CORNER_RUNS, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, elaborate, formatDiagnostic, readNetlistFile, runNetlistFile, runSampleNetlistFile, spreadNetlistFile,
+  type Diagnostic, type FlatCircuit, type ModelSampling, type SpreadOptions, type SpreadResult,
 } from '@railcheck/core';
 import { match } from 'ts-pattern';
 import { flagHelp, parseArgs, type FlagSpec } from '../args.js';
@@ -271,6 +271,13 @@ export const SAMPLE_FLAGS: readonly FlagSpec[] = [
   { name: 'temp', takesValue: true, valueName: 'LIST', help: 'with --sample: temperatures in °C, comma-separated (default: the netlist\'s .temp list)' },
 ];
 
+/** The netlist elaborated (for its limits when its nominal run fails), or undefined when it does not read or elaborate. */
+function elaborated(file: string, allowOutsideIncludes: boolean): FlatCircuit | undefined {
+  const parsed = readNetlistFile(file, { allowOutsideIncludes });
+  const flat = parsed.ok ? elaborate(parsed.netlist) : undefined;
+  return flat?.ok ? flat.circuit : undefined;
+}
+
 /**
  * `railcheck run FILE --sample RUN [--seed S] [--corners] [--model-sampling M] [--temp LIST]`:
  * one run of a spread repeated, with the same sampled values and so the same
@@ -318,15 +325,17 @@ export function sampleCommand(file: string, flags: ReadonlyMap<string, string | 
     printErrors(io, 'run', outcome.errors, outcome.warnings);
     return EXIT_ERROR;
   }
-  const parsed = readNetlistFile(file, { allowOutsideIncludes: flags.has('allow-outside-includes') });
-  const flat = parsed.ok ? elaborate(parsed.netlist) : undefined;
-  const limits: SampleLimit[] = flat?.ok ? flat.circuit.limits.map((l) => ({ figure: l.figure, op: l.op, value: l.value })) : [];
+  // The nominal run, as spread makes it: its limits, and the mains caution judged on what it reaches (the sample's outcome carries neither).
+  const nominal = runNetlistFile(file, { allowOutsideIncludes: flags.has('allow-outside-includes') });
+  const circuit = nominal.ok ? nominal.report.circuit : elaborated(file, flags.has('allow-outside-includes'));
+  const limits: SampleLimit[] = (circuit?.limits ?? []).map((l) => ({ figure: l.figure, op: l.op, value: l.value }));
+  const caution = (nominal.ok ? nominal.report.warnings : nominal.warnings).find((w) => w.code === 'above-elv')?.message ?? null;
   const judged = judgeSample(outcome.run, limits);
   const origin = corners ? `run ${index} of a corner spread (row ${index} of the design)` : `run ${index} of a Monte Carlo spread with seed ${seed?.ok ? seed.value : DEFAULT_SPREAD_SEED}`;
   if (flags.has('json')) {
-    io.out(JSON.stringify({ title: outcome.title, file, method: options.method, seed: corners ? null : (seed?.ok ? seed.value : DEFAULT_SPREAD_SEED), run: index, sample: outcome.sample, at: outcome.run.at, limits: judged.map((l) => ({ celsius: l.celsius, figure: l.limit.figure, op: l.limit.op, value: l.limit.value, status: l.status, actual: 'actual' in l ? l.actual : null, ...('reason' in l ? { reason: l.reason } : {}) })), warnings: outcome.warnings.map((w) => formatDiagnostic({ ...w, severity: 'warning' }).split('\n')[0]!) }, null, 2));
+    io.out(JSON.stringify({ title: outcome.title, file, caution, method: options.method, seed: corners ? null : (seed?.ok ? seed.value : DEFAULT_SPREAD_SEED), run: index, sample: outcome.sample, at: outcome.run.at, limits: judged.map((l) => ({ celsius: l.celsius, figure: l.limit.figure, op: l.limit.op, value: l.limit.value, status: l.status, actual: 'actual' in l ? l.actual : null, ...('reason' in l ? { reason: l.reason } : {}) })), warnings: outcome.warnings.map((w) => formatDiagnostic({ ...w, severity: 'warning' }).split('\n')[0]!) }, null, 2));
   } else {
-    io.out(sampleRunText({ title: outcome.title, file, origin, variables: outcome.variables, sample: outcome.sample, run: outcome.run, limits: judged }));
+    io.out(sampleRunText({ title: outcome.title, file, origin, caution, variables: outcome.variables, sample: outcome.sample, run: outcome.run, limits: judged }));
     const notes = formatWarnings(outcome.warnings);
     if (notes) io.out(notes);
   }

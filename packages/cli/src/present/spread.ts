@@ -442,6 +442,8 @@ export interface SampleReport {
   readonly file: string;
   /** How the run was made, in words: `run 417 of a Monte Carlo spread with seed 42`. */
   readonly origin: string;
+  /** The mains caution of the stage (with where it is reached), or null below extra-low voltage. */
+  readonly caution: string | null;
   readonly variables: readonly SpreadVariable[];
   readonly sample: readonly SampledValue[];
   readonly run: SpreadRun;
@@ -449,13 +451,15 @@ export interface SampleReport {
 }
 
 /**
- * The text of one run of a spread repeated: the sampled values, the figure
+ * The text of one run of a spread repeated: the mains caution when the
+ * stage is above extra-low voltage, the sampled values, the figure
  * values at each temperature (with the same units and digits as the spread
  * report, so a worst unit's value reads the same), what was not measured
  * and why, and the limits with pass or FAIL.
  */
 export function sampleRunText(s: SampleReport): string {
   const parts = [`railcheck — ${s.title || '(untitled)'}`, `  netlist ${s.file}`, `  ${s.origin}`, ''];
+  if (s.caution) parts.push(`caution: ${s.caution}`, '');
   const rows = [['spread', 'value', 'from nominal', 'nominal']];
   for (const v of s.sample) {
     const variable = s.variables.find((x) => x.name === v.name);
