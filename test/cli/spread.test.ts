@@ -15,6 +15,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { beforeAll, describe, expect, test } from 'vitest';
 import { cli, freshDir, netlistFile, STACK_LINE } from './support.js';
+import { progressLine } from '../../packages/cli/src/commands/spread.js';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
 const bundle = join(root, 'packages/cli/dist/railcheck.mjs');
@@ -295,6 +296,18 @@ describe('railcheck spread on a divider', () => {
     expect(rows).toHaveLength(8);
     expect(counts.reduce((a, b) => a + b, 0)).toBe(120);
     expect(rows.filter((l) => l.includes('◀ limit <= 260 mV/V'))).toHaveLength(1);
+    // --histograms all: also the figures without a limit (line.delta), with the same bins; line.pct_per_v, the same
+    // in every run (the divider's ratio cancels), has none.
+    const all = await cli(['spread', file, '--runs', '120', '--histograms', 'all', '--jobs', '1']);
+    const drawn = all.out.split('\n').filter((l) => /^ {6}\S.* – .*\s\d+(?: {2}◀ .*)?$/.test(l));
+    expect(drawn).toHaveLength(16);
+    expect(all.out).toMatch(/line\.pct_per_v — 120 runs, 8\.333 %\/V in every run/);
+  });
+
+  test('the plain progress line reads as the issue asks: runs done, rate, time left', () => {
+    // 400 of 1000 runs in 400/38 s: 38 runs/s, 600 runs left take 15.8 s, said as about 16 s.
+    expect(progressLine(400, 1000, 400 / 38)).toBe('spread: 400/1000 runs, 38 runs/s, about 16 s left');
+    expect(progressLine(0, 1000, 0)).toBe('spread: 0/1000 runs, 0 runs/s, time left not known yet');
   });
 
   test('--corners: 2^2 = 4 runs for two spreads, 2^3 = 8 for three, the design named, each row at the ends', async () => {
