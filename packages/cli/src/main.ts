@@ -79,7 +79,7 @@ usage:
                                   tolerance run over the .spread lines: yield per limit, statistics, worst units
   railcheck check PATH... [--baseline FILE] [--update-baseline] [--junit FILE] [--jobs N] [--shard K/N]
                                   regression run of saved netlists (files or folders of *.cir)
-  railcheck merge SHARD.json... [--junit FILE]
+  railcheck merge SHARD.json... [--junit FILE] [--json]
                                   combine the --json results of check's or spread's shards into one report
   railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
   railcheck --version             print the version (also -V)

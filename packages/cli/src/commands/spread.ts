@@ -20,7 +20,7 @@ const SPREAD_FLAGS: readonly FlagSpec[] = [
   { name: 'runs', short: 'n', takesValue: true, valueName: 'N', help: `Monte Carlo runs (default ${DEFAULT_SPREAD_RUNS})` },
   { name: 'seed', takesValue: true, valueName: 'S', help: `seed of the random draws, a whole number (default ${DEFAULT_SPREAD_SEED}); the same seed gives the same report` },
   { name: 'corners', takesValue: false, help: `every spread at both ends instead of random draws: all 2^k corners, or a two-level fractional factorial design when 2^k exceeds ${DEFAULT_MAX_CORNER_RUNS}` },
-  { name: 'temp', takesValue: true, valueName: 'LIST', help: 'temperatures in °C, comma-separated (default: the netlist\'s .temp list, else 27)' },
+  { name: 'temp', takesValue: true, valueName: 'LIST', help: 'temperatures in °C, comma-separated (default: the netlist\'s .temp list, else 27); --temp=-20,27 for a list that starts below 0' },
   { name: 'model-sampling', takesValue: true, valueName: 'each|lot', help: 'a model spread whose line names no mode: each part draws its own value (each, the default) or all parts of the model share one per run (lot)' },
   { name: 'percentiles', takesValue: true, valueName: 'LIST', help: `percentiles to report, comma-separated, each 0 to 100 (default ${DEFAULT_SPREAD_PERCENTILES.join(',')})` },
   { name: 'histograms', takesValue: true, valueName: 'limits|all', help: 'draw a histogram for the figures with a limit (limits, the default) or for every figure (all)' },
