@@ -161,6 +161,10 @@ function checkValues(fn: string, values: unknown): asserts values is readonly nu
 /**
  * Summary statistics of finite values: count, min, max, mean and sample standard deviation by Welford's online algorithm (Welford, Technometrics 4, 1962; Knuth, TAOCP vol. 2, §4.2.2), and percentiles by Hyndman & Fan (1996) definition 7.
  *
+ * Welford's recurrence runs on the values less the first (shifted data,
+ * Chan, Golub & LeVeque, The American Statistician 37, 1983), so values
+ * far from zero and close together keep their spread to full precision.
+ *
  * Definition 7 (linear interpolation): with the values sorted x[0..n−1] and
  * h = (n − 1)·p/100, the percentile is x[⌊h⌋] + (h − ⌊h⌋)·(x[⌊h⌋+1] − x[⌊h⌋]).
  * Percentile keys are the numbers given written as strings (String(p):
@@ -182,27 +186,56 @@ export function summarise(values: readonly number[], percentiles: readonly numbe
     const p: unknown = percentiles[i];
     if (typeof p !== 'number' || !(p >= 0 && p <= 100)) throw argumentError('summarise', `percentiles[${i}]`, 'a number from 0 to 100', p);
   }
-  let mean = 0;
-  let m2 = 0;
   let min = Infinity;
   let max = -Infinity;
+  for (const v of values) {
+    if (v < min) min = v;
+    if (v > max) max = v;
+  }
+  const n = values.length;
+  const [mean, m2] = welford(values, 1);
+  const std = n > 1 ? Math.sqrt(m2 / (n - 1)) : 0;
+  if (Number.isFinite(mean) && Number.isFinite(std)) return finish(values, percentiles, min, max, mean, std);
+  // deviations beyond the largest double: again on the values scaled by 2^-600 (exact for all
+  // but values below 2^-474, negligible beside these), scaled back, std held to the largest double
+  const [meanScaled, m2Scaled] = welford(values, 2 ** -600);
+  const stdScaled = n > 1 ? Math.sqrt(m2Scaled / (n - 1)) : 0;
+  return finish(values, percentiles, min, max, meanScaled * 2 ** 600, Math.min(Number.MAX_VALUE, stdScaled * 2 ** 600));
+}
+
+/**
+ * Welford's recurrence for the mean and the sum of squared deviations M2 of values·scale,
+ * run on the values less the first one (the shifted data of Chan, Golub & LeVeque, The
+ * American Statistician 37, 1983): values close together, such as 1e9 + small changes,
+ * then keep their differences exactly.
+ */
+function welford(values: readonly number[], scale: number): [mean: number, m2: number] {
+  const shift = values[0]! * scale;
+  let mean = 0;
+  let m2 = 0;
   for (let i = 0; i < values.length; i++) {
-    const x = values[i]!;
+    const x = values[i]! * scale - shift;
     const delta = x - mean;
     mean += delta / (i + 1);
     m2 += delta * (x - mean);
-    if (x < min) min = x;
-    if (x > max) max = x;
   }
+  return [mean + shift, m2];
+}
+
+/** The percentiles (Hyndman & Fan definition 7) and the summary. */
+function finish(values: readonly number[], percentiles: readonly number[], min: number, max: number, mean: number, std: number): Summary {
   const n = values.length;
-  const std = n > 1 ? Math.sqrt(m2 / (n - 1)) : 0;
   const sorted = Float64Array.from(values).sort();
   const out: Record<string, number> = {};
   for (const p of percentiles) {
     const h = ((n - 1) * p) / 100;
     const lo = Math.floor(h);
     const hi = Math.min(lo + 1, n - 1);
-    out[String(p)] = sorted[lo]! + (h - lo) * (sorted[hi]! - sorted[lo]!);
+    const a = sorted[lo]!;
+    const b = sorted[hi]!;
+    const f = h - lo;
+    const d = b - a;
+    out[String(p)] = f === 0 ? a : Number.isFinite(d) ? a + f * d : a * (1 - f) + b * f;
   }
   // the mean of values all equal can drift by an ulp; keep it inside [min, max]
   return { count: n, min, max, mean: Math.min(max, Math.max(min, mean)), std, percentiles: out };
@@ -301,7 +334,7 @@ const MAX_BINS = 100_000;
  *
  * @param values - the values, finite, at least one
  * @param bins - the number of bins, an integer from 1 to 100000; default Sturges' rule
- * @returns the bins+1 edges, ascending, and the bins counts, which sum to the number of values
+ * @returns the bins+1 edges, non-decreasing (equal only for a span of a few ulps), and the bins counts, which sum to the number of values
  * @throws RailcheckError `bad-argument` on an empty list, a non-finite value or a wrong bin count
  */
 export function histogram(values: readonly number[], bins?: number): { readonly edges: readonly number[]; readonly counts: readonly number[] } {
@@ -315,11 +348,13 @@ export function histogram(values: readonly number[], bins?: number): { readonly 
   }
   if (min === max) return { edges: [min, max], counts: [values.length] };
   const k = bins ?? Math.ceil(Math.log2(values.length)) + 1;
-  const span = max - min;
-  const edges = Array.from({ length: k + 1 }, (_, i) => (i === k ? max : min + (span * i) / k));
+  // halves when the span passes the largest double (values near ±1.8e308); halving is exact for these
+  const half = Number.isFinite(max - min) ? 1 : 0.5;
+  const span = max * half - min * half;
+  const edges = Array.from({ length: k + 1 }, (_, i) => (i === 0 ? min : i === k ? max : (min * half + (span * i) / k) / half));
   const counts = new Array<number>(k).fill(0);
   for (const v of values) {
-    let i = Math.min(k - 1, Math.floor(((v - min) / span) * k));
+    let i = Math.max(0, Math.min(k - 1, Math.floor(((v * half - min * half) / span) * k)));
     // the edges are rounded: move to the bin whose edges hold v
     while (i > 0 && v < edges[i]!) i--;
     while (i < k - 1 && v >= edges[i + 1]!) i++;
