@@ -34,14 +34,16 @@ for (const f of readdirSync(join(root, 'examples'))) {
 await Promise.all([
   build({ ...common, entryPoints: [join(pkg('devices'), 'src/index.ts')], outfile: join(pkg('devices'), 'dist/index.js'), packages: 'external' }),
   // index and internal share one chunk, so both entry points see the same classes and tables.
-  // check-worker.js sits beside the chunk that starts it (new URL('./check-worker.js', import.meta.url) in pipeline/check.ts).
-  build({ ...common, entryPoints: [join(pkg('core'), 'src/index.ts'), join(pkg('core'), 'src/internal.ts'), { in: join(pkg('core'), 'src/pipeline/check-worker.ts'), out: 'check-worker' }], outdir: join(pkg('core'), 'dist'),
+  // check-worker.js and spread-worker.js sit beside the chunk that starts them (new URL('./check-worker.js', import.meta.url) in pipeline/check.ts, spread-worker.js in pipeline/spread.ts).
+  build({ ...common, entryPoints: [join(pkg('core'), 'src/index.ts'), join(pkg('core'), 'src/internal.ts'), { in: join(pkg('core'), 'src/pipeline/check-worker.ts'), out: 'check-worker' }, { in: join(pkg('core'), 'src/pipeline/spread-worker.ts'), out: 'spread-worker' }], outdir: join(pkg('core'), 'dist'),
     splitting: true, chunkNames: 'chunk-[hash]', external: ['ts-pattern'] }),
   build({ ...common, entryPoints: [join(pkg('cli'), 'src/index.ts')], outfile: join(pkg('cli'), 'dist/index.js'), external: ['ts-pattern', 'cli-progress'] }),
   build({ ...common, entryPoints: [join(pkg('cli'), 'src/main.ts')], outfile: join(pkg('cli'), 'dist/railcheck.mjs'), external: ['ts-pattern', 'cli-progress'],
     banner: { js: '#!/usr/bin/env node' } }),
   // The worker of `railcheck check --jobs N`, beside railcheck.mjs.
   build({ ...common, entryPoints: [join(pkg('core'), 'src/pipeline/check-worker.ts')], outfile: join(pkg('cli'), 'dist/check-worker.js'), external: ['ts-pattern'] }),
+  // The worker of `railcheck spread --jobs N`, beside railcheck.mjs.
+  build({ ...common, entryPoints: [join(pkg('core'), 'src/pipeline/spread-worker.ts')], outfile: join(pkg('cli'), 'dist/spread-worker.js'), external: ['ts-pattern'] }),
 ]);
 
 const tsc = join(root, 'node_modules', 'typescript', 'bin', 'tsc');

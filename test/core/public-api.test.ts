@@ -18,6 +18,8 @@ const PUBLIC_VALUES = [
   'runNetlist', 'runNetlistFile', 'prepare',
   'compareNetlists', 'compareNetlistFiles', 'SAME_VALUE_RTOL', 'SAME_FIGURE_RTOL',
   'checkNetlists', 'mergeCheckResults', 'DEFAULT_TOLERANCES', 'readBaseline',
+  'spreadNetlist', 'spreadNetlistFile', 'histogram', 'mergeSpreadResults', 'runSampleNetlist', 'runSampleNetlistFile',
+  'SPREAD_FORMAT', 'SPREAD_VERSION', 'DEFAULT_SPREAD_RUNS', 'DEFAULT_SPREAD_SEED', 'DEFAULT_SPREAD_PERCENTILES', 'DEFAULT_SPREAD_CONFIDENCE', 'DEFAULT_MAX_CORNER_RUNS',
   'sampleTrace', 'acceptedTimes', 'phasorDb', 'phasorDeg',
   'MAINS_CAUTION', 'ELV_AC_RMS', 'ELV_DC', 'formatSI',
   'FIGURES', 'FIGURE_KIND_INFO', 'FIGURE_KINDS', 'BENCH_KINDS', 'figureEntry', 'figureKindOf', 'figureUnit',

@@ -1,11 +1,12 @@
 /**
- * The `railcheck` command. Exit status (figures.md, docs/output.md): 0
+ * The `railcheck` command. Exit status of run (figures.md, docs/output.md): 0
  * when every limit passes, 1 when a limit fails, 2 when the netlist has an
  * error, an analysis fails, or a limit could not be evaluated because its
  * figure was not measured (the messages on standard error; in that last
  * case the report is still printed). A figure not measured without a limit
- * on it is a note in the report and leaves the status alone. A user never
- * sees a stack trace.
+ * on it is a note in the report and leaves the status alone. `spread`,
+ * `check`, `merge` and `compare` say theirs in their own modules. A user
+ * never sees a stack trace.
  */
 import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
 import { match } from 'ts-pattern';
@@ -21,6 +22,7 @@ import { notEvaluatedErrors } from './present/figures.js';
 import { COMPARE_HELP, compareCommand } from './commands/compare.js';
 import { CHECK_HELP, checkCommand } from './commands/check.js';
 import { MERGE_HELP, mergeCommand } from './commands/merge.js';
+import { SAMPLE_FLAGS, SPREAD_HELP, sampleCommand, spreadCommand } from './commands/spread.js';
 
 /** Where output goes; tests pass their own. */
 export interface CliIo {
@@ -45,8 +47,12 @@ const RUN_FLAGS: readonly FlagSpec[] = [
   { name: 'csv', short: 'c', takesValue: true, valueName: 'OUT.csv', help: 'write the transient waveforms (time and every node) to OUT.csv' },
   { name: 'steps', short: 's', takesValue: false, help: 'with --json or --csv: every accepted time step instead of the tstep grid' },
   { name: 'allow-outside-includes', takesValue: false, help: 'let .include reach files outside the netlist\'s folder tree' },
+  ...SAMPLE_FLAGS,
   { name: 'help', short: 'h', takesValue: false, help: 'show this help' },
 ];
+
+/** Options of run that only --sample takes. */
+const SAMPLE_ONLY = SAMPLE_FLAGS.map((f) => f.name).filter((n) => n !== 'sample');
 
 const DEMO_FLAGS: readonly FlagSpec[] = [
   { name: 'json', short: 'j', takesValue: false, help: 'print the result as JSON' },
@@ -67,10 +73,14 @@ usage:
   railcheck compare ORIGINAL MODIFIED [--json]
                                   run two versions of a stage under the same conditions, side by side
   railcheck demo [--json]         run the built-in example stage
+  railcheck run FILE --sample RUN [--seed S]
+                                  repeat one run of a spread with its sampled values
+  railcheck spread FILE [--runs N] [--seed S] [--corners] [--temp LIST] [--json [--all-runs]] [--jobs N] [--shard K/N]
+                                  tolerance run over the .spread lines: yield per limit, statistics, worst units
   railcheck check PATH... [--baseline FILE] [--update-baseline] [--junit FILE] [--jobs N] [--shard K/N]
                                   regression run of saved netlists (files or folders of *.cir)
-  railcheck merge SHARD.json... [--junit FILE]
-                                  combine the --json results of check's shards into one report
+  railcheck merge SHARD.json... [--junit FILE] [--json]
+                                  combine the --json results of check's or spread's shards into one report
   railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
   railcheck --version             print the version (also -V)
 
@@ -78,14 +88,19 @@ Paths are read from the folder you are in.
 
 exit status of run, compare and demo: 0 all limits pass, 1 a limit failed, 2 a netlist has an error, an analysis failed
 or a limit could not be evaluated (its figure was not measured).
-check and merge: 0 every netlist passed, 1 any failed, 2 a usage error.
+spread: 0 every limit passes in every run, 1 a run fails a limit, misses its figure or does not run, 2 a netlist
+or usage error.
+check and merge: 0 every netlist passed, 1 any failed, 2 a usage error (merge of spread shards: as spread).
 The netlist language is described in docs/netlist.md.`;
 
 const RUN_HELP = `usage: railcheck run FILE [options]
 
 Reads FILE, simulates every analysis it asks for at every .temp temperature,
 and prints the operating point (node voltages, element currents, dissipation),
-DC sweeps and the notes found on the way.
+DC sweeps and the notes found on the way. With --sample RUN it repeats run
+RUN of railcheck spread FILE instead (give the spread's --seed, or
+--corners, as its report's repeat line does): the sampled values, the
+figures at each temperature and the limits.
 
 options:
 ${flagHelp(RUN_FLAGS)}`;
@@ -191,6 +206,15 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
     io.out(demo ? DEMO_HELP : RUN_HELP);
     return EXIT_OK;
   }
+  const without = SAMPLE_ONLY.find((n) => flags.has(n));
+  if (without && !flags.has('sample')) {
+    io.err(`railcheck run: --${without} goes with --sample RUN (repeating one run of a spread)`);
+    return EXIT_ERROR;
+  }
+  if (flags.has('sample') && (flags.has('csv') || flags.has('steps'))) {
+    io.err('railcheck run: --csv and --steps do not go with --sample: a repeated run reports its sample, figures and limits');
+    return EXIT_ERROR;
+  }
   const expected = demo ? 0 : 1;
   if (positionals.length !== expected) {
     io.err(demo ? `railcheck demo: takes no file (got ${positionals.join(' ')})` : `railcheck run: expected one netlist FILE${positionals.length ? `, got ${positionals.length}: ${positionals.join(' ')}` : ''}\n\n${RUN_HELP}`);
@@ -202,6 +226,7 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
     return rel && !rel.startsWith('..') && !isAbsolute(rel) ? rel : demoPath();
   };
   const file = demo ? demoFile() : positionals[0]!;
+  if (flags.has('sample')) return sampleCommand(file, flags, io);
   const csv = flags.get('csv');
   // Refused before the run, so a long simulation is not spent on an output that cannot be written.
   const refused = typeof csv === 'string' ? refuseOutput(csv, file) : undefined;
@@ -235,9 +260,9 @@ function topOptions(argv: readonly string[], io: CliIo): number {
 /** `railcheck help [COMMAND]`: the help asked for on standard output. */
 function helpCommand(rest: readonly string[], io: CliIo): number {
   const topic = rest[0];
-  const helps: Record<string, string> = { run: RUN_HELP, compare: COMPARE_HELP, demo: DEMO_HELP, check: CHECK_HELP, merge: MERGE_HELP, help: USAGE };
+  const helps: Record<string, string> = { run: RUN_HELP, compare: COMPARE_HELP, demo: DEMO_HELP, check: CHECK_HELP, merge: MERGE_HELP, spread: SPREAD_HELP, help: USAGE };
   if (rest.length > 1 || (topic !== undefined && !Object.hasOwn(helps, topic))) {
-    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, compare, check, merge, demo or help\n\n${USAGE}`);
+    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, compare, spread, check, merge, demo or help\n\n${USAGE}`);
     return EXIT_ERROR;
   }
   io.out(topic === undefined ? USAGE : helps[topic]!);
@@ -255,18 +280,20 @@ export async function main(argv: readonly string[], io: CliIo = defaultIo): Prom
         return runCommand(rest, io, true);
       case 'compare':
         return compareCommand(rest, io);
+      case 'spread':
+        return await spreadCommand(rest, io);
       case 'check':
         return await checkCommand(rest, io);
       case 'merge':
         return mergeCommand(rest, io);
       case undefined:
-        io.err(`railcheck: no command given; expected run, compare, check, merge, demo, help or --version\n\n${USAGE}`);
+        io.err(`railcheck: no command given; expected run, compare, spread, check, merge, demo, help or --version\n\n${USAGE}`);
         return EXIT_ERROR;
       case 'help':
         return helpCommand(rest, io);
       default:
         if (command.startsWith('-')) return topOptions(argv, io);
-        io.err(`railcheck: unknown command '${command}'; expected run, compare, check, merge, demo or help\n\n${USAGE}`);
+        io.err(`railcheck: unknown command '${command}'; expected run, compare, spread, check, merge, demo or help\n\n${USAGE}`);
         return EXIT_ERROR;
     }
   } catch (e) {

@@ -44,6 +44,13 @@ export type { CheckResult, CheckOptions, CheckOutcome, NetlistCheck, CheckTest }
 export type { NetlistRun, CheckLimit } from './pipeline/check-run.js';
 export { DEFAULT_TOLERANCES, readBaseline } from './pipeline/check-baseline.js';
 export type { Baseline, BaselineEntry, BaselineRead, Tolerance } from './pipeline/check-baseline.js';
+export { histogram } from './stats.js';
+export { spreadNetlist, spreadNetlistFile, mergeSpreadResults, runSampleNetlist, runSampleNetlistFile } from './pipeline/spread.js';
+export { SPREAD_FORMAT, SPREAD_VERSION, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_CONFIDENCE, DEFAULT_MAX_CORNER_RUNS } from './pipeline/spread-types.js';
+export type {
+  SpreadOptions, SpreadOutcome, SpreadResult, SpreadTemperature, SpreadFigure, SpreadLimit, SpreadRun, SpreadRunAt, SpreadRunRef, SpreadSummary,
+  SpreadVariable, SampledValue, SpreadDesign, SpreadMethod, ModelSampling, SpreadDistribution, SampleOptions, SampleOutcome,
+} from './pipeline/spread-types.js';
 export type { OperatingPoint, DcSweep } from './analysis/dc.js';
 export { sampleTrace, acceptedTimes } from './analysis/tran.js';
 export type { TransientResult } from './analysis/tran.js';

@@ -49,6 +49,15 @@ export { compareNetlists, compareNetlistFiles, SAME_VALUE_RTOL, SAME_FIGURE_RTOL
 export { checkNetlists, mergeCheckResults, expandCheckPaths, writeCheckBaseline, CHECK_FORMAT, CHECK_VERSION } from './pipeline/check.js';
 export type { CheckResult, CheckOptions, CheckOutcome, NetlistCheck, CheckTest } from './pipeline/check.js';
 export { runForCheck, netlistRunOf } from './pipeline/check-run.js';
+export { spreadNetlist, spreadNetlistFile, mergeSpreadResults, runSampleNetlist, runSampleNetlistFile, spreadSetup, measureRun, factorsOf, MAX_SPREAD_RUNS } from './pipeline/spread.js';
+export type { SpreadSetup } from './pipeline/spread.js';
+export { SPREAD_FORMAT, SPREAD_VERSION, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_CONFIDENCE, DEFAULT_MAX_CORNER_RUNS } from './pipeline/spread-types.js';
+export type {
+  SpreadOptions, SpreadOutcome, SpreadResult, SpreadTemperature, SpreadFigure, SpreadLimit, SpreadRun, SpreadRunAt, SpreadRunRef, SpreadSummary,
+  SpreadVariable, SampledValue, SpreadDesign, SpreadMethod, ModelSampling, SpreadDistribution, SampleOptions, SampleOutcome,
+} from './pipeline/spread-types.js';
+export { histogram } from './stats.js';
+export { spreadVariables, monteCarloFactors, cornerFactors, sampledCircuit, sampleOf } from './pipeline/spread-sample.js';
 export type { NetlistRun, CheckLimit } from './pipeline/check-run.js';
 export { DEFAULT_TOLERANCES, readBaseline, parseBaseline, baselineText, writeFileAtomic, compareValue, BASELINE_FORMAT, BASELINE_VERSION } from './pipeline/check-baseline.js';
 export type { Baseline, BaselineEntry, BaselineRead, Tolerance } from './pipeline/check-baseline.js';

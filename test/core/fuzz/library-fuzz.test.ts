@@ -66,7 +66,7 @@ const options: fc.Arbitrary<unknown> = fc.dictionary(fc.constantFrom(...OPTION_N
 // checkNetlists is left out: it walks folders and runs every netlist in them, so a junk path such as '.' or '/' would
 // walk the machine; its argument checks are in test/core/pipeline/check.test.ts.
 const FUNCTIONS = Object.entries(core).filter(([n, v]) => typeof v === 'function' && n !== 'checkNetlists') as [string, (...a: unknown[]) => unknown][];
-const RETURNS_RESULT = new Set(['parseNetlist', 'readNetlistFile', 'elaborate', 'compileCircuit', 'runNetlist', 'runNetlistFile', 'prepare', 'compareNetlists', 'compareNetlistFiles', 'readBaseline', 'mergeCheckResults']);
+const RETURNS_RESULT = new Set(['parseNetlist', 'readNetlistFile', 'elaborate', 'compileCircuit', 'runNetlist', 'runNetlistFile', 'prepare', 'compareNetlists', 'compareNetlistFiles', 'readBaseline', 'mergeCheckResults', 'mergeSpreadResults', 'runSampleNetlist', 'runSampleNetlistFile']);
 
 /** What went wrong with one call, or undefined when it returned or threw only RailcheckError (and no internal error). */
 function callProblem(name: string, f: (...a: unknown[]) => unknown, args: readonly unknown[]): string | undefined {

@@ -172,12 +172,13 @@ const supplyCards = fc.option(fc.record({
 }).chain(({ supply, kinds }) => fc.tuple(
   fc.tuple(...kinds.map(figure)),
   fc.array(fc.tuple(fc.constantFrom(...kinds.flatMap((k) => FIG_NAMES[k] ?? []), 'line.delta'), fc.constantFrom('<', '<=', '>', '>='), value()), { maxLength: 3 }),
-  fc.array(fc.tuple(fc.constantFrom('R1', 'Cx', 'm1.BV', 'q.VAF'), ratio, fc.constantFrom('uniform', 'gauss')), { maxLength: 2 }),
+  fc.array(fc.tuple(fc.constantFrom('R1', 'Cx', 'm1.BV', 'q.VAF'), ratio, fc.constantFrom('uniform', 'gauss'), fc.constantFrom(undefined, 'each', 'lot')), { maxLength: 2 }),
 ).map(([figs, limits, spreads]) => [
   supply,
   ...figs,
   ...limits.filter(([f]) => kinds.some((k) => FIG_NAMES[k]?.includes(f))).map(([f, op, v]) => ({ ...origin, kind: 'limit', figure: f, op, value: v })),
-  ...spreads.map(([target, r, distribution]) => ({ ...origin, kind: 'spread', target, ratio: r, distribution })),
+  // each/lot (docs/spread.md) only after a model target.
+  ...spreads.map(([target, r, distribution, sampling]) => clean({ ...origin, kind: 'spread', target, ratio: r, distribution, sampling: target.includes('.') ? sampling : undefined })),
 ])), { nil: undefined });
 
 /** A whole valid netlist. */

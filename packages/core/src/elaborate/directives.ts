@@ -150,7 +150,7 @@ export function resolveDirectives(
       })
       .with({ kind: 'limit' }, (c) => limits.push({ origin: c, figure: c.figure, op: c.op, value: num(c.value) }))
       .with({ kind: 'spread' }, (c) => {
-        const spread: FlatSpread = { origin: c, target: c.target.toLowerCase(), ratio: num(c.ratio), distribution: c.distribution };
+        const spread: FlatSpread = { origin: c, target: c.target.toLowerCase(), ratio: num(c.ratio), distribution: c.distribution, sampling: c.sampling };
         checkSpread(ev, c, spread, names, top, spreadTargets);
         spreads.push(spread);
       })

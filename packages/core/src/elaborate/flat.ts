@@ -87,6 +87,8 @@ export interface FlatSpread {
   readonly target: string;
   readonly ratio: number;
   readonly distribution: 'uniform' | 'gauss';
+  /** For a `model.PARAM` target: `each` element draws its own factor, `lot` one for all; undefined when the line names none (the spread's option decides; docs/spread.md). */
+  readonly sampling: 'each' | 'lot' | undefined;
 }
 
 /** A top-level `.param` value after evaluation (the last assignment of a name wins, as in elaboration). */

@@ -17,6 +17,7 @@ import { createBench } from './create-bench.js';
 import { dropout, type Dropout } from './dropout.js';
 import { measureFigure, type FigureValues } from './figure-values.js';
 import { COMPILED_CIRCUITS } from '../engine/compile.js';
+import { checkOptions } from '../arguments.js';
 
 export type { FigureValues };
 
@@ -256,10 +257,16 @@ export function isSineFed(c: CompiledCircuit): boolean {
   return input?.kind === 'vsource' && input.spec.waveform?.kind === 'sin';
 }
 
+/** Options of {@link measureFigures}. */
+export interface MeasureOptions {
+  /** Temperature of the measurement, °C (default: the circuit's first `.temp`, 27 °C without one). */
+  readonly celsius?: number | undefined;
+}
+
 /**
  * Measures every figure of the compiled circuit's netlist on one bench
  * (create-bench.ts: a circuit of its own, at the first `.temp`
- * temperature) and checks its limits. The caller's circuit is not changed.
+ * temperature or at `options.celsius`) and checks its limits. The caller's circuit is not changed.
  * A figure that cannot be measured (its measurement throws RailcheckError)
  * is reported as not measured with the reason, and the others are still
  * measured; when the bench's nominal point cannot be solved, no figure is
@@ -267,8 +274,9 @@ export function isSineFed(c: CompiledCircuit): boolean {
  * are `not-evaluated`. Throws RailcheckError only for a limit on a value
  * no figure produces (a netlist error).
  */
-export function measureFigures(c: CompiledCircuit): FigureReport {
+export function measureFigures(c: CompiledCircuit, options: MeasureOptions = {}): FigureReport {
   COMPILED_CIRCUITS.check('measureFigures', 'c', c);
+  checkOptions('measureFigures', options, { celsius: 'finite' });
   const flat = c.flat;
   const warnings: Diagnostic[] = [];
   let bench: Bench | undefined;
@@ -277,7 +285,7 @@ export function measureFigures(c: CompiledCircuit): FigureReport {
   // A sine-fed stage gets its bench even without figures: its operating point is the nominal cycle's average.
   if (flat.figures.length > 0 || isSineFed(c)) {
     try {
-      bench = createBench(c);
+      bench = createBench(c, options.celsius === undefined ? {} : { celsius: options.celsius });
     } catch (e) {
       if (!(e instanceof RailcheckError)) throw e;
       if (flat.figures.length > 0) ({ figures: measured, reason: nominalFailure } = nominalFailed(e, flat.figures, warnings));

@@ -184,7 +184,7 @@ export type SupplyCard =
       readonly method?: 'ac' | 'tran' | 'both';
     })
   | (CardOrigin & { readonly kind: 'limit'; readonly figure: string; readonly op: LimitOp; readonly value: Value })
-  | (CardOrigin & { readonly kind: 'spread'; readonly target: string; readonly ratio: Value; readonly distribution: 'uniform' | 'gauss' });
+  | (CardOrigin & { readonly kind: 'spread'; readonly target: string; readonly ratio: Value; readonly distribution: 'uniform' | 'gauss'; /** Model spreads: `each` element its own factor, or one for the `lot`; absent: the spread's option decides (docs/spread.md). */ readonly sampling?: 'each' | 'lot' });
 
 /** `.subckt name ports [name=default ...]` ... `.ends`. */
 export interface SubcktDef extends CardOrigin {

@@ -110,9 +110,15 @@ export const SPREAD_RATIO_EXPECTED = 'a ratio > 0 and < 1 such as 5% or 0.05';
 
 const ALL_MODEL_PARAMS = [...new Set([...DIODE_PARAMS, ...BJT_PARAMS].map((p) => p.name))];
 
-/** `.spread <element>|<model>.<PARAM> <ratio> [uniform|gauss]`; a `<model>.<PARAM>` target keeps the model as written and the parameter upper-cased. */
+/**
+ * `.spread <element>|<model>.<PARAM> <ratio> [uniform|gauss] [each|lot]`; a
+ * `<model>.<PARAM>` target keeps the model as written and the parameter
+ * upper-cased. The last word (model spreads only; docs/spread.md) says
+ * whether each element of the model draws its own factor (`each`) or all
+ * share one (`lot`); without it the spread's option decides.
+ */
 export function parseSpread(c: Cursor): SupplyCard {
-  const form = '.spread <element>|<model>.<PARAM> <ratio> [uniform|gauss]';
+  const form = '.spread <element>|<model>.<PARAM> <ratio> [uniform|gauss] [each|lot]';
   const origin = c.origin();
   c.next();
   const tt = c.name('the element or model parameter', form);
@@ -131,12 +137,21 @@ export function parseSpread(c: Cursor): SupplyCard {
   const ratio = c.value('the tolerance ratio', form, { percent: true });
   if (ratio.kind === 'number' && !(ratio.value > SPREAD_RATIO.above && ratio.value < SPREAD_RATIO.below)) c.note('bad-value', `a tolerance of ${ratio.text} is out of range`, rt, SPREAD_RATIO_EXPECTED);
   let distribution: 'uniform' | 'gauss' = 'uniform';
-  if (!c.done) {
+  let sampling: 'each' | 'lot' | undefined;
+  const samplingWord = (t: { text: string } | undefined): boolean => t !== undefined && ['each', 'lot'].includes(t.text.toLowerCase());
+  if (!c.done && !samplingWord(c.peek())) {
     const dt = c.name('the distribution', 'uniform or gauss');
     const d = dt.text.toLowerCase();
-    if (d !== 'uniform' && d !== 'gauss') c.fail('syntax', `unknown distribution "${dt.text}"`, dt, 'uniform (± ratio) or gauss (ratio = 3σ)');
+    if (d !== 'uniform' && d !== 'gauss') c.fail('syntax', `unknown distribution "${dt.text}"`, dt, 'uniform (± ratio) or gauss (ratio = 3σ), then optionally each or lot');
     distribution = d;
   }
+  if (!c.done) {
+    const st = c.name('the sampling of a model spread', 'each or lot');
+    const m = st.text.toLowerCase();
+    if (m !== 'each' && m !== 'lot') c.fail('syntax', `unknown sampling "${st.text}"`, st, 'each (every element of the model draws its own factor) or lot (they share one)');
+    if (dot < 0) c.fail('syntax', `"${st.text}" applies to model spreads only: ${tt.text} is one element`, st, `${form} with each or lot after a <model>.<PARAM> target`);
+    sampling = m;
+  }
   c.expectEnd('the end of the .spread line');
-  return { ...origin, kind: 'spread', target, ratio, distribution };
+  return { ...origin, kind: 'spread', target, ratio, distribution, ...(sampling !== undefined ? { sampling } : {}) };
 }

@@ -91,7 +91,7 @@ function supply(s: SupplyCard): string {
     }
     case 'figure': return ['.figure', s.figure, ...pairs(s.keys), ...(s.method ? [`method=${s.method}`] : [])].join(' ');
     case 'limit': return `.limit ${s.figure} ${s.op} ${printValue(s.value)}`;
-    case 'spread': return `.spread ${s.target} ${printValue(s.ratio)} ${s.distribution}`;
+    case 'spread': return `.spread ${s.target} ${printValue(s.ratio)} ${s.distribution}${s.sampling !== undefined ? ` ${s.sampling}` : ''}`;
   }
 }
 

@@ -9,16 +9,15 @@
  * docs/output.md, "railcheck check", has the rules (order, shares,
  * baseline keys, tolerances).
  */
-import { existsSync, readdirSync, statSync } from 'node:fs';
+import { readdirSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { dirname, join, relative, resolve, sep } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { Worker } from 'node:worker_threads';
 import { errorAt, RailcheckError, type Diagnostic } from '../errors.js';
 import { argumentDiagnostic, isRecord } from '../arguments.js';
 import { figureUnit, type FigureUnit } from '../figure-registry.js';
 import { MAINS_CAUTION } from '../analysis/safety.js';
 import { runForCheck, type NetlistRun } from './check-run.js';
+import { runOnWorkers, workerPath } from './worker-pool.js';
 import {
   BASELINE_FORMAT, BASELINE_VERSION, baselineEntry, baselineText, compareValue, readBaseline, toleranceOf, valueText, writeFileAtomic,
   type Baseline, type BaselineEntry,
@@ -208,52 +207,6 @@ interface Job {
   readonly file: string;
 }
 
-/** Resolves the worker script; undefined when it is not there (running from the sources). */
-function workerPath(script: string | URL | undefined): string | URL | undefined {
-  const s = script ?? new URL('./check-worker.js', import.meta.url);
-  const path = s instanceof URL ? (s.protocol === 'file:' ? fileURLToPath(s) : undefined) : s;
-  return path !== undefined && existsSync(path) ? s : undefined;
-}
-
-/** Runs the jobs on `lanes` worker threads; `done` hears each run as it finishes (any order). */
-async function runOnWorkers(jobs: readonly Job[], lanes: number, script: string | URL, allowOutsideIncludes: boolean, done: (j: number, run: NetlistRun) => void): Promise<void> {
-  let next = 0;
-  const lane = async (): Promise<void> => {
-    let worker: Worker | undefined;
-    try {
-      while (next < jobs.length) {
-        const j = next++;
-        const job = jobs[j]!;
-        const w = (worker ??= new Worker(script));
-        const run = await new Promise<NetlistRun>((resolveRun) => {
-          const onMessage = (m: { run: NetlistRun }): void => {
-            w.off('error', onError);
-            w.off('exit', onExit);
-            resolveRun(m.run);
-          };
-          const fail = (why: string): void => {
-            w.off('message', onMessage);
-            w.off('error', onError);
-            w.off('exit', onExit);
-            worker = undefined;
-            resolveRun({ ok: false, errors: [`${job.file}: error: the worker thread running it stopped: ${why}`], aboveElv: false });
-          };
-          const onError = (e: Error): void => fail(e.message);
-          const onExit = (code: number): void => fail(`exit code ${code}`);
-          w.once('message', onMessage);
-          w.once('error', onError);
-          w.once('exit', onExit);
-          w.postMessage({ file: job.file, allowOutsideIncludes });
-        });
-        done(j, run);
-      }
-    } finally {
-      if (worker) await worker.terminate();
-    }
-  };
-  await Promise.all(Array.from({ length: lanes }, lane));
-}
-
 /**
  * Runs every netlist under `paths` with its limits and, with
  * `options.baseline`, compares each figure and operating-point node
@@ -347,8 +300,16 @@ async function checkChecked(paths: readonly string[], options: CheckOptions): Pr
   };
   const allow = options.allowOutsideIncludes === true;
   options.onStart?.(mine.length);
-  const script = jobs > 1 && mine.length > 1 ? workerPath(options.workerScript) : undefined;
-  if (script !== undefined) await runOnWorkers(mine, Math.min(jobs, mine.length), script, allow, done);
+  const script = jobs > 1 && mine.length > 1 ? workerPath(options.workerScript, 'check-worker.js', import.meta.url) : undefined;
+  if (script !== undefined) {
+    const pool = {
+      jobs: mine,
+      message: (job: Job) => ({ file: job.file, allowOutsideIncludes: allow }),
+      reply: (m: unknown) => (m as { run: NetlistRun }).run,
+      stopped: (job: Job, why: string): NetlistRun => ({ ok: false, errors: [`${job.file}: error: the worker thread running it stopped: ${why}`], aboveElv: false }),
+    };
+    await runOnWorkers(pool, Math.min(jobs, mine.length), script, done);
+  }
   else {
     for (let j = 0; j < mine.length; j++) {
       // Let a progress display draw between netlists.

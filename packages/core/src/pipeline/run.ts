@@ -104,15 +104,15 @@ function acDriveWarnings(flat: FlatCircuit): Diagnostic[] {
 }
 
 /**
- * The note on `.spread` lines: they are read and checked, but tolerance
- * runs (a later `railcheck spread` command) are not implemented yet, so
- * `run` does not use them. One note, at the first such line.
+ * The note on `.spread` lines: `run` simulates the nominal values only;
+ * the tolerance runs that read the lines are `railcheck spread FILE`
+ * (docs/spread.md). One note, at the first such line.
  */
 export function spreadNote(flat: FlatCircuit): Diagnostic[] {
   const first = flat.spreads[0];
   if (!first) return [];
   const n = flat.spreads.length;
-  return [warningAt('spread-not-used', `tolerance runs are not implemented yet; .spread lines are read but not used by run (${n} .spread line${n === 1 ? '' : 's'}; a later \`railcheck spread\` command will read them)`, first.origin.pos, first.origin.lineText)];
+  return [warningAt('spread-not-used', `run uses the nominal values; the ${n} .spread line${n === 1 ? '' : 's'} ${n === 1 ? 'is' : 'are'} read by \`railcheck spread ${flat.file}\` (Monte Carlo or corners with yield against the limits)`, first.origin.pos, first.origin.lineText)];
 }
 
 /**
