@@ -6,6 +6,7 @@
  * takes none, an empty value, an option given twice.
  */
 import { parseArgs as nodeParseArgs } from 'node:util';
+import { EXIT_ERROR, EXIT_OK, type CliIo } from './main.js';
 
 /** Specification of one option. */
 export interface FlagSpec {
@@ -73,4 +74,23 @@ export function flagHelp(specs: readonly FlagSpec[]): string {
   const rows = specs.map((s) => [`${s.short ? `-${s.short}, ` : '    '}--${s.name}${s.takesValue ? ` ${s.valueName ?? 'VALUE'}` : ''}`, s.help] as const);
   const width = Math.max(...rows.map(([l]) => l.length));
   return rows.map(([l, h]) => `  ${l.padEnd(width)}  ${h}`).join('\n');
+}
+
+/**
+ * The first step of every command: its arguments parsed against `specs`, or
+ * the exit status already settled: a word it cannot mean (`railcheck
+ * COMMAND: message` on standard error, EXIT_ERROR) or `--help` (`help` on
+ * standard output, EXIT_OK).
+ */
+export function commandArgs(command: string, argv: readonly string[], specs: readonly FlagSpec[], help: string, io: CliIo): { ok: true; args: ParsedArgs } | { ok: false; status: number } {
+  const parsed = parseArgs(argv, specs);
+  if (!parsed.ok) {
+    io.err(`railcheck ${command}: ${parsed.message}`);
+    return { ok: false, status: EXIT_ERROR };
+  }
+  if (parsed.args.flags.has('help')) {
+    io.out(help);
+    return { ok: false, status: EXIT_OK };
+  }
+  return parsed;
 }

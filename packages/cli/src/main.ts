@@ -15,7 +15,7 @@ import { transientCsv } from './present/waves.js';
 import { refuseOutput, writeOutputFiles } from './present/files.js';
 import { existsSync, readFileSync, realpathSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
-import { flagHelp, parseArgs, type FlagSpec } from './args.js';
+import { commandArgs, flagHelp, parseArgs, type FlagSpec } from './args.js';
 import { formatReport, formatWarnings } from './present/text.js';
 import { reportJson } from './present/json.js';
 import { notEvaluatedErrors } from './present/figures.js';
@@ -196,16 +196,9 @@ function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean, fi
 }
 
 function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
-  const parsed = parseArgs(argv, demo ? DEMO_FLAGS : RUN_FLAGS);
-  if (!parsed.ok) {
-    io.err(`railcheck ${demo ? 'demo' : 'run'}: ${parsed.message}`);
-    return EXIT_ERROR;
-  }
+  const parsed = commandArgs(demo ? 'demo' : 'run', argv, demo ? DEMO_FLAGS : RUN_FLAGS, demo ? DEMO_HELP : RUN_HELP, io);
+  if (!parsed.ok) return parsed.status;
   const { positionals, flags } = parsed.args;
-  if (flags.has('help')) {
-    io.out(demo ? DEMO_HELP : RUN_HELP);
-    return EXIT_OK;
-  }
   const without = SAMPLE_ONLY.find((n) => flags.has(n));
   if (without && !flags.has('sample')) {
     io.err(`railcheck run: --${without} goes with --sample RUN (repeating one run of a spread)`);

@@ -7,7 +7,7 @@
  */
 import { writeFileSync } from 'node:fs';
 import { checkNetlists, formatDiagnostic, type CheckResult, type Diagnostic } from '@railcheck/core';
-import { flagHelp, parseArgs, type FlagSpec } from '../args.js';
+import { commandArgs, flagHelp, type FlagSpec } from '../args.js';
 import { EXIT_ERROR, EXIT_LIMIT_FAILED, EXIT_OK, type CliIo } from '../main.js';
 import { checkJunit, netlistText, summaryText } from '../present/check.js';
 
@@ -104,16 +104,9 @@ async function progressBar(): Promise<{ start: (total: number) => void; tick: (d
 
 /** `railcheck check PATH... [options]`. */
 export async function checkCommand(argv: readonly string[], io: CliIo): Promise<number> {
-  const parsed = parseArgs(argv, CHECK_FLAGS);
-  if (!parsed.ok) {
-    io.err(`railcheck check: ${parsed.message}`);
-    return EXIT_ERROR;
-  }
+  const parsed = commandArgs('check', argv, CHECK_FLAGS, CHECK_HELP, io);
+  if (!parsed.ok) return parsed.status;
   const { positionals, flags } = parsed.args;
-  if (flags.has('help')) {
-    io.out(CHECK_HELP);
-    return EXIT_OK;
-  }
   if (positionals.length === 0) {
     io.err(`railcheck check: expected one or more netlist files or folders\n\n${CHECK_HELP}`);
     return EXIT_ERROR;

@@ -15,7 +15,7 @@ import {
   type FigureSide, type FigureUnit, type LimitSide, type QuantityChange, type QuantityValue, type Diagnostic,
 } from '@railcheck/core';
 import { match } from 'ts-pattern';
-import { flagHelp, parseArgs, type FlagSpec } from '../args.js';
+import { commandArgs, flagHelp, type FlagSpec } from '../args.js';
 import { formatFigureValue, notEvaluatedErrors, reasonText } from '../present/figures.js';
 import { heading, table } from '../present/table.js';
 import { formatWarnings } from '../present/text.js';
@@ -292,16 +292,9 @@ const INHERITED_WORDS = (c: ConditionsUsed): string =>
 
 /** `railcheck compare ORIGINAL MODIFIED [--json]`; resolves to the exit status. */
 export function compareCommand(argv: readonly string[], io: CliIo): number {
-  const parsed = parseArgs(argv, COMPARE_FLAGS);
-  if (!parsed.ok) {
-    io.err(`railcheck compare: ${parsed.message}`);
-    return EXIT_ERROR;
-  }
+  const parsed = commandArgs('compare', argv, COMPARE_FLAGS, COMPARE_HELP, io);
+  if (!parsed.ok) return parsed.status;
   const { positionals, flags } = parsed.args;
-  if (flags.has('help')) {
-    io.out(COMPARE_HELP);
-    return EXIT_OK;
-  }
   if (positionals.length !== 2) {
     io.err(`railcheck compare: expected two netlist files, ORIGINAL and MODIFIED${positionals.length ? `, got ${positionals.length}: ${positionals.join(' ')}` : ''}\n\n${COMPARE_HELP}`);
     return EXIT_ERROR;

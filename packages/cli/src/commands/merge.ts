@@ -8,8 +8,8 @@
  */
 import { readFileSync } from 'node:fs';
 import { mergeCheckResults, mergeSpreadResults, SPREAD_FORMAT } from '@railcheck/core';
-import { flagHelp, parseArgs, type FlagSpec } from '../args.js';
-import { EXIT_ERROR, EXIT_OK, type CliIo } from '../main.js';
+import { commandArgs, flagHelp, type FlagSpec } from '../args.js';
+import { EXIT_ERROR, type CliIo } from '../main.js';
 import { netlistText } from '../present/check.js';
 import { finish } from './check.js';
 import { presentSpread } from './spread.js';
@@ -42,16 +42,9 @@ and spread mixed).`;
 
 /** `railcheck merge SHARD.json... [options]`. */
 export function mergeCommand(argv: readonly string[], io: CliIo): number {
-  const parsed = parseArgs(argv, MERGE_FLAGS);
-  if (!parsed.ok) {
-    io.err(`railcheck merge: ${parsed.message}`);
-    return EXIT_ERROR;
-  }
+  const parsed = commandArgs('merge', argv, MERGE_FLAGS, MERGE_HELP, io);
+  if (!parsed.ok) return parsed.status;
   const { positionals, flags } = parsed.args;
-  if (flags.has('help')) {
-    io.out(MERGE_HELP);
-    return EXIT_OK;
-  }
   if (positionals.length === 0) {
     io.err(`railcheck merge: expected the shard result files (railcheck check --shard K/N --json > FILE, or railcheck spread FILE --shard K/N --json > FILE)\n\n${MERGE_HELP}`);
     return EXIT_ERROR;

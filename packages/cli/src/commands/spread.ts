@@ -11,7 +11,7 @@ import {
   type Diagnostic, type FlatCircuit, type ModelSampling, type SpreadOptions, type SpreadResult,
 } from '@railcheck/core';
 import { match } from 'ts-pattern';
-import { flagHelp, parseArgs, type FlagSpec } from '../args.js';
+import { commandArgs, flagHelp, type FlagSpec } from '../args.js';
 import { EXIT_ERROR, EXIT_LIMIT_FAILED, EXIT_OK, type CliIo } from '../main.js';
 import { formatWarnings } from '../present/text.js';
 import { judgeSample, sampleRunText, spreadText, type HistogramChoice, type SampleLimit } from '../present/spread.js';
@@ -224,16 +224,9 @@ export function presentSpread(io: CliIo, r: SpreadResult, json: boolean, allRuns
 
 /** `railcheck spread FILE [options]`. */
 export async function spreadCommand(argv: readonly string[], io: CliIo): Promise<number> {
-  const parsed = parseArgs(argv, SPREAD_FLAGS);
-  if (!parsed.ok) {
-    io.err(`railcheck spread: ${parsed.message}`);
-    return EXIT_ERROR;
-  }
+  const parsed = commandArgs('spread', argv, SPREAD_FLAGS, SPREAD_HELP, io);
+  if (!parsed.ok) return parsed.status;
   const { positionals, flags } = parsed.args;
-  if (flags.has('help')) {
-    io.out(SPREAD_HELP);
-    return EXIT_OK;
-  }
   if (positionals.length !== 1) {
     io.err(`railcheck spread: expected one netlist FILE${positionals.length ? `, got ${positionals.length}: ${positionals.join(' ')}` : ''}\n\n${SPREAD_HELP}`);
     return EXIT_ERROR;
