@@ -11,6 +11,7 @@ import type { Diagnostic } from '../errors.js';
 import type { BenchKind, Better, FigureUnit } from '../figure-registry.js';
 import type { LimitOp } from '../netlist/ast.js';
 import type { ParseOptions } from '../netlist/index.js';
+import type { Summary } from '../stats.js';
 
 /** The `format` member of a spread result. */
 export const SPREAD_FORMAT = 'railcheck-spread';
@@ -137,17 +138,8 @@ export interface SpreadRunRef {
   readonly sample: readonly SampledValue[];
 }
 
-/** The statistics of a set of values (stats.ts `summarise`). */
-export interface SpreadSummary {
-  readonly count: number;
-  readonly min: number;
-  readonly max: number;
-  readonly mean: number;
-  /** Sample standard deviation (n − 1 in the denominator; 0 for one value). */
-  readonly std: number;
-  /** By percentile as written (`"5"`, `"99.5"`), in the figure's unit. */
-  readonly percentiles: Readonly<Record<string, number>>;
-}
+/** The statistics of a figure's values over the runs, in the figure's unit: stats.ts `summarise`'s result (percentiles keyed as written, `"5"`, `"99.5"`). */
+export type SpreadSummary = Summary;
 
 /** One figure value at one temperature over all runs. */
 export interface SpreadFigure {
