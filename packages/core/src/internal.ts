@@ -20,7 +20,7 @@ export type { ElaborateResult } from './elaborate/elaborate.js';
 export { GROUND_KEY } from './elaborate/flat.js';
 export type { FlatCircuit, FlatElement, FlatNode, FlatAnalysis, FlatSupply, FlatFigure, FlatLimit, FlatSpread } from './elaborate/flat.js';
 
-export { compileCircuit } from './engine/compile.js';
+export { compileCircuit, revalueCircuit } from './engine/compile.js';
 export type { CompiledCircuit, CompileResult, UnknownInfo } from './engine/compile.js';
 export { luFactor, luSolve, createLuWorkspace, PIVOT_RELATIVE_TOLERANCE } from './engine/lu.js';
 export type { LuWorkspace } from './engine/lu.js';

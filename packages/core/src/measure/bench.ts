@@ -160,6 +160,13 @@ export interface BenchCommon {
   readonly nominal: OutputStats;
   /** The operating point at nominal as a cycle average (sine-fed benches; undefined on a DC bench, whose operating point is its DC solution). */
   readonly cycleOperatingPoint: CycleOperatingPoint | undefined;
+  /**
+   * Where the nominal solve of a neighbouring circuit (the same stage with
+   * other part values, a tolerance run) can start: the nominal DC solution
+   * (start 0 s) on a DC bench, the start of the first settled cycle on a
+   * sine-fed bench (solution in V and A by unknown index, start in s).
+   */
+  readonly warmStart: BenchStart;
   /** A sequence of solves from the nominal state. */
   walk(): SteadyWalk;
   /** One solve from the nominal state: `walk().solve(...)`. */
@@ -186,6 +193,12 @@ export interface SineFedBench extends BenchCommon {
   readonly amplitude: number;
   /** The source's frequency, Hz. */
   readonly frequency: number;
+}
+
+/** A solution to start a solve from: values by unknown index (V, A) and, for a periodic one, the time it holds at (s). */
+export interface BenchStart {
+  readonly solution: Float64Array;
+  readonly start: number;
 }
 
 /** A bench: a DC or a sine-fed one. */

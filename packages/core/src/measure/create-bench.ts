@@ -8,7 +8,7 @@ import { MAX_BENCH_STEPS } from '../budgets.js';
 import { errorAt, RailcheckError } from '../errors.js';
 import { compileCircuit, type CompiledCircuit } from '../engine/compile.js';
 import { setCircuitTemperature } from '../engine/dcop.js';
-import { BENCHES, type Bench } from './bench.js';
+import { BENCHES, type Bench, type BenchStart } from './bench.js';
 import { createDcBench } from './dc-bench.js';
 import { createSineFedBench } from './sine-fed-bench.js';
 import { makeStage } from './stage.js';
@@ -35,9 +35,23 @@ export function createBench(compiled: CompiledCircuit, options: BenchOptions = {
   if (!supply) throw new RailcheckError([errorAt('no-supply', 'figures need a .supply line naming the stage')]);
   const own = compileCircuit(flat);
   if (!own.ok) throw new RailcheckError(own.errors);
-  setCircuitTemperature(own.circuit, options.celsius ?? flat.temperatures[0] ?? 27);
+  return benchOnCircuit(own.circuit, options.celsius ?? flat.temperatures[0] ?? 27);
+}
+
+/**
+ * The bench on `circuit` itself (which the bench takes over: its
+ * workspace and sources are the bench's from now on), at `celsius` °C,
+ * its nominal solve started from `from` when given (a neighbouring
+ * circuit's {@link Bench.warmStart}; from zero or switch-on when that
+ * fails). Internal to core: tolerance runs build their benches this way on
+ * a revalued circuit. Throws RailcheckError.
+ */
+export function benchOnCircuit(circuit: CompiledCircuit, celsius: number, from?: BenchStart): Bench {
+  const supply = circuit.flat.supply;
+  if (!supply) throw new RailcheckError([errorAt('no-supply', 'figures need a .supply line naming the stage')]);
+  setCircuitTemperature(circuit, celsius);
   // Every transient of every figure on this bench draws from one allowance (budgets.ts).
-  own.circuit.ws.stepAllowance = { left: MAX_BENCH_STEPS, budget: 'MAX_BENCH_STEPS', limit: MAX_BENCH_STEPS };
-  const stage = makeStage(own.circuit, supply);
-  return BENCHES.mark(stage.inputWaveform?.kind === 'sin' ? createSineFedBench(stage) : createDcBench(stage));
+  circuit.ws.stepAllowance = { left: MAX_BENCH_STEPS, budget: 'MAX_BENCH_STEPS', limit: MAX_BENCH_STEPS };
+  const stage = makeStage(circuit, supply);
+  return BENCHES.mark(stage.inputWaveform?.kind === 'sin' ? createSineFedBench(stage, from) : createDcBench(stage, from));
 }

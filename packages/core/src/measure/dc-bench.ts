@@ -15,7 +15,7 @@ import { describeTransientFailure, runTransient, transientFailureCode } from '..
 import { opFailure } from '../analysis/dc.js';
 import { readSolution } from '../analysis/solution.js';
 import { formatSI } from '../units.js';
-import { dipBottomEnd, dipCorners, type DcBench, type DipPlan, type DipShape, type OutputStats, type StageSetting, type SteadyRipple, type SteadyWalk } from './bench.js';
+import { dipBottomEnd, dipCorners, type BenchStart, type DcBench, type DipPlan, type DipShape, type OutputStats, type StageSetting, type SteadyRipple, type SteadyWalk } from './bench.js';
 import { settleCycle, type SteadyInfo } from './periodic.js';
 import { inputTransfer, smallSignalStart } from './small-signal.js';
 import { applyDrive, loadCurrentOf, onRail, solveSetting, vout, type DcSetting, type Drive, type Stage } from './stage.js';
@@ -41,13 +41,22 @@ interface Snapshot {
   readonly statePrev: Float64Array;
 }
 
-/** Solves the nominal DC point of the stage and returns its bench. Throws RailcheckError. */
-export function createDcBench(given: Stage): DcBench {
+/**
+ * Solves the nominal DC point of the stage and returns its bench. With
+ * `from`, Newton starts there first (a neighbouring circuit's nominal
+ * point), and from zero as usual when that fails. Throws RailcheckError.
+ */
+export function createDcBench(given: Stage, from?: BenchStart): DcBench {
   const c = given.compiled;
   const ws = c.ws;
   const compiledDrive: Drive = { dc: given.inputDc, waveform: given.inputWaveform, loadAmps: undefined };
   applyDrive(given, compiledDrive, 1);
-  const outcome = solveOperatingPoint(c);
+  let warm = false;
+  if (from !== undefined && from.solution.length === ws.x.length) {
+    ws.x.set(from.solution);
+    warm = solveOperatingPoint(c, true).ok;
+  }
+  const outcome = warm ? ({ ok: true } as const) : solveOperatingPoint(c);
   if (!outcome.ok) throw new RailcheckError([opFailure(outcome, 'nominal operating point of the stage', given.supply.origin)]);
   const signed = vout(given);
   const railSign = signed < 0 ? -1 : 1;
@@ -117,6 +126,7 @@ export function createDcBench(given: Stage): DcBench {
     loadNominal,
     nominal: { mean: voutNominal, min: voutNominal, max: voutNominal, pp: 0, power: undefined, feed: undefined, steady: undefined },
     cycleOperatingPoint: undefined,
+    warmStart: { solution: snapshot.x, start: 0 },
     walk,
     solve: (setting, what, power) => walk().solve(setting, what, power),
     dropoutRule: (fall) => ({ kind: 'crossing', target: voutNominal - fall, tolerance: DROPOUT_INPUT_TOLERANCE }),

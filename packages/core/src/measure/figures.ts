@@ -277,6 +277,15 @@ export interface MeasureOptions {
 export function measureFigures(c: CompiledCircuit, options: MeasureOptions = {}): FigureReport {
   COMPILED_CIRCUITS.check('measureFigures', 'c', c);
   checkOptions('measureFigures', options, { celsius: 'finite' });
+  return measureFiguresOn(c, () => createBench(c, options.celsius === undefined ? {} : { celsius: options.celsius }));
+}
+
+/**
+ * {@link measureFigures} on the bench `makeBench` builds (it may throw
+ * RailcheckError as createBench does): internal to core, for tolerance
+ * runs that build their benches on a revalued circuit.
+ */
+export function measureFiguresOn(c: CompiledCircuit, makeBench: () => Bench): FigureReport {
   const flat = c.flat;
   const warnings: Diagnostic[] = [];
   let bench: Bench | undefined;
@@ -285,7 +294,7 @@ export function measureFigures(c: CompiledCircuit, options: MeasureOptions = {})
   // A sine-fed stage gets its bench even without figures: its operating point is the nominal cycle's average.
   if (flat.figures.length > 0 || isSineFed(c)) {
     try {
-      bench = createBench(c, options.celsius === undefined ? {} : { celsius: options.celsius });
+      bench = makeBench();
     } catch (e) {
       if (!(e instanceof RailcheckError)) throw e;
       if (flat.figures.length > 0) ({ figures: measured, reason: nominalFailure } = nominalFailed(e, flat.figures, warnings));

@@ -14,7 +14,7 @@ import { errorAt, RailcheckError } from '../errors.js';
 import { describeTransientFailure, runTransient, transientFailureCode } from '../engine/transient.js';
 import { MAX_BREAKPOINTS } from '../budgets.js';
 import { formatSI } from '../units.js';
-import { dipCorners, type CycleOperatingPoint, type DipPlan, type DipShape, type NodeCycle, type OutputStats, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
+import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type NodeCycle, type OutputStats, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
 import { settleCycle, type Probe } from './periodic.js';
 import { applyDrive, loadCurrentOf, onRail, vout, type Stage } from './stage.js';
 
@@ -128,7 +128,7 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
 }
 
 /** Finds the nominal periodic steady state of a sine-fed stage and returns its bench. Throws RailcheckError. */
-export function createSineFedBench(given: Stage): SineFedBench {
+export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBench {
   const w = given.inputWaveform;
   const origin = given.supply.origin;
   if (w?.kind !== 'sin' || !(w.freq > 0)) throw new RailcheckError([errorAt('bad-supply-input', 'a sine-fed stage needs a sin source with a positive frequency', origin.pos, origin.lineText)]);
@@ -141,7 +141,15 @@ export function createSineFedBench(given: Stage): SineFedBench {
   // The load current of a resistor load follows from the nominal output, and the rail's sign from its mean: a
   // first run at the load's own value finds both (and the cycle-average operating point, signed as measured).
   const what = 'periodic steady state of the sine-fed stage';
-  const first = steadyCycle(given, sine, 1, { level: 1, loadAmps: undefined }, false, what, 1, undefined, (op) => (cycleOperatingPoint = op));
+  const firstFrom = (start: WarmStart | undefined): Settled => steadyCycle(given, sine, 1, { level: 1, loadAmps: undefined }, false, what, 1, start, (op) => (cycleOperatingPoint = op));
+  // A neighbouring circuit's settled cycle (a tolerance run's nominal) is tried first; switch-on as usual when it does not settle from there.
+  let first: Settled;
+  try {
+    first = firstFrom(from !== undefined && from.solution.length === given.compiled.ws.x.length ? from : undefined);
+  } catch (e) {
+    if (from === undefined || !(e instanceof RailcheckError)) throw e;
+    first = firstFrom(undefined);
+  }
   const railSign = first.stats.mean < 0 ? -1 : 1;
   const stage = onRail(given, railSign);
   // The rerun starts from switch-on like the first, so a negative rail and its positive mirror take the same path.
@@ -172,6 +180,7 @@ export function createSineFedBench(given: Stage): SineFedBench {
     loadNominal,
     nominal,
     cycleOperatingPoint,
+    warmStart: first.next,
     walk,
     solve: (setting, what, power) => walk().solve(setting, what, power),
     dropoutRule: (fall) => ({

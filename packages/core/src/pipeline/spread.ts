@@ -13,9 +13,11 @@ import { errorAt, RailcheckError, warningAt, type Diagnostic } from '../errors.j
 import { argumentDiagnostic, isRecord } from '../arguments.js';
 import { figureEntry, figureUnit, type BenchKind, type FigureUnit } from '../figure-registry.js';
 import { MAINS_CAUTION } from '../analysis/safety.js';
-import { compileCircuit } from '../engine/compile.js';
+import { compileCircuit, revalueCircuit, type CompiledCircuit } from '../engine/compile.js';
+import { benchOnCircuit } from '../measure/create-bench.js';
+import type { BenchStart } from '../measure/bench.js';
 import type { FlatCircuit } from '../elaborate/flat.js';
-import { limitHolds, measureFigures } from '../measure/figures.js';
+import { limitHolds, measureFiguresOn } from '../measure/figures.js';
 import { parseNetlist, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
 import { cornerDesign } from '../corner-design.js';
 import { summarise, wilsonInterval } from '../stats.js';
@@ -99,21 +101,60 @@ export function factorsOf(s: SpreadSetup, run: number): number[] {
 
 const message = (e: unknown): string => (e instanceof RailcheckError ? e.diagnostics.map((d) => d.message).join('; ') : `internal error: ${e instanceof Error ? e.message : String(e)}`);
 
+/** What the runs of a setup share in one thread: the nominal circuit compiled once (the template every run is revalued on) and, per temperature, the nominal solve's warm start. */
+interface Runner {
+  readonly base: CompiledCircuit;
+  readonly starts: readonly (BenchStart | undefined)[];
+}
+
+const RUNNERS = new WeakMap<SpreadSetup, Runner | string>();
+
+/** The setup's runner (built at its first run in this thread), or why the nominal circuit does not compile. */
+function runnerOf(s: SpreadSetup): Runner | string {
+  const known = RUNNERS.get(s);
+  if (known !== undefined) return known;
+  const compiled = compileCircuit(s.flat);
+  let made: Runner | string;
+  if (!compiled.ok) made = compiled.errors.map((d) => d.message).join('; ');
+  else {
+    const base = compiled.circuit;
+    const starts = s.temperatures.map((celsius): BenchStart | undefined => {
+      const nominal = revalueCircuit(base, s.flat);
+      if (!nominal.ok || !nominal.circuit.flat.supply) return undefined;
+      try {
+        const w = benchOnCircuit(nominal.circuit, celsius).warmStart;
+        return { solution: new Float64Array(w.solution), start: w.start };
+      } catch {
+        return undefined; // the runs then start cold, and meet the nominal's failure themselves
+      }
+    });
+    made = { base, starts };
+  }
+  RUNNERS.set(s, made);
+  return made;
+}
+
 /**
- * One run: the circuit with its values, compiled once, measured at every
- * temperature (measureFigures on its own bench). Never throws: a failure
- * is in the run's record.
+ * One run: the circuit with its values, revalued on the nominal circuit's
+ * compiled structure and workspace for each temperature (revalueCircuit),
+ * its nominal solve started from the nominal circuit's at that
+ * temperature, then measured (measureFigures on that bench). Nothing of
+ * an earlier run survives a revalue, so a run's record depends only on the
+ * setup and its index, whatever this thread ran before. Never throws: a
+ * failure is in the run's record.
  */
 export function measureRun(s: SpreadSetup, run: number): SpreadRun {
   const factors = factorsOf(s, run);
   const failed = (reason: string): SpreadRun => ({ run, factors, at: s.temperatures.map((celsius) => ({ celsius, values: {}, notMeasured: [], failure: reason })) });
   const sampled = sampledCircuit(s.flat, s.variables, factors);
   if (!sampled.ok) return failed(sampled.reason);
-  const compiled = compileCircuit(sampled.flat);
-  if (!compiled.ok) return failed(compiled.errors.map((d) => d.message).join('; '));
-  const at = s.temperatures.map((celsius): SpreadRunAt => {
+  const runner = runnerOf(s);
+  if (typeof runner === 'string') return failed(runner);
+  const at = s.temperatures.map((celsius, t): SpreadRunAt => {
     try {
-      const r = measureFigures(compiled.circuit, { celsius });
+      const c = revalueCircuit(runner.base, sampled.flat);
+      if (!c.ok) return { celsius, values: {}, notMeasured: [], failure: c.errors.map((d) => d.message).join('; ') };
+      const r = measureFiguresOn(c.circuit, () => benchOnCircuit(c.circuit, celsius, runner.starts[t]));
       if (r.nominalFailure) return { celsius, values: {}, notMeasured: [], failure: r.nominalFailure.message };
       const notMeasured = r.figures.flatMap((f) => (f.ok ? f.notMeasured.map((v) => ({ name: v.name, reason: v.reason.message })) : [{ name: f.kind, reason: f.reason.message }]));
       return { celsius, values: sortedRecord(r.values), notMeasured, failure: null };
@@ -279,6 +320,15 @@ async function spreadChecked(src: Source, options: SpreadOptions): Promise<Sprea
       reply: (m: unknown, job: number[]): SpreadRun[] => {
         const reply = m as { runs?: SpreadRun[]; error?: string };
         return reply.runs ?? job.map((r) => ({ run: r, factors: factorsOf(setup, r), at: setup.temperatures.map((celsius) => ({ celsius, values: {}, notMeasured: [], failure: reply.error ?? 'the worker thread gave no result' })) }));
+      },
+      // The calling thread is one lane: yielding between runs, so that the workers' replies (and progress) are taken in promptly.
+      local: async (job: number[]): Promise<SpreadRun[]> => {
+        const got: SpreadRun[] = [];
+        for (const r of job) {
+          await new Promise((resolve) => setImmediate(resolve));
+          got.push(measureRun(setup, r));
+        }
+        return got;
       },
       stopped: (job: number[], why: string): SpreadRun[] => job.map((r) => ({ run: r, factors: factorsOf(setup, r), at: setup.temperatures.map((celsius) => ({ celsius, values: {}, notMeasured: [], failure: `the worker thread running it stopped: ${why}` })) })),
     };

@@ -24,9 +24,17 @@ export interface PoolJobs<J, R> {
   readonly message: (job: J) => unknown;
   readonly reply: (m: unknown, job: J) => R;
   readonly stopped: (job: J, why: string) => R;
+  /**
+   * The job run on the calling thread. When given, the calling thread is
+   * one of the lanes (it takes jobs from the same queue as the workers,
+   * yielding to the event loop as `local` does, so that replies are taken
+   * in), and one worker fewer is started: the calling thread is warm
+   * already and starts no thread.
+   */
+  readonly local?: ((job: J) => Promise<R>) | undefined;
 }
 
-/** Runs the jobs on `lanes` worker threads of `script`; `done` hears each result as it finishes (any order) with its job's index. */
+/** Runs the jobs on `lanes` lanes: worker threads of `script` (and the calling thread, with `p.local`); `done` hears each result as it finishes (any order) with its job's index. */
 export async function runOnWorkers<J, R>(p: PoolJobs<J, R>, lanes: number, script: string | URL, done: (j: number, result: R) => void): Promise<void> {
   let next = 0;
   const lane = async (): Promise<void> => {
@@ -62,5 +70,13 @@ export async function runOnWorkers<J, R>(p: PoolJobs<J, R>, lanes: number, scrip
       if (worker) await worker.terminate();
     }
   };
-  await Promise.all(Array.from({ length: lanes }, lane));
+  const local = p.local;
+  const here = async (): Promise<void> => {
+    while (local !== undefined && next < p.jobs.length) {
+      const j = next++;
+      done(j, await local(p.jobs[j]!));
+    }
+  };
+  const workers = local === undefined ? lanes : lanes - 1;
+  await Promise.all([...Array.from({ length: Math.max(workers, 0) }, lane), ...(local === undefined ? [] : [here()])]);
 }
