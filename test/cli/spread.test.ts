@@ -49,6 +49,14 @@ function boundPassing(values: readonly number[], k: number): number {
   return (sorted[k - 1]! + sorted[k]!) / 2;
 }
 
+/** The report's repeat line for `run`, run again with --json: its exit status and values at the first temperature. */
+async function repeatLine(report: string, run: number): Promise<{ line: string; status: number; values: Record<string, number> }> {
+  const line = report.split('\n').find((l) => l.includes(`--sample ${run} `))!;
+  const words = line.trim().replace(/^repeat\s+/, '').split(/\s+/);
+  const again = await cli([...words.slice(1), '--json']);
+  return { line, status: again.status, values: (JSON.parse(again.out) as { at: { values: Record<string, number> }[] }).at[0]!.values };
+}
+
 /** The slopes of every run, from `--json --all-runs`. */
 async function slopes(file: string, runs: number): Promise<number[]> {
   const r = await cli(['spread', file, '--runs', String(runs), '--json', '--all-runs', '--jobs', '1']);
@@ -336,11 +344,57 @@ describe('railcheck spread on a divider', () => {
     const lot = json((await cli(['spread', file, '--runs', '20', '--model-sampling', 'lot', '--json', '--jobs', '1'])).out);
     expect(lot.variables.map((v) => v.name)).toEqual(['ZX.BV', 'RS']);
     const worst = lot.at[0]!.figures.find((f) => f.name === 'line.slope')!.worst[0]!;
-    const repeat = lotText.out.split('\n').find((l) => l.includes(`--sample ${worst.run} `))!;
-    expect(repeat).toContain('--model-sampling lot');
-    const words = repeat.trim().replace(/^repeat\s+/, '').split(/\s+/);
-    const again = JSON.parse((await cli([...words.slice(1), '--json'])).out) as { at: { values: Record<string, number> }[] };
-    expect(again.at[0]!.values['line.slope']).toBe(worst.value);
+    const again = await repeatLine(lotText.out, worst.run);
+    expect(again.line).toContain('--model-sampling lot');
+    expect(again.values['line.slope']).toBe(worst.value);
+  });
+
+  test('mixed modes: a line that says each, the option lot; the repeat line carries the option, and the repeated run equals the spread\'s record', async () => {
+    // A consistency check of the result's modelSampling and the repeat line, not of a figure.
+    const file = netlistFile('Two-Zener stack, mixed\nV1 in 0 24\nRS in out 1k\nD2 mid out ZX\nD1 0 mid ZX\nRL out 0 10k\n.model ZX D (IS=1e-14 BV=5.6 IBV=5m RS=3)\n.supply in=V1 out=out load=RL\n.figure line\n.spread ZX.RS 30% each\n.spread ZX.BV 2% gauss\n.spread RS 5%\n.end\n');
+    const args = ['spread', file, '--runs', '20', '--model-sampling', 'lot', '--jobs', '1'];
+    const j = JSON.parse((await cli([...args, '--json'])).out) as SpreadJson & { modelSampling: string };
+    expect(j.modelSampling).toBe('lot');
+    expect(j.variables.map((v) => v.name)).toEqual(['ZX.RS@D2', 'ZX.RS@D1', 'ZX.BV', 'RS']);
+    const worst = j.at[0]!.figures.find((f) => f.name === 'line.slope')!.worst[0]!;
+    const again = await repeatLine((await cli(args)).out, worst.run);
+    expect(again.line).toContain('--model-sampling lot');
+    expect(again.values['line.slope']).toBe(worst.value);
+  });
+
+  test('--corners: the repeat line names --corners and reruns that corner', async () => {
+    const file = netlistFile(divider());
+    const j = json((await cli(['spread', file, '--corners', '--json', '--jobs', '1'])).out);
+    const worst = j.at[0]!.figures.find((f) => f.name === 'line.slope')!.worst[0]!;
+    const again = await repeatLine((await cli(['spread', file, '--corners', '--jobs', '1'])).out, worst.run);
+    expect(again.line).toMatch(/ --corners /);
+    expect(again.status).toBeLessThanOrEqual(1); // 1 when that corner fails the limit
+    expect(again.values['line.slope']).toBe(worst.value);
+  });
+
+  test('the report names the stage, and the default JSON lists the runs that missed a figure, with their samples', async () => {
+    // Divider arithmetic (Thevenin): out = (V1/R1 + 5 V/1 kΩ)/(1/R1 + 1/1 kΩ + 1/10 kΩ), so with V1 falling from 12 V to 0
+    // the output falls by 12 V·(1 kΩ ∥ 10 kΩ)/R1 (about 109 mV at R1 = 100 kΩ): with R1 spread ±50 % some runs fall by less than
+    // dropout's 100 mV (those with R1 > 109 kΩ) and miss the figure, the others measure it.
+    const file = netlistFile('Stage with a second feed\nV1 in 0 12\nR1 in out 100k\nV2 aux 0 5\nR2 aux out 1k\nRL out 0 10k\n.supply in=V1 out=out load=RL\n.figure line\n.figure dropout\n.spread R1 50%\n.limit line.slope <= 0.26\n.end\n');
+    const text = await cli(['spread', file, '--runs', '10', '--jobs', '1']);
+    expect(text.out).toMatch(/Stage\n─+\n {2}input +V1, 12 V d\.c\.\n {2}output +out against 0: [\d.]+ V at nominal values\n {2}load +RL, 10 kΩ resistor \(nominal\)/);
+    const j = JSON.parse((await cli(['spread', file, '--runs', '10', '--json', '--jobs', '1'])).out) as {
+      runs: unknown; stage: { input: string; load: unknown };
+      at: { incomplete: { run: number; sample: { name: string; value: number }[]; missing: { name: string }[] }[] }[];
+    };
+    expect(j.runs).toBeNull();
+    expect(j.stage.input).toBe('V1');
+    expect(j.stage.load).toEqual({ name: 'RL', kind: 'resistor', ohms: 10e3 });
+    const incomplete = j.at[0]!.incomplete;
+    const fall = (r1: number): number => (12 * (1 / (1 / 1e3 + 1 / 10e3))) / (r1 + 1 / (1 / 1e3 + 1 / 10e3));
+    expect(incomplete.length).toBeGreaterThan(0);
+    expect(incomplete.length).toBeLessThan(10);
+    for (const run of incomplete) {
+      expect(run.missing.map((m) => m.name)).toEqual(['dropout']);
+      expect(fall(run.sample[0]!.value)).toBeLessThan(0.1); // the hand formula says it cannot fall by 100 mV
+      expect(text.out).toContain(`run ${run.run}: not measured: dropout`);
+    }
   });
 
   test('merge refuses shards of check and spread mixed, and --junit on spread shards: exit 2', async () => {

@@ -48,7 +48,7 @@ export { histogram } from './stats.js';
 export { spreadNetlist, spreadNetlistFile, mergeSpreadResults, runSampleNetlist, runSampleNetlistFile } from './pipeline/spread.js';
 export { SPREAD_FORMAT, SPREAD_VERSION, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_CONFIDENCE, DEFAULT_MAX_CORNER_RUNS } from './pipeline/spread-types.js';
 export type {
-  SpreadOptions, SpreadOutcome, SpreadResult, SpreadTemperature, SpreadFigure, SpreadLimit, SpreadRun, SpreadRunAt, SpreadRunRef, SpreadSummary,
+  SpreadOptions, SpreadOutcome, SpreadResult, SpreadTemperature, SpreadFigure, SpreadLimit, SpreadRun, SpreadRunAt, SpreadRunRef, SpreadStage, SpreadSummary,
   SpreadVariable, SampledValue, SpreadDesign, SpreadMethod, ModelSampling, SpreadDistribution, SampleOptions, SampleOutcome,
 } from './pipeline/spread-types.js';
 export type { OperatingPoint, DcSweep } from './analysis/dc.js';

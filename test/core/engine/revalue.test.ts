@@ -9,7 +9,9 @@ import { describe, expect, test } from 'vitest';
 import { compileCircuit, elaborate, measureRun, parseNetlist, revalueCircuit, solveOperatingPoint, spreadSetup, type CompiledCircuit, type FlatCircuit } from '@railcheck/core/internal';
 
 function flatOf(text: string): FlatCircuit {
-  const e = elaborate(parseNetlist(text).netlist!);
+  const p = parseNetlist(text);
+  if (!p.ok) throw new Error(p.errors.map((d) => d.message).join('; '));
+  const e = elaborate(p.netlist);
   if (!e.ok) throw new Error(e.errors.map((d) => d.message).join('; '));
   return e.circuit;
 }

@@ -114,17 +114,38 @@ function shellWord(w: string): string {
  * The command that repeats run `run` of the result at `celsius`:
  * `railcheck run FILE --sample RUN --seed S --temp C` (`--temp=C` below
  * 0 °C), with `--corners` for a corner design (whose rows need no seed)
- * and `--model-sampling lot` when every model spread was sampled per lot.
+ * and `--model-sampling lot` when the spread had that option and has a
+ * model spread (a mode written on a `.spread` line is read from the line).
  */
 export function repeatCommand(r: SpreadResult, run: number, celsius: number): string {
   const words = ['railcheck', 'run', r.file, '--sample', String(run)];
-  if (r.method === "corners") words.push("--corner");
+  if (r.method === 'corners') words.push('--corners');
   else words.push('--seed', String(r.seed));
-  const models = r.variables.filter((v) => v.sampling !== null);
-  if (models.length > 0 && models.every((v) => v.sampling === 'lot')) words.push('--model-sampling', 'lot');
+  // The option as the spread had it (a line's own mode needs nothing: the run reads the line too); only a model spread reads it.
+  if (r.modelSampling === 'lot' && r.variables.some((v) => v.sampling !== null)) words.push('--model-sampling', 'lot');
   // A negative temperature is joined to its option, or the command line would read it as an option of its own.
   words.push(...(celsius < 0 ? [`--temp=${celsius}`] : ['--temp', String(celsius)]));
   return words.map(shellWord).join(' ');
+}
+
+/** The stage section: input and how it is fed, output with its nominal value, load; '' without a `.supply` line. */
+export function stageText(r: SpreadResult): string {
+  const st = r.stage;
+  if (!st) return '';
+  const feed = match(st.feed)
+    .with({ kind: 'dc' }, (f) => `${st.input}, ${formatSI(f.volts, 'V')} d.c.`)
+    .with({ kind: 'sine' }, (f) => `${st.input}, ${formatSI(f.peakVolts, 'V')} peak sine at ${formatSI(f.hertz, 'Hz')} (figures at periodic steady state)`)
+    .with({ kind: 'other' }, () => st.input)
+    .exhaustive();
+  const nominal = st.voutNominal === null ? '' : `: ${formatSI(st.voutNominal, 'V')} ${st.feed.kind === 'sine' ? 'mean over the nominal cycle' : 'at nominal'} values`;
+  const load = st.load === null
+    ? 'none named (load= on .supply)'
+    : match(st.load)
+      .with({ kind: 'resistor' }, (l) => `${l.name}, ${formatSI(l.ohms, 'Ω')} resistor (nominal)`)
+      .with({ kind: 'isource' }, (l) => `${l.name}, ${formatSI(l.amps, 'A')} current source (nominal)`)
+      .with({ kind: 'other' }, (l) => l.name)
+      .exhaustive();
+  return [heading('Stage'), table([['input', feed], ['output', `${st.output} against ${st.reference}${nominal}`], ['load', load]], '  ', true)].join('\n');
 }
 
 /** The design in words: Monte Carlo with its runs and seed, or the corner design's name and runs. */
@@ -282,24 +303,21 @@ function worstText(t: SpreadTemperature, r: SpreadResult): string {
 
 /**
  * Runs that did not give every figure at this temperature: those that
- * failed as a whole (with the reason), then, when the result holds every
- * run, those where a figure or value was not measured; each with its
+ * failed as a whole (with the reason), then those where a figure or
+ * value was not measured (with what and why); each with its
  * sample and the command that repeats it. Never dropped: each counts
  * against the yield of the limits on what it lacks.
  */
-function failedText(t: SpreadTemperature, k: number, r: SpreadResult): string | undefined {
+function failedText(t: SpreadTemperature, r: SpreadResult): string | undefined {
   const blocks: string[] = [];
   for (const f of t.failed) {
     blocks.push([`  run ${f.run}: did not run: ${f.reason}`, `    sample  ${sampleText(f.sample, r.variables)}`, `    repeat  ${repeatCommand(r, f.run, t.celsius)}`].join('\n'));
   }
-  const failedRuns = new Set(t.failed.map((f) => f.run));
-  for (const run of r.runs ?? []) {
-    const at = run.at[k];
-    if (!at || failedRuns.has(run.run) || at.notMeasured.length === 0) continue;
+  for (const run of t.incomplete) {
     blocks.push(
       [
-        `  run ${run.run}: not measured: ${at.notMeasured.map((m) => `${m.name} (${m.reason})`).join('; ')}`,
-        `    sample  ${sampleText(sampleOf(run, r.variables), r.variables)}`,
+        `  run ${run.run}: not measured: ${run.missing.map((m) => `${m.name} (${m.reason})`).join('; ')}`,
+        `    sample  ${sampleText(run.sample, r.variables)}`,
         `    repeat  ${repeatCommand(r, run.run, t.celsius)}`,
       ].join('\n'),
     );
@@ -331,7 +349,7 @@ function temperatureText(t: SpreadTemperature, k: number, r: SpreadResult, histo
     }
   }
   parts.push('', '  Worst units', worstText(t, r));
-  const failed = failedText(t, k, r);
+  const failed = failedText(t, r);
   if (failed) parts.push('', '  Runs that did not give every figure', failed);
   return parts.join('\n');
 }
@@ -367,6 +385,8 @@ export function spreadText(r: SpreadResult, options: SpreadTextOptions = {}): st
   const parts = [`railcheck spread — ${r.title || '(untitled)'}`, `  netlist ${r.file}`, ''];
   const elv = r.warnings.find((w) => w.code === 'above-elv');
   if (r.caution) parts.push(`caution: ${elv?.message ?? r.caution}`, '');
+  const stage = stageText(r);
+  if (stage) parts.push(stage, '');
   parts.push(heading('What is spread'), variablesText(r), '');
   const ps = r.percentiles.map((p) => `p${p}`).join(' ');
   parts.push(

@@ -194,6 +194,26 @@ export interface SpreadTemperature {
   readonly limits: readonly SpreadLimit[];
   /** Runs that failed as a whole at this temperature (no figure measured), with the reason. */
   readonly failed: readonly (SpreadRunRef & { readonly reason: string })[];
+  /** Runs that ran but missed a figure or value at this temperature, each with what it missed and why (the sample's `value` is null); in run order. */
+  readonly incomplete: readonly (SpreadRunRef & { readonly missing: readonly { readonly name: string; readonly reason: string }[] })[];
+}
+
+/**
+ * The stage as the nominal run saw it (`.supply`): the input element and
+ * how it is fed, the output and reference nodes with the nominal output,
+ * and the load. Names as written in the netlist.
+ */
+export interface SpreadStage {
+  /** The input source's name. */
+  readonly input: string;
+  /** How the input is fed: its d.c. value (V), or a sine's peak (V) and frequency (Hz). */
+  readonly feed: { readonly kind: 'dc'; readonly volts: number } | { readonly kind: 'sine'; readonly peakVolts: number; readonly hertz: number } | { readonly kind: 'other' };
+  readonly output: string;
+  readonly reference: string;
+  /** The nominal output, V (signed; the cycle mean on a sine-fed stage), or null when it could not be solved. */
+  readonly voutNominal: number | null;
+  /** The load element: a resistor (Ω), a current source (A), or another kind; null without `load=`. */
+  readonly load: { readonly name: string; readonly kind: 'resistor'; readonly ohms: number } | { readonly name: string; readonly kind: 'isource'; readonly amps: number } | { readonly name: string; readonly kind: 'other' } | null;
 }
 
 /** The corner design used by `corners` (corner-design.ts). */
@@ -213,6 +233,10 @@ export interface SpreadResult {
   readonly file: string;
   readonly method: SpreadMethod;
   readonly seed: number;
+  /** The `modelSampling` option the runs were drawn with (a mode on a `.spread` line wins over it; each variable records its own mode). */
+  readonly modelSampling: ModelSampling;
+  /** The stage the figures are of; null without a `.supply` line. */
+  readonly stage: SpreadStage | null;
   /** Runs of the whole run (all shards). */
   readonly runCount: number;
   readonly confidence: number;

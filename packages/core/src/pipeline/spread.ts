@@ -28,7 +28,7 @@ import { runOnWorkers, workerPath } from './worker-pool.js';
 import {
   DEFAULT_MAX_CORNER_RUNS, DEFAULT_SPREAD_CONFIDENCE, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, SPREAD_FORMAT, SPREAD_VERSION,
   type ModelSampling, type SampleOptions, type SampleOutcome, type SpreadDesign, type SpreadFigure, type SpreadLimit, type SpreadMethod, type SpreadOptions,
-  type SpreadOutcome, type SpreadResult, type SpreadRun, type SpreadRunAt, type SpreadRunRef, type SpreadTemperature,
+  type SpreadOutcome, type SpreadResult, type SpreadRun, type SpreadRunAt, type SpreadRunRef, type SpreadStage, type SpreadTemperature,
 } from './spread-types.js';
 
 /** Most Monte Carlo runs one spread takes. */
@@ -166,7 +166,7 @@ export function measureRun(s: SpreadSetup, run: number): SpreadRun {
 }
 
 /** The header of a result: everything but the runs' data and the share. */
-type Header = Pick<SpreadResult, 'title' | 'file' | 'method' | 'seed' | 'runCount' | 'confidence' | 'percentiles' | 'temperatures' | 'variables' | 'design' | 'warnings' | 'caution' | 'bench' | 'allRuns'>;
+type Header = Pick<SpreadResult, 'title' | 'file' | 'method' | 'seed' | 'modelSampling' | 'stage' | 'runCount' | 'confidence' | 'percentiles' | 'temperatures' | 'variables' | 'design' | 'warnings' | 'caution' | 'bench' | 'allRuns'>;
 
 const byCodePoint = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
 
@@ -226,7 +226,8 @@ function temperatureStats(h: Header, flat: Pick<FlatCircuit, 'limits'>, runs: re
     return { figure: l.figure, op: l.op, value: l.value, passes, fails, notEvaluated, yield: n > 0 ? passes / n : 0, interval: n > 0 ? wilsonInterval(passes, n, h.confidence) : { low: 0, high: 1 }, worst };
   });
   const failed = runs.flatMap((r) => (r.at[t]!.failure === null ? [] : [{ ...ref(r, null), reason: r.at[t]!.failure! }]));
-  return { celsius: h.temperatures[t]!, figures, limits, failed };
+  const incomplete = runs.flatMap((r) => (r.at[t]!.failure === null && r.at[t]!.notMeasured.length > 0 ? [{ ...ref(r, null), missing: r.at[t]!.notMeasured }] : []));
+  return { celsius: h.temperatures[t]!, figures, limits, failed, incomplete };
 }
 
 /** The result from its header and runs (in run order); the same for a run and a merge. */
@@ -240,6 +241,19 @@ function assemble(h: Header, limits: Pick<FlatCircuit, 'limits'>, shard: SpreadR
     runs: keep ? runs : null,
     runsPerSecond,
   };
+}
+
+/** The stage of the nominal circuit as plain data (SpreadStage). */
+function stageOf(flat: FlatCircuit, voutNominal: number | undefined): SpreadStage | null {
+  const supply = flat.supply;
+  if (!supply) return null;
+  const node = (key: string): string => (key === '0' ? '0' : (flat.nodes.find((n) => n.key === key)?.name ?? key));
+  const input = flat.elements.find((e) => e.key === supply.input);
+  const w = input?.kind === 'vsource' ? input.spec.waveform : undefined;
+  const feed: SpreadStage['feed'] = input?.kind !== 'vsource' ? { kind: 'other' } : w?.kind === 'sin' ? { kind: 'sine', peakVolts: w.va, hertz: w.freq } : w === undefined ? { kind: 'dc', volts: input.spec.dc } : { kind: 'other' };
+  const el = supply.load === undefined ? undefined : flat.elements.find((e) => e.key === supply.load);
+  const load: SpreadStage['load'] = el === undefined ? null : el.kind === 'resistor' ? { name: el.name, kind: 'resistor', ohms: el.ohms } : el.kind === 'isource' ? { name: el.name, kind: 'isource', amps: el.spec.dc } : { name: el.name, kind: 'other' };
+  return { input: input?.name ?? supply.input, feed, output: node(supply.out), reference: node(supply.ref), voutNominal: voutNominal ?? null, load };
 }
 
 /** The option checks of the spread functions: the first option of the wrong type, as a `bad-argument` diagnostic. */
@@ -346,7 +360,7 @@ async function spreadChecked(src: Source, options: SpreadOptions): Promise<Sprea
   }
   const seconds = (performance.now() - started) / 1000;
   const header: Header = {
-    title: setup.flat.title, file: setup.flat.file, method: setup.method, seed: setup.seed, runCount: setup.runCount, confidence, percentiles: [...percentiles],
+    title: setup.flat.title, file: setup.flat.file, method: setup.method, seed: setup.seed, modelSampling: options.modelSampling ?? 'each', stage: stageOf(setup.flat, nominal.report.figures?.voutNominal), runCount: setup.runCount, confidence, percentiles: [...percentiles],
     temperatures: [...setup.temperatures], variables: setup.variables.map(({ elements: _e, param: _p, ...v }) => v), design: setup.design,
     warnings, caution: warnings.some((w) => w.code === 'above-elv') ? MAINS_CAUTION : null, bench: (nominal.report.figures?.bench ?? null) as BenchKind | null, allRuns: options.allRuns === true,
   };
@@ -416,7 +430,7 @@ function isSpreadResult(s: unknown): s is SpreadResult {
 }
 
 const headerOf = (r: SpreadResult): Header => ({
-  title: r.title, file: r.file, method: r.method, seed: r.seed, runCount: r.runCount, confidence: r.confidence, percentiles: r.percentiles, temperatures: r.temperatures,
+  title: r.title, file: r.file, method: r.method, seed: r.seed, modelSampling: r.modelSampling, stage: r.stage, runCount: r.runCount, confidence: r.confidence, percentiles: r.percentiles, temperatures: r.temperatures,
   variables: r.variables, design: r.design, warnings: r.warnings, caution: r.caution, bench: r.bench, allRuns: r.allRuns,
 });
 
