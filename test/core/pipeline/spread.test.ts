@@ -287,6 +287,11 @@ describe('arguments and usage errors', () => {
         expect(r.errors.some((e) => e.code === 'internal')).toBe(false);
       }
     }
+    // The file form too: options null or a number once threw before the guard saw them (found by the library fuzz test).
+    for (const o of [null, 3, 'x']) {
+      const r = await spreadNetlistFile(fileURLToPath(new URL('../../../examples/sensor-rail-spread.cir', import.meta.url)), o as never);
+      expect(!r.ok && r.errors[0]!.code).toBe('bad-argument');
+    }
     const none = await spreadNetlist(divider([]), {});
     expect(!none.ok && none.errors[0]!.code).toBe('spread-none');
     const late = runSampleNetlist(text, { run: 5, runs: 5 });

@@ -414,6 +414,8 @@ export async function spreadNetlist(text: string, options: SpreadOptions = {}): 
  */
 export async function spreadNetlistFile(path: string, options: SpreadOptions = {}): Promise<SpreadOutcome> {
   if (typeof path !== 'string' || path === '') return { ok: false, errors: [argumentDiagnostic('spreadNetlistFile', 'path', 'a file path', path)], warnings: [] };
+  // Options of the wrong type (null, a number) are the guard's to report, not to crash on here.
+  if (typeof options !== 'object' || options === null) return spreadGuarded('spreadNetlistFile', { kind: 'file', path }, options);
   const parse = options.parse ?? {};
   return spreadGuarded('spreadNetlistFile', { kind: 'file', path }, { ...options, parse: { ...parse } });
 }
