@@ -19,7 +19,7 @@ const coreSrc = join(root, 'packages/core/src');
 /** Layers of core from the lowest; a file may import its own layer and those below. */
 const LAYERS = ['shared', 'netlist', 'elaborate', 'engine', 'analysis', 'measure', 'pipeline', 'barrel'] as const;
 type Layer = (typeof LAYERS)[number];
-const SHARED_FILES = ['errors.ts', 'arguments.ts', 'units.ts', 'figure-registry.ts', 'budgets.ts', 'stats.ts', 'corner-design.ts'];
+const SHARED_FILES = ['errors.ts', 'arguments.ts', 'units.ts', 'figure-registry.ts', 'budgets.ts', 'stats.ts', 'corner-design.ts', 'part-data.ts'];
 
 function sourceFiles(dir: string): string[] {
   return readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? sourceFiles(join(dir, e.name)) : e.name.endsWith('.ts') ? [join(dir, e.name)] : []));

@@ -22,9 +22,9 @@ const PUBLIC_VALUES = [
   'SPREAD_FORMAT', 'SPREAD_VERSION', 'DEFAULT_SPREAD_RUNS', 'DEFAULT_SPREAD_SEED', 'DEFAULT_SPREAD_PERCENTILES', 'DEFAULT_SPREAD_CONFIDENCE', 'DEFAULT_MAX_CORNER_RUNS',
   'sampleTrace', 'acceptedTimes', 'phasorDb', 'phasorDeg',
   'MAINS_CAUTION', 'ELV_AC_RMS', 'ELV_DC', 'formatSI',
-  'FIGURES', 'FIGURE_KIND_INFO', 'FIGURE_KINDS', 'BENCH_KINDS', 'figureEntry', 'figureKindOf', 'figureUnit',
+  'FIGURES', 'PART_DATA', 'PART_DATA_KEYS', 'STRESS_QUANTITIES', 'DEFAULT_DERATING', 'FIGURE_KIND_INFO', 'FIGURE_KINDS', 'BENCH_KINDS', 'figureEntry', 'figureKindOf', 'figureUnit',
   'measureFigures', 'createBench',
-  'lineRegulation', 'loadRegulation', 'dropout', 'DEFAULT_DROPOUT_FALL', 'rippleRejection', 'dissipation', 'sagRideThrough',
+  'lineRegulation', 'loadRegulation', 'dropout', 'DEFAULT_DROPOUT_FALL', 'rippleRejection', 'dissipation', 'sagRideThrough', 'startup', 'loadStep', 'DEFAULT_SETTLE_TMAX', 'DEFAULT_SETTLE_RATIO', 'DEFAULT_STEP_RISE',
   'describeSteady',
 ];
 

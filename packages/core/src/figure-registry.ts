@@ -10,7 +10,9 @@
 import { argumentError, checkString } from './arguments.js';
 
 /** A `.figure` kind (figures.md). */
-export type FigureKind = 'line' | 'load' | 'dropout' | 'ripple' | 'dissipation' | 'sag';
+export type FigureKind = 'line' | 'load' | 'dropout' | 'ripple' | 'dissipation' | 'sag' | 'stress' | 'startup' | 'step'
+  // thermal figure (docs/thermal.md)
+  | 'thermal';
 
 /**
  * How a stage is measured: `dc`, by DC solutions (a DC input); `sine-fed`,
@@ -23,11 +25,14 @@ export type BenchKind = 'dc' | 'sine-fed';
 export const BENCH_KINDS: readonly BenchKind[] = ['dc', 'sine-fed'];
 
 /**
- * Unit of a figure value: SI units (V, Ω, W), V/V, percent (`%`, `%/V`:
+ * Unit of a figure value: SI units (V, A, s, Ω, W), V/V, percent (`%`, `%/V`:
  * values are in percent, 1 = 1 %), dB; `ratio` is a plain number (0.5 =
- * half); `flag` is 1 or 0.
+ * half); `flag` is 1 or 0; `°C` a temperature in degrees Celsius, `K` a
+ * temperature difference in kelvin, `K/W` a thermal resistance.
  */
-export type FigureUnit = 'V' | 'V/V' | '%/V' | '%' | 'Ω' | 'dB' | 'W' | 'ratio' | 'flag';
+export type FigureUnit = 'V' | 'A' | 's' | 'V/V' | '%/V' | '%' | 'Ω' | 'dB' | 'W' | 'ratio' | 'flag'
+  // thermal figure (docs/thermal.md)
+  | '°C' | 'K' | 'K/W';
 
 /** Which way a value is better: `lower`, `higher`, or `none` (a condition of the measurement, not a merit). */
 export type Better = 'lower' | 'higher' | 'none';
@@ -80,6 +85,21 @@ export const FIGURES: readonly FigureEntry[] = [
   { name: 'sag.out_pp', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple in the dip', doc: 'output peak-to-peak over the last whole ripple cycle of the dip, the drift across the cycle taken out' },
   { name: 'sag.out_pp_max', kind: 'sag', units: both('V'), better: 'lower', title: 'largest output ripple in the dip', doc: 'the largest such drift-free peak-to-peak over the whole ripple cycles at the bottom of the dip' },
   { name: 'sag.out_pp_before', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple before the dip', doc: 'output peak-to-peak over the last whole ripple cycle before the dip, the drift across the cycle taken out' },
+  { name: 'stress.worst', kind: 'stress', units: both('ratio'), better: 'lower', title: 'highest stress ratio', doc: 'the largest worst value / rating over every rated quantity of every part, over the conditions of the figures measured' },
+  { name: 'stress.<element>.<quantity>', pattern: /^stress\.[^.]+(\.[^.]+)*\.(v|vr|vce|vcb|iavg|ipk|irms|ic|p)$/, kind: 'stress', units: both('ratio'), better: 'lower', title: 'stress ratio', doc: 'the worst value of one rated quantity of one part / its rating (docs/stress.md, "Quantities")' },
+  { name: 'startup.inrush', kind: 'startup', units: both('A'), better: 'lower', title: 'inrush current', doc: 'the largest magnitude of the input source current from switch-on, everything discharged' },
+  { name: 'startup.ipk_rect', kind: 'startup', units: both('A'), better: 'lower', title: 'peak rectifier current', doc: 'the largest forward current of any diode of the stage from switch-on' },
+  { name: 'startup.settle', kind: 'startup', units: both('s'), better: 'lower', title: 'start-up settling time', doc: 'time from switch-on until the output comes within fall of its steady value (band) and stays there' },
+  { name: 'startup.overshoot', kind: 'startup', units: both('V'), better: 'lower', title: 'start-up overshoot', doc: 'the largest output above its steady value (the settled cycle maximum on a sine-fed stage), 0 if none' },
+  { name: 'step.dip', kind: 'step', units: { dc: 'V' }, better: 'lower', title: 'output excursion in a load step', doc: 'the largest excursion of the output from its value before the step, the way the step pushes it (down for a rising load)' },
+  { name: 'step.peak', kind: 'step', units: { dc: 'V' }, better: 'lower', title: 'overshoot on recovery', doc: 'after the dip, the largest excursion beyond the new steady value the other way, 0 if none' },
+  { name: 'step.recovery', kind: 'step', units: { dc: 's' }, better: 'lower', title: 'load-step recovery time', doc: 'time from the start of the step until the output comes within band of its new steady value and stays there' },
+  // thermal figure (docs/thermal.md)
+  { name: 'thermal.<element>.tj', pattern: /^thermal\.[^.]+(\.[^.]+)*\.tj$/, kind: 'thermal', units: both('°C'), better: 'lower', title: 'junction temperature', doc: 'Ta + P·(rth + rthsink) at the largest dissipation over nominal and the worst line and load corners' },
+  { name: 'thermal.<element>.margin', pattern: /^thermal\.[^.]+(\.[^.]+)*\.margin$/, kind: 'thermal', units: both('K'), better: 'higher', title: 'junction temperature margin', doc: 'tjmax − thermal.<element>.tj' },
+  { name: 'thermal.<element>.rthsink_max', pattern: /^thermal\.[^.]+(\.[^.]+)*\.rthsink_max$/, kind: 'thermal', units: both('K/W'), better: 'higher', title: 'largest heatsink thermal resistance', doc: '(tjmax − Ta)/P − rth with rthsink= given; without it, the largest total junction-to-ambient resistance (tjmax − Ta)/P' },
+  { name: 'thermal.worst_margin', kind: 'thermal', units: both('K'), better: 'higher', title: 'least junction temperature margin', doc: 'the least thermal.<element>.margin over the parts with rth=' },
+  { name: 'thermal.vout_drift', kind: 'thermal', units: { dc: 'V' }, better: 'none', title: 'output drift from self-heating', doc: 'with selfheat=1: Vout with every part with rth= at its own junction temperature − Vout with every part at ambient, at nominal (on magnitudes)' },
 ];
 
 /**
@@ -148,6 +168,9 @@ const DC_ONLY: readonly BenchKind[] = ['dc'];
 /** Longest dip or edge a sag figure simulates, s: far beyond any hold-up a supply is asked for (common practice, no source). */
 export const MAX_SAG_DURATION = 100;
 
+/** Longest run (`tmax=`) and rise a start-up or load-step figure simulates, s: far beyond any start-up a supply is asked for (common practice, no source). */
+export const MAX_SETTLE_TIME = 100;
+
 const bounds = (b: KeyBounds): KeyRange => ({ kind: 'bounds', bounds: b });
 const onBenches = (benches: readonly BenchKind[], r: KeyRange): Partial<Record<BenchKind, KeyRange>> => Object.fromEntries(benches.map((b) => [b, r]));
 const num = (percent: boolean, unit: string, doc: string, range: KeyRange | Partial<Record<BenchKind, KeyRange>>, benches: readonly BenchKind[] = BENCH_KINDS, percentRange?: KeyBounds): FigureNumberKey => ({
@@ -163,6 +186,14 @@ const LEVEL: Partial<Record<BenchKind, KeyRange>> = { dc: { kind: 'input-level' 
 const LOAD_CURRENT = bounds({ atLeast: 0 });
 /** An output fall: > 0 V, or as a percentage a ratio of Vout_nom in (0, 1). */
 const FALL_PERCENT: KeyBounds = { above: 0, below: 1 };
+/** A simulated time of a start-up or load-step figure, s. */
+const SETTLE_TIME = bounds({ above: 0, atMost: MAX_SETTLE_TIME });
+
+/** Lowest ambient of the thermal figure, °C: the lowest `.temp` accepted (docs/thermal.md). */
+export const MIN_AMBIENT_CELSIUS = -273;
+
+/** A derating ratio: > 0 and ≤ 1 (1: marked only past the rating). */
+const DERATE = bounds({ above: 0, atMost: 1 });
 
 /** Every `.figure` kind with its keys (figures.md), in the order figures.md lists them. */
 export const FIGURE_KIND_INFO: Readonly<Record<FigureKind, FigureKindInfo>> = {
@@ -195,6 +226,40 @@ export const FIGURE_KIND_INFO: Readonly<Record<FigureKind, FigureKindInfo>> = {
       fall: num(true, 'V', 'largest acceptable output fall: V, or a % of Vout_nom', POSITIVE_KEY, BENCH_KINDS, FALL_PERCENT),
       ripple: num(false, 'V', 'ripple riding on the input, V peak', bounds({ atLeast: 0 }), DC_ONLY),
       freq: num(false, 'Hz', 'frequency of that ripple, Hz', POSITIVE_KEY, DC_ONLY),
+    },
+  },
+  stress: {
+    title: 'part stress',
+    keys: {
+      vderate: num(true, 'ratio', 'derating of voltage ratings: a voltage above this ratio of its rating is marked', DERATE),
+      iderate: num(true, 'ratio', 'derating of current ratings, likewise', DERATE),
+      pderate: num(true, 'ratio', 'derating of power ratings, likewise', DERATE),
+    },
+  },
+  startup: {
+    title: 'switch-on',
+    keys: {
+      fall: num(true, 'V', 'settling band about the steady output: V, or a % of Vout_nom', POSITIVE_KEY, BENCH_KINDS, FALL_PERCENT),
+      tmax: num(false, 's', 'longest time simulated, s', SETTLE_TIME),
+    },
+  },
+  step: {
+    title: 'load step',
+    keys: {
+      from: num(false, 'A', 'load current before the step, A', LOAD_CURRENT, DC_ONLY),
+      to: num(false, 'A', 'load current after the step, A', LOAD_CURRENT, DC_ONLY),
+      rise: num(false, 's', 'rise (or fall) time of the step, s', SETTLE_TIME, DC_ONLY),
+      band: num(true, 'V', 'recovery band about the new steady output: V, or a % of Vout_nom', POSITIVE_KEY, DC_ONLY, FALL_PERCENT),
+      tmax: num(false, 's', 'longest time simulated after the step, s', SETTLE_TIME, DC_ONLY),
+    },
+    distinct: ['from', 'to'],
+  },
+  // thermal figure (docs/thermal.md)
+  thermal: {
+    title: 'junction temperatures',
+    keys: {
+      tamb: num(false, '°C', 'ambient temperature, °C (default: the figure temperature, the first .temp)', bounds({ atLeast: MIN_AMBIENT_CELSIUS })),
+      selfheat: num(false, '', '1: also solve the electro-thermal operating point at nominal (thermal.vout_drift); 0 (default): not', bounds({ atLeast: 0, atMost: 1 }), DC_ONLY),
     },
   },
 };

@@ -203,11 +203,15 @@ class DiodeImpl implements Diode {
     return this.topo;
   }
 
+  forwardCurrent(x: Float64Array, state: Float64Array): number {
+    const cur = this.cur;
+    evalDiode(at(x, this.ja) - at(x, this.nodes[1]), this.scaled, this.vt, cur);
+    return cur.i + (state[this.chargeOff + 1] ?? 0);
+  }
+
   report(x: Float64Array, state: Float64Array): DeviceReport {
     const [a, k] = this.nodes;
-    const cur = { i: 0, g: 0 };
-    evalDiode(at(x, this.ja) - at(x, k), this.scaled, this.vt, cur);
-    const i = cur.i + (state[this.chargeOff + 1] ?? 0);
+    const i = this.forwardCurrent(x, state);
     return { currents: [['', i]], power: (at(x, a) - at(x, k)) * i };
   }
 }

@@ -64,6 +64,9 @@ export interface BjtModel {
   /** IS temperature exponent. */ readonly XTI: number;
   /** Beta temperature exponent. */ readonly XTB: number;
   /** Power rating, W; undefined = none. */ readonly PMAX: number | undefined;
+  /** Collector-emitter voltage rating V_CEO (IEC 60747-7), V; undefined = none. */ readonly VCEMAX: number | undefined;
+  /** Collector-base voltage rating V_CBO (IEC 60747-7), V; undefined = none. */ readonly VCBMAX: number | undefined;
+  /** Continuous collector current rating I_C (IEC 60747-7), A; undefined = none. */ readonly ICMAX: number | undefined;
 }
 
 /** Diode parameter table, defaults per netlist.md. */
@@ -108,6 +111,9 @@ export const BJT_PARAMS: readonly ParamSpec[] = [
   { name: 'XTI', default: 3, unit: '', doc: 'IS temperature exponent', range: ANY },
   { name: 'XTB', default: 0, unit: '', doc: 'beta temperature exponent', range: ANY },
   { name: 'PMAX', default: undefined, unit: 'W', doc: 'power rating', range: POSITIVE },
+  { name: 'VCEMAX', default: undefined, unit: 'V', doc: 'collector-emitter voltage rating (VCEO)', range: POSITIVE },
+  { name: 'VCBMAX', default: undefined, unit: 'V', doc: 'collector-base voltage rating (VCBO)', range: POSITIVE },
+  { name: 'ICMAX', default: undefined, unit: 'A', doc: 'continuous collector current rating (IC)', range: POSITIVE },
 ];
 
 

@@ -140,6 +140,12 @@ export interface Diode extends Device {
   readonly model: DiodeModel;
   /** Area factor (dimensionless). */
   readonly area: number;
+  /**
+   * Current from anode to cathode (A) in solution `x` with charge state
+   * `state`: the junction current (Shockley, models.md) plus the charge
+   * current, as {@link Device.report} gives it, without allocating.
+   */
+  forwardCurrent(x: Float64Array, state: Float64Array): number;
 }
 
 /** Bipolar transistor (Ebers-Moll transport form with Early effect). */

@@ -121,6 +121,8 @@ function deltaText(f: FigureComparison): string {
   const sign = d > 0 ? '+' : '';
   const body = match(f.unit)
     .with('flag', 'ratio', () => `${Number(d.toPrecision(4))}`)
+    // A difference of two Celsius temperatures is in kelvin (thermal figure, docs/thermal.md).
+    .with('°C', () => `${d.toFixed(2)} K`)
     .otherwise((u) => formatFigureValue(f.name, d, u));
   return `${sign}${body}`;
 }

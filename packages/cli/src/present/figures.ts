@@ -4,11 +4,11 @@
  * measured" with the reason), each limit with pass, FAIL or not evaluated,
  * and a one-line verdict.
  */
-import { errorAt, FIGURE_KIND_INFO, figureEntry, formatSI, type Diagnostic, type FigureReport, type FigureUnit, type LimitResult, type RunReport } from '@railcheck/core';
+import { errorAt, FIGURE_KIND_INFO, figureEntry, formatSI, type Diagnostic, type FigureReport, type FigureUnit, type LimitResult, type RunReport, type StressRow } from '@railcheck/core';
 import { match } from 'ts-pattern';
 import { heading, table } from './table.js';
 
-/** A figure value with its unit (figure registry): SI prefixes for V, V/V, Ω, W; fixed decimals for dB and percentages; a flag with its words. */
+/** A figure value with its unit (figure registry): SI prefixes for V, V/V, Ω, W; fixed decimals for dB, °C and K; four digits for percentages and K/W; a flag with its words. */
 export function formatFigureValue(name: string, value: number, unit: FigureUnit): string {
   return match(unit)
     .with('dB', () => `${value.toFixed(2)} dB`)
@@ -18,7 +18,10 @@ export function formatFigureValue(name: string, value: number, unit: FigureUnit)
       return words ? `${value} (${value === 1 ? words.one : words.zero})` : `${value}`;
     })
     .with('ratio', () => `${Number(value.toPrecision(4))}`)
-    .with('V', 'V/V', 'Ω', 'W', (u) => formatSI(value, u))
+    .with('V', 'A', 's', 'V/V', 'Ω', 'W', (u) => formatSI(value, u))
+    // thermal figure (docs/thermal.md): temperatures and differences to a hundredth of a kelvin
+    .with('°C', 'K', (u) => `${value.toFixed(2)} ${u}`)
+    .with('K/W', (u) => `${Number(value.toPrecision(4))} ${u}`)
     .exhaustive();
 }
 
@@ -68,6 +71,17 @@ export function notMeasuredNames(figures: FigureReport): string[] {
   );
 }
 
+/** The words of a stress row's status. */
+const STATUS_WORDS: Readonly<Record<StressRow['status'], string>> = { over: 'OVER', margin: 'past derating', ok: '' };
+
+/** The stress table (docs/stress.md): per part and rated quantity the worst value, the rating, the ratio, a mark, and where the worst was reached. */
+export function formatStressTable(rows: readonly StressRow[]): string {
+  // The first column is the value's own name, as a .limit writes it.
+  const head = ['value', 'worst', 'rating', 'ratio', 'mark', 'where'];
+  const body = rows.map((r) => [`stress.${r.element}.${r.quantity}`, formatSI(r.value, r.unit), `${formatSI(r.rating, r.unit)} ${r.ratedBy}`, r.ratio.toFixed(3), STATUS_WORDS[r.status], r.where]);
+  return table([head, ...body], '      ', true);
+}
+
 /** Every figure with its conditions and values; a figure or value not measured says so under its title, with the reason. */
 export function formatFigures(figures: FigureReport, temperature: number): string {
   const lines = [heading(`Figures at ${temperature} °C`)];
@@ -83,8 +97,11 @@ export function formatFigures(figures: FigureReport, temperature: number): strin
     match(f)
       .with({ ok: true }, (g) => {
         lines.push(`  ${FIGURE_KIND_INFO[g.kind].title} — ${g.conditions}`);
-        const rows = Object.entries(g.values).map(([n, v]) => [n, formatFigureValue(n, v, g.units[n]!)]);
+        // The stress figure's values are its table's ratios: the table says them with the values behind them.
+        const shown = Object.entries(g.values).filter(([n]) => !g.stress || n === 'stress.worst');
+        const rows = shown.map(([n, v]) => [n, formatFigureValue(n, v, g.units[n]!)]);
         if (rows.length > 0) lines.push(table(rows, '      '));
+        if (g.stress) lines.push(formatStressTable(g.stress));
         // The reason names the value.
         for (const v of g.notMeasured) lines.push(`      not measured: ${reasonText(v.reason)}`);
       })

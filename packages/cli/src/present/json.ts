@@ -41,6 +41,13 @@ export function limitJson(l: LimitResult): Record<string, unknown> {
     .exhaustive();
 }
 
+/** `stress`: the stress figure's rows with snake-case keys, or nothing when no stress figure was measured. */
+function stressJson(report: RunReport): Record<string, unknown> {
+  const f = report.figures?.figures.find((g) => g.ok && g.stress);
+  if (!f || !f.ok || !f.stress) return {};
+  return { stress: f.stress.map((r) => ({ element: r.element, quantity: r.quantity, unit: r.unit, worst: r.value, rating: r.rating, rated_by: r.ratedBy, ratio: r.ratio, derate: r.derate, status: r.status, where: r.where })) };
+}
+
 /** Builds the JSON object for a run. */
 export function reportJson(report: RunReport, steps = false): Record<string, unknown> {
   const nominal = report.operatingPoints[0];
@@ -69,6 +76,8 @@ export function reportJson(report: RunReport, steps = false): Record<string, unk
     limits: (report.figures?.limits ?? []).map(limitJson),
     not_measured: notMeasuredJson(report.figures),
     figure_conditions: Object.fromEntries((report.figures?.figures ?? []).flatMap((f) => (f.ok ? [[f.kind, f.conditions]] : []))),
+    // The stress figure's table (docs/stress.md), when it was measured.
+    ...stressJson(report),
     warnings: report.warnings.map((w) => formatDiagnostic({ ...w, severity: 'warning' }).split('\n')[0]!),
     operating_points: report.operatingPoints.map((p) => ({ temperature: p.temperature, method: p.method, iterations: p.iterations, basis: cycle ? 'switch-on' : 'dc', ...op(p) })),
     sweeps: report.sweeps.map((s) => ({ source: s.source, temperature: s.temperature, values: s.values, nodes: s.nodes, currents: s.currents })),

@@ -58,10 +58,13 @@ export function edgeTexts(name: string, edges: readonly number[], unit: FigureUn
   for (let digits = 5; digits <= 9; digits++) {
     const texts = edges.map((e) =>
       match(unit)
-        .with('V', 'V/V', 'Ω', 'W', (u) => formatSI(e, u, digits))
+        .with('V', 'A', 's', 'V/V', 'Ω', 'W', (u) => formatSI(e, u, digits))
         .with('dB', () => `${e.toFixed(digits - 2)} dB`)
         .with('%', '%/V', (u) => `${Number(e.toPrecision(digits))} ${u}`)
         .with('ratio', 'flag', () => `${Number(e.toPrecision(digits))}`)
+        // thermal figure (docs/thermal.md)
+        .with('°C', 'K', (u) => `${e.toFixed(digits - 2)} ${u}`)
+        .with('K/W', (u) => `${Number(e.toPrecision(digits))} ${u}`)
         .exhaustive(),
     );
     if (distinct(texts)) return texts;

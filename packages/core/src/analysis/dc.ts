@@ -12,6 +12,7 @@ import type { CompiledCircuit } from '../engine/compile.js';
 import { solveOperatingPoint, type OpMethod, type OpOutcome } from '../engine/dcop.js';
 import { continueAlong, lerp } from '../engine/continuation.js';
 import { readSolution, type SolutionValues } from './solution.js';
+import type { StressMeter } from './stress.js';
 import { formatSI } from '../units.js';
 
 /** The DC operating point at one temperature. */
@@ -82,8 +83,9 @@ const MAX_HALVINGS = 12;
 /**
  * Sweeps source `sourceKey` from `start` to `stop` by `step` (V or A) and
  * records every node and element current; restores the source's DC value.
+ * With `meter`, every point's part stress is kept (analysis/stress.ts).
  */
-export function dcSweep(c: CompiledCircuit, temperature: number, sourceKey: string, start: number, stop: number, step: number, origin?: CardOrigin): DcSweep {
+export function dcSweep(c: CompiledCircuit, temperature: number, sourceKey: string, start: number, stop: number, step: number, origin?: CardOrigin, meter?: StressMeter): DcSweep {
   const src = c.sources.get(sourceKey);
   if (!src) throw new RailcheckError([errorAt('unknown-sweep-source', `no independent source '${sourceKey}' to sweep`, origin?.pos, origin?.lineText)]);
   const nominal = src.dc;
@@ -109,6 +111,7 @@ export function dcSweep(c: CompiledCircuit, temperature: number, sourceKey: stri
       }
       last = v;
       values.push(v);
+      meter?.point(c.ws.x, c.ws.states[0], `the DC sweep of ${src.name} at ${formatSI(v, '')} (${temperature} °C)`);
       const sol = readSolution(c);
       for (const [name, volts] of Object.entries(sol.nodes)) (nodes[name] ??= []).push(volts);
       for (const [name, amps] of Object.entries(sol.currents)) (currents[name] ??= []).push(amps);

@@ -4,6 +4,8 @@
  * linear interpolation between accepted points), the accepted points
  * themselves, and the stepper's counters.
  */
+import type { StressMeter } from './stress.js';
+import type { LoadContext } from '@railcheck/devices';
 import { JUNCTION_CMIN } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CardOrigin } from '../netlist/ast.js';
@@ -122,9 +124,13 @@ const BUDGET_EXPECTED: Record<TransientBudgetExcess['budget'], string> = {
  * cannot complete. A budget it would exceed is reported at the source
  * responsible when there is one, else at the `.tran` card (the run's
  * output as a whole is checked against MAX_OUTPUT_VALUES in pipeline/run.ts).
+ * With `meter`, the peaks of part stress over the run are kept (analysis/stress.ts).
  */
-export function transient(c: CompiledCircuit, temperature: number, req: TransientRequest, origin?: CardOrigin): TransientResult {
-  const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc, junctionCmin: JUNCTION_CMIN });
+export function transient(c: CompiledCircuit, temperature: number, req: TransientRequest, origin?: CardOrigin, meter?: StressMeter): TransientResult {
+  // Peaks over the whole run: a mean over a switch-on is no rated quantity (docs/stress.md).
+  meter?.begin(`the transient at ${temperature} °C`, false);
+  const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc, junctionCmin: JUNCTION_CMIN, ...(meter ? { onAccept: (t: number, ctx: LoadContext) => meter.sample(t, ctx.x, ctx.state) } : {}) });
+  meter?.end();
   if (!outcome.ok && outcome.reason === 'budget') {
     const e = outcome.excess;
     const element = e.source === undefined ? undefined : c.flat.elements.find((el) => el.key === e.source);

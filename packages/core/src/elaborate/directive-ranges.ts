@@ -75,7 +75,7 @@ export function checkFigureKeys(ev: Evaluator, cards: readonly FigureCard[], fig
 }
 
 /** Parameters that are ratings, not values a part varies by: a tolerance on them means nothing. */
-const NOT_SPREADABLE: ReadonlySet<string> = new Set(['PMAX']);
+const NOT_SPREADABLE: ReadonlySet<string> = new Set(['PMAX', 'VCEMAX', 'VCBMAX', 'ICMAX']);
 
 /**
  * Checks one `.spread` line (docs/netlist.md, ".spread"): its ratio in

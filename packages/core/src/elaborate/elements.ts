@@ -9,6 +9,7 @@ import {
 import { match } from 'ts-pattern';
 import type { BjtCard, CardOrigin, DeviceCard, DiodeCard, ElementCard, ModelCard, Value, Waveform } from '../netlist/ast.js';
 import type { FlatElement } from './flat.js';
+import { PART_DATA, PART_DATA_KEYS, type PartData, type PartDataKey } from '../part-data.js';
 import { lookupModel, resolveNode, type Scope } from './scope.js';
 import type { Evaluator } from './evaluate.js';
 
@@ -191,11 +192,26 @@ function bindModel(env: ElementEnv, card: DiodeCard | BjtCard, kind: 'diode' | '
   return { model: found.card, scope: found.scope };
 }
 
+/** Valid temperatures of `tjmax=`, °C: above absolute zero and below 1000 °C (no semiconductor junction is rated near either; common practice, no source). */
+const TJ_RANGE: ValueRange = { above: -273.15, below: 1000 };
+
+/** The card's part data (part-data.ts), each value checked: ratings and thermal resistances within the rating range, temperatures within {@link TJ_RANGE}. */
+function partData(env: ElementEnv, card: DeviceCard): PartData {
+  const out: Partial<Record<PartDataKey, number>> = {};
+  for (const k of PART_DATA_KEYS) {
+    const v = card.part?.[k];
+    if (v === undefined) continue;
+    const info = PART_DATA[k];
+    out[k] = ranged(env, card, v, `${info.title} (${k})`, info.temperature ? TJ_RANGE : RATING_RANGE);
+  }
+  return out;
+}
+
 /** Converts a non-instance element card; undefined when it had errors (already recorded). */
 export function flattenElement(env: ElementEnv, card: Exclude<ElementCard, { kind: 'X' }>): FlatElement | undefined {
   const { ev, scope } = env;
   const name = scope.prefixName + card.name;
-  const base = { name, key: name.toLowerCase(), origin: { pos: card.pos, lineText: card.lineText }, pmax: card.pmax ? ranged(env, card, card.pmax, 'power rating (pmax)', RATING_RANGE) : undefined };
+  const base = { name, key: name.toLowerCase(), origin: { pos: card.pos, lineText: card.lineText }, pmax: card.pmax ? ranged(env, card, card.pmax, 'power rating (pmax)', RATING_RANGE) : undefined, part: partData(env, card) };
   const before = ev.errorCount();
   const area = (c: DiodeCard | BjtCard): number => (c.area ? ranged(env, c, c.area, 'area', AREA_RANGE) : 1);
   const el = match(card)

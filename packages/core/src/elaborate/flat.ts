@@ -6,6 +6,7 @@
 import type { DeviceKind, DeviceSpecs } from '@railcheck/devices';
 import type { CardOrigin, FigureKind, LimitOp } from '../netlist/ast.js';
 import { Brand } from '../arguments.js';
+import type { PartData } from '../part-data.js';
 
 /** Key of the ground node. */
 export const GROUND_KEY = '0';
@@ -25,6 +26,8 @@ interface FlatBase {
   readonly origin: CardOrigin;
   /** Power rating in watts from `pmax=` (or the model's PMAX). */
   readonly pmax: number | undefined;
+  /** Ratings and thermal data from the element's options (part-data.ts; units there); empty when none is given. */
+  readonly part: PartData;
 }
 
 /**

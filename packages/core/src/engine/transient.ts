@@ -32,6 +32,12 @@ export interface TransientOptions {
   readonly method?: IntegrationMethod;
   /** Start from the elements' ic= values (0 where absent) instead of the operating point. */
   readonly fromIc?: boolean;
+  /**
+   * Start from everything discharged (switch-on): every capacitor and
+   * junction charge and every inductor flux zero, the `ic=` values ignored,
+   * the sources at their t = 0 values; taken like `fromIc`.
+   */
+  readonly discharged?: boolean;
   /** Relative LTE tolerance (default 1e-3). */
   readonly lteReltol?: number;
   /** Absolute LTE tolerance on voltages, V (default 1e-6). */
@@ -283,12 +289,12 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     ctx.gmin = FINAL_GMIN;
     ctx.sourceScale = 1;
     ctx.junctionCmin = opts.junctionCmin ?? 0;
-    if (opts.fromIc) {
-      // A backward-Euler step of vanishing length from the ic= state: capacitors act as
-      // voltage sources at their ic (0 if absent), inductors as current sources.
+    if (opts.fromIc || opts.discharged) {
+      // A backward-Euler step of vanishing length from the ic= state (or from zero charge): capacitors
+      // act as voltage sources at their ic (0 if absent or discharged), inductors as current sources.
       x.fill(0);
       state.fill(0);
-      for (const d of c.devices) d.seedInitialCondition?.(state);
+      if (!opts.discharged) for (const d of c.devices) d.seedInitialCondition?.(state);
       statePrev.set(state);
       ctx.mode = 'tran';
       ctx.time = 0;

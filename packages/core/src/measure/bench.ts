@@ -19,6 +19,7 @@ import type { SharedStepBudget } from '../engine/transient.js';
 import { Brand } from '../arguments.js';
 import type { SteadyInfo } from './periodic.js';
 import type { Stage } from './stage.js';
+import type { SettleDistance } from './settling.js';
 
 /** Where the bench's stage sits: input level (on the bench's axis) and load current. */
 export interface StageSetting {
@@ -143,6 +144,40 @@ export interface DipPlan {
   run(depth: number, tEnd: number, observe: (timeSeconds: number, outputVolts: number) => void, shared: SharedStepBudget): void;
 }
 
+/** How a settling run ended: judged settled at time `at` (s), or not by its end, with the unknown furthest from the steady state. */
+export type SettlingOutcome = { readonly settled: true; readonly at: number } | { readonly settled: false; readonly furthest: SettleDistance };
+
+/**
+ * A transient towards a known steady state, as a bench runs it
+ * (figures.md, startup and step): a switch-on from everything discharged,
+ * or a load step from the steady state at the first current.
+ */
+export interface SettlingPlan {
+  /** Least and greatest output of the steady state the run settles to, V on the rail side (equal on a DC bench; the settled cycle's on a sine-fed one). */
+  readonly steadyMin: number;
+  readonly steadyMax: number;
+  /** Output before the run, V on the rail side: the steady output at the first current of a load step, 0 at switch-on. */
+  readonly before: number;
+  /** Length of one source cycle, s, between the checks of a sine-fed bench; 0 on a DC bench, which checks at every accepted point. */
+  readonly checkEvery: number;
+  /**
+   * Runs until `tEnd` s, handing every accepted point's time (s),
+   * solution (V, A by unknown index) and charge state to `observe`. It
+   * ends early, settled, at the first check where the state is close to
+   * the steady one (settling.ts, SteadyCheck: node voltages within `voltTol`
+   * V). Every step tried takes one from `shared`. Throws RailcheckError
+   * when the transient fails (code `budget-…` for a budget).
+   */
+  run(tEnd: number, voltTol: number, observe: (timeSeconds: number, x: Float64Array, state: Float64Array) => void, shared: SharedStepBudget): SettlingOutcome;
+}
+
+/** A load step (figures.md, step): currents drawn from the rail, A, and the rise time, s. */
+export interface LoadStepShape {
+  readonly from: number;
+  readonly to: number;
+  readonly rise: number;
+}
+
 /** What every bench offers the figures. */
 export interface BenchCommon {
   /** Which strategy: `dc` or `sine-fed` (figure registry). */
@@ -179,6 +214,10 @@ export interface BenchCommon {
   steadyRipple(hertz: number, amp: number): SteadyRipple;
   /** Plans dips of one shape. Throws RailcheckError. */
   planDip(shape: DipShape): DipPlan;
+  /** Plans the switch-on from everything discharged, with the input and load at nominal. Throws RailcheckError. */
+  planStartup(): SettlingPlan;
+  /** Plans a load step at nominal input, from the steady state at `step.from`. Throws RailcheckError (a sine-fed bench: not supported yet). */
+  planStep(step: LoadStepShape): SettlingPlan;
 }
 
 /** A DC-fed stage's bench. */

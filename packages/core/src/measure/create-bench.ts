@@ -52,6 +52,6 @@ export function benchOnCircuit(circuit: CompiledCircuit, celsius: number, from?:
   setCircuitTemperature(circuit, celsius);
   // Every transient of every figure on this bench draws from one allowance (budgets.ts).
   circuit.ws.stepAllowance = { left: MAX_BENCH_STEPS, budget: 'MAX_BENCH_STEPS', limit: MAX_BENCH_STEPS };
-  const stage = makeStage(circuit, supply);
+  const stage = makeStage(circuit, supply, celsius);
   return BENCHES.mark(stage.inputWaveform?.kind === 'sin' ? createSineFedBench(stage, from) : createDcBench(stage, from));
 }

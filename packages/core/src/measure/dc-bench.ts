@@ -15,10 +15,12 @@ import { describeTransientFailure, runTransient, transientFailureCode } from '..
 import { opFailure } from '../analysis/dc.js';
 import { readSolution } from '../analysis/solution.js';
 import { formatSI } from '../units.js';
-import { dipBottomEnd, dipCorners, type BenchStart, type DcBench, type DipPlan, type DipShape, type OutputStats, type StageSetting, type SteadyRipple, type SteadyWalk } from './bench.js';
+import { dipBottomEnd, dipCorners, type BenchStart, type DcBench, type DipPlan, type DipShape, type LoadStepShape, type OutputStats, type SettlingOutcome, type SettlingPlan, type StageSetting, type SteadyRipple, type SteadyWalk } from './bench.js';
+import { SteadyCheck } from './settling.js';
+import type { SharedStepBudget } from '../engine/transient.js';
 import { settleCycle, type SteadyInfo } from './periodic.js';
 import { inputTransfer, smallSignalStart } from './small-signal.js';
-import { applyDrive, loadCurrentOf, onRail, solveSetting, vout, type DcSetting, type Drive, type Stage } from './stage.js';
+import { applyDrive, loadCurrentOf, meterPoints, onRail, solveSetting, vout, type DcSetting, type Drive, type Stage } from './stage.js';
 
 /** Width of the final dropout bracket, V: well inside the 1 mV figures.md asks for. */
 const DROPOUT_INPUT_TOLERANCE = 1e-4;
@@ -33,6 +35,17 @@ const SAG_LTE_RELTOL = 1e-5;
 
 /** Least steps per ripple cycle in a dip transient (a sine's peak-to-peak to about 0.01 %). */
 const SAG_STEPS_PER_CYCLE = 200;
+
+/** Largest internal step of a settling run (switch-on, load step), as a share of its length: the band crossing is interpolated between points at most this far apart. */
+const SETTLE_MAX_STEP_SHARE = 1e-3;
+/**
+ * Truncation-error tolerance of a settling run: a settling time is read
+ * where the output crosses a band of the order of 1 % of the output, and
+ * moves by τ·(error/band), so the step control is held to 1 µV per volt.
+ */
+const SETTLE_LTE_RELTOL = 1e-6;
+/** `tstep` of a settling run as a share of its length (the first step is a hundredth of it). */
+const SETTLE_FIRST_STEP_SHARE = 1e-9;
 
 /** The nominal state of the bench's circuit: solution and device state (junction memory, charges). */
 interface Snapshot {
@@ -64,6 +77,7 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
   const voutNominal = Math.abs(signed);
   const loadNominal = loadCurrentOf(stage, voutNominal);
   const snapshot: Snapshot = { x: new Float64Array(ws.x), state: new Float64Array(ws.states[0]), statePrev: new Float64Array(ws.states[1]) };
+  stage.meter?.point(ws.x, ws.states[0], 'the nominal point');
   const nominalSetting: DcSetting = { vin: stage.inputDc, loadAmps: loadNominal };
   const nominalDrive = (extra: Partial<Drive> = {}): Drive => ({ dc: stage.inputDc, waveform: stage.inputWaveform, loadAmps: loadNominal, ...extra });
 
@@ -80,7 +94,8 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
   };
   /** Every solve that does not continue a walk starts from the nominal state. */
   const reset = (drive: Drive): void => restore(snapshot, drive);
-  const statsHere = (power: boolean): OutputStats => {
+  const statsHere = (power: boolean, what: string): OutputStats => {
+    stage.meter?.point(ws.x, ws.states[0], what);
     const v = railSign * vout(stage);
     return { mean: v, min: v, max: v, pp: 0, power: power ? readSolution(c).power : undefined, feed: undefined, steady: undefined };
   };
@@ -97,7 +112,7 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
         here.x.set(ws.x);
         here.state.set(ws.states[0]);
         here.statePrev.set(ws.states[1]);
-        return statsHere(power);
+        return statsHere(power, what);
       },
     };
   };
@@ -111,11 +126,45 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
     reset(nominalDrive({ inputAc: amp }));
     const start = smallSignalStart(stage, hertz);
     applyDrive(stage, nominalDrive({ waveform: sine(amp, hertz, stage.inputDc) }), voutNominal);
-    const periodic = settleCycle(c, { period: 1 / hertz, probes: [(x: Float64Array) => vout(stage, x)], initialSolution: start }, what, stage.supply.origin);
+    stage.meter?.begin(`${what}: the settled cycle`, true);
+    const periodic = settleCycle(c, { period: 1 / hertz, probes: [(x: Float64Array) => vout(stage, x)], initialSolution: start, ...meterPoints(stage) }, what, stage.supply.origin);
+    stage.meter?.end();
     const last = periodic.last[0]!;
     return { solution: periodic.solution, start: periodic.start, steady: periodic.steady, outPp: last.max - last.min };
   };
   const sign: 1 | -1 = stage.inputDc < 0 ? -1 : 1;
+  const copy = (): Snapshot => ({ x: new Float64Array(ws.x), state: new Float64Array(ws.states[0]), statePrev: new Float64Array(ws.states[1]) });
+  /**
+   * A settling run with `drive` applied: from everything discharged (`from`
+   * undefined) or from the DC state `from`, until the state is close to
+   * `target` (SteadyCheck) at an accepted point, or `tEnd`.
+   */
+  const settle = (what: string, drive: Drive, from: Snapshot | undefined, target: Float64Array, tEnd: number, voltTol: number, observe: (t: number, x: Float64Array, state: Float64Array) => void, shared: SharedStepBudget): SettlingOutcome => {
+    restore(from ?? snapshot, drive);
+    const check = new SteadyCheck(c, target, voltTol);
+    let at: number | undefined;
+    const r = runTransient(c, {
+      // The first step is tstep/100 and the step at most doubles per step: starting at 1e-11 of the run
+      // costs a few dozen steps and resolves a time constant far shorter than the run.
+      tstep: tEnd * SETTLE_FIRST_STEP_SHARE,
+      tstop: tEnd,
+      tmax: tEnd * SETTLE_MAX_STEP_SHARE,
+      lteReltol: SETTLE_LTE_RELTOL,
+      junctionCmin: JUNCTION_CMIN,
+      keepTrace: false,
+      ...(from ? { initialSolution: from.x } : { discharged: true }),
+      onAccept: (t, ctx) => {
+        observe(t, ctx.x, ctx.state);
+        check.observe(ctx.x);
+        if (!check.near(ctx.x)) return false;
+        at = t;
+        return true;
+      },
+      shared,
+    });
+    if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `${what}: the transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))}`, stage.supply.origin.pos, stage.supply.origin.lineText)]);
+    return at === undefined ? { settled: false, furthest: check.furthest() } : { settled: true, at };
+  };
 
   return {
     kind: 'dc',
@@ -156,6 +205,7 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
           const low = nominal * (1 - depth);
           const dip: WaveformSpec = { kind: 'pwl', times: dipCorners(t0, shape.edge, shape.dur), values: [nominal, nominal, low, low, nominal] };
           reset(nominalDrive({ waveform: rippled ? { kind: 'sum', parts: [dip, sine(shape.ripple, shape.freq, 0)] } : dip }));
+          stage.meter?.begin(`sag: a dip of ${(depth * 100).toFixed(1)} %`, false);
           const bottomEnd = dipBottomEnd(plan, shape.edge);
           const r = runTransient(c, {
             tstep: Math.min(shape.edge, shape.dur) / 10,
@@ -167,13 +217,41 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
             keepTrace: false,
             ...(settled ? { initialSolution: settled.solution, startTime: settled.start } : {}),
             extraBreakpoints: rippled ? [t0 - period, bottomEnd - period, bottomEnd].filter((t) => t > 0) : [],
-            onAccept: (t, ctx) => observe(t, railSign * vout(stage, ctx.x)),
+            onAccept: (t, ctx) => {
+              stage.meter?.sample(t, ctx.x, ctx.state);
+              observe(t, railSign * vout(stage, ctx.x));
+            },
             shared,
           });
+          stage.meter?.end();
           if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `sag: the dip transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))} (depth ${(depth * 100).toFixed(1)} %)`, stage.supply.origin.pos, stage.supply.origin.lineText)]);
         },
       };
       return plan;
+    },
+    planStartup(): SettlingPlan {
+      // The input steps to its DC value at t = 0 (no waveform), the load at nominal.
+      const drive = nominalDrive({ waveform: undefined });
+      return { steadyMin: voutNominal, steadyMax: voutNominal, before: 0, checkEvery: 0, run: (tEnd, voltTol, observe, shared) => settle('startup', drive, undefined, snapshot.x, tEnd, voltTol, observe, shared) };
+    },
+    planStep(step: LoadStepShape): SettlingPlan {
+      const l = stage.load;
+      const origin = stage.supply.origin;
+      if (l?.kind !== 'current') {
+        const why = l === undefined ? 'the step figure needs the load element named on the .supply line' : `the step figure needs a current-source load (an I element) to step; ${l.name} is a resistor`;
+        throw new RailcheckError([errorAt('no-load', why, origin.pos, origin.lineText, '.supply ... load=<I element>')]);
+      }
+      // The DC states at both currents, by continuation from nominal and then from the first.
+      const w = walk();
+      const level = stage.inputDc;
+      const before = w.solve({ level, loadAmps: step.from }, 'load step, first current').mean;
+      const from = copy();
+      const after = w.solve({ level, loadAmps: step.to }, 'load step, second current').mean;
+      const target = new Float64Array(ws.x);
+      // The load ramps from the first current to the second over `rise`, from t = 0 (in the source's own sense).
+      const ramp: WaveformSpec = { kind: 'pwl', times: [0, step.rise], values: [l.direction * step.from, l.direction * step.to] };
+      const drive = nominalDrive({ waveform: undefined, loadAmps: step.from, loadWaveform: ramp });
+      return { steadyMin: after, steadyMax: after, before, checkEvery: 0, run: (tEnd, voltTol, observe, shared) => settle('load step', drive, from, target, tEnd, voltTol, observe, shared) };
     },
   };
 }

@@ -17,6 +17,13 @@ import { describeSteady } from './periodic.js';
 import { lineRegulation, loadRegulation } from './regulation.js';
 import { rippleRejection } from './ripple.js';
 import { sagRideThrough } from './sag.js';
+import { stressTable } from './stress.js';
+import type { StressRow } from '../analysis/stress.js';
+import { settleBandVolts, startup } from './startup.js';
+import { loadStep } from './load-step.js';
+// thermal figure (docs/thermal.md)
+import { thermal } from './thermal.js';
+import { requireKey } from './keys.js';
 
 /** The values of one figure that was measured, and the conditions they were measured at. */
 export interface FigureValues {
@@ -25,6 +32,10 @@ export interface FigureValues {
   readonly values: Readonly<Record<string, number>>;
   /** What it was measured at, in words. */
   readonly conditions: string;
+  /** The stress figure's table (docs/stress.md); absent on every other figure. */
+  readonly stress?: readonly StressRow[];
+  /** Values of the figure this stage cannot have or could not give (`startup.ipk_rect` of a stage without a diode, an infinite heatsink allowance), each with the reason in words, not naming the value; reported as not measured. */
+  readonly omitted?: readonly { readonly name: string; readonly reason: string }[];
 }
 
 /** What one figure may use of the others measured on the same bench. */
@@ -39,6 +50,12 @@ export interface FigureContext {
 
 const amps = (a: number): string => formatSI(a, 'A');
 const volts = (v: number): string => formatSI(v, 'V');
+
+/** A band key (`fall=`, `band=`) in volts: written as `5%` a ratio of Vout_nom, a plain number volts; default 1 % of Vout_nom. */
+function bandVolts(f: FlatFigure, key: string, voutNominal: number): number {
+  const v = f.keys.get(key);
+  return settleBandVolts(v === undefined ? undefined : f.percentKeys.has(key) ? v * voutNominal : v, voutNominal);
+}
 
 /** The defined entries of a record of values, in their order. */
 function defined(values: Readonly<Record<string, number | undefined>>): Record<string, number> {
@@ -97,10 +114,8 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
         .exhaustive();
     })
     .with('dissipation', () => {
-      const line = ctx.all.find((g) => g.figure === 'line');
-      const load = ctx.all.find((g) => g.figure === 'load');
-      const range = load && bench.loadNominal !== undefined ? ([load.keys.get('from') ?? 0, load.keys.get('to') ?? bench.loadNominal] as const) : undefined;
-      const r = dissipation(bench, { highLevel: line?.keys.get('to'), loadRange: range, origin: f.origin });
+      const { highLevel, loadRange } = dissipationRanges(bench, ctx);
+      const r = dissipation(bench, { highLevel, loadRange, origin: f.origin });
       ctx.warnings.push(...r.warnings);
       const values: Record<string, number> = {};
       for (const [name, p] of Object.entries(r.pd)) values[`pd.${name}`] = p;
@@ -125,7 +140,70 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
         conditions: `${dip}, edges ${formatSI(r.edge, 's')}, pass if the fall ≤ ${volts(r.criterion)}`,
       };
     })
+    .with('stress', () => {
+      const { rows, derating } = stressTable(bench, f);
+      const values: Record<string, number> = { 'stress.worst': Math.max(...rows.map((r) => r.ratio)) };
+      for (const r of rows) values[`stress.${r.element}.${r.quantity}`] = r.ratio;
+      const conditions = `worst over every condition of the figures before it on this bench; marked past ${derating.voltage} of voltage, ${derating.current} of current and ${derating.power} of power ratings`;
+      return { kind: 'stress', values, conditions, stress: rows };
+    })
+    .with('startup', () => {
+      const r = startup(bench, { fall: bandVolts(f, 'fall', bench.voutNominal), tmax: k.get('tmax') });
+      const input = match(bench)
+        .with({ kind: 'dc' }, () => `input stepped to ${volts(bench.input.nominal)}`)
+        .with({ kind: 'sine-fed' }, (b) => `${volts(b.amplitude)} sine from t = 0`)
+        .exhaustive();
+      const band = r.steadyMin === r.steadyMax ? `within ${volts(r.fall)} of ${volts(r.steadyMax)}` : `within ${volts(r.fall)} of the settled cycle's ${volts(r.steadyMin)} … ${volts(r.steadyMax)}`;
+      const rect = r.rectifier === undefined ? '' : `, rectifier peak in ${r.rectifier}`;
+      return {
+        kind: 'startup',
+        values: defined({ 'startup.inrush': r.inrush, 'startup.ipk_rect': r.ipkRect, 'startup.settle': r.settle, 'startup.overshoot': r.overshoot }),
+        conditions: `from everything discharged, ${input}, ${loadText}; settled ${band}; steady state reached at ${formatSI(r.end, 's')}${rect}`,
+        omitted: r.ipkRect === undefined ? [{ name: 'startup.ipk_rect', reason: 'the stage has no diode, so there is no rectifier current to report' }] : [],
+      };
+    })
+    .with('step', () => {
+      const r = loadStep(bench, { from: k.get('from'), to: k.get('to'), rise: k.get('rise'), band: bandVolts(f, 'band', bench.voutNominal), tmax: k.get('tmax') });
+      return {
+        kind: 'step',
+        values: { 'step.dip': r.dip, 'step.peak': r.peak, 'step.recovery': r.recovery },
+        conditions: `load ${amps(r.from)} → ${amps(r.to)} in ${formatSI(r.rise, 's')}, input ${volts(bench.input.nominal)}; output ${volts(r.before)} → ${volts(r.after)}, recovery within ${volts(r.band)}; steady state reached at ${formatSI(r.end, 's')}`,
+      };
+    })
+    // thermal figure (docs/thermal.md)
+    .with('thermal', () => {
+      const { highLevel, loadRange } = dissipationRanges(bench, ctx);
+      const selfheat = k.get('selfheat') ?? 0;
+      requireKey('thermal', 'selfheat', selfheat, (v) => v === 0 || v === 1, 'is 0 (off) or 1 (on)');
+      const r = thermal(bench, { ambient: k.get('tamb'), selfHeat: selfheat === 1, highLevel, loadRange, origin: f.origin });
+      ctx.warnings.push(...r.notes);
+      const values: Record<string, number> = { 'thermal.worst_margin': Math.min(...r.rows.map((row) => row.margin)) };
+      const omitted: { name: string; reason: string }[] = [];
+      for (const row of r.rows) {
+        values[`thermal.${row.element}.tj`] = row.tj;
+        values[`thermal.${row.element}.margin`] = row.margin;
+        if (row.rthsinkMax.ok) values[`thermal.${row.element}.rthsink_max`] = row.rthsinkMax.value;
+        else omitted.push({ name: `thermal.${row.element}.rthsink_max`, reason: row.rthsinkMax.reason });
+      }
+      if (r.selfHeat?.ok) values['thermal.vout_drift'] = r.selfHeat.drift;
+      else if (r.selfHeat) omitted.push({ name: 'thermal.vout_drift', reason: r.selfHeat.reason });
+      const tjmaxText = r.rows.map((row) => `${row.element} ${row.tjmax} °C${row.tjmaxFrom === 'default' ? ' (default)' : ''}`).join(', ');
+      const corners = match(bench)
+        .with({ kind: 'dc' }, () => `largest dissipation over input / load ${r.corners.map((c) => `${volts(c.level)}${c.loadAmps === undefined ? '' : ` / ${amps(c.loadAmps)}`}`).join(', ')}`)
+        .with({ kind: 'sine-fed' }, (b) => `largest cycle-average dissipation at ${volts(b.amplitude)} and at ${r.corners[1]!.level}× amplitude`)
+        .exhaustive();
+      const warm = r.selfHeat?.ok ? `; self-heated at nominal in ${r.selfHeat.iterations} iterations (${Object.entries(r.selfHeat.junctions).map(([n, t]) => `${n} ${t.toFixed(1)} °C`).join(', ')})` : '';
+      return { kind: 'thermal', values, conditions: `ambient ${r.ambient} °C, ${corners}; tjmax ${tjmaxText}${warm}`, omitted };
+    })
     .exhaustive();
+}
+
+/** The dissipation figure's corners as the line and load figures of the netlist set them: the highest input and the load range. */
+function dissipationRanges(bench: Bench, ctx: FigureContext): { highLevel: number | undefined; loadRange: readonly [number, number] | undefined } {
+  const line = ctx.all.find((g) => g.figure === 'line');
+  const load = ctx.all.find((g) => g.figure === 'load');
+  const loadRange = load && bench.loadNominal !== undefined ? ([load.keys.get('from') ?? 0, load.keys.get('to') ?? bench.loadNominal] as const) : undefined;
+  return { highLevel: line?.keys.get('to'), loadRange };
 }
 
 /** figures.md, line: a warning when the line range starts below the dropout input (with the dropout figure's fall, else 100 mV). */

@@ -17,6 +17,7 @@ import { createBench } from './create-bench.js';
 import { dropout, type Dropout } from './dropout.js';
 import { measureFigure, type FigureValues } from './figure-values.js';
 import { COMPILED_CIRCUITS } from '../engine/compile.js';
+import { overRatingNotes } from './stress.js';
 import { checkOptions } from '../arguments.js';
 
 export type { FigureValues };
@@ -205,8 +206,13 @@ function withUnits(m: FigureValues, f: FlatFigure, bench: BenchKind, warnings: D
     notMeasured.push({ name, reason });
     warnings.push(warningAt('value-not-measured', `${name} was not measured: ${reason.message}`, f.origin.pos, f.origin.lineText));
   }
+  for (const o of m.omitted ?? []) {
+    const reason = errorAt('not-applicable', `${o.name}: ${o.reason}`, f.origin.pos, f.origin.lineText);
+    notMeasured.push({ name: o.name, reason });
+    warnings.push(warningAt('value-not-measured', `${o.name} was not measured: ${o.reason}`, f.origin.pos, f.origin.lineText));
+  }
   const units = Object.fromEntries(Object.keys(values).map((n) => [n, unitOf(n, bench)]));
-  return { ok: true, kind: m.kind, values, conditions: m.conditions, units, notMeasured };
+  return { ok: true, kind: m.kind, values, conditions: m.conditions, units, notMeasured, ...(m.stress ? { stress: m.stress } : {}) };
 }
 
 /** The figures when the bench's nominal point cannot be solved: each not measured with that one reason, and one note for them all. */
@@ -236,18 +242,26 @@ function measureOnBench(bench: Bench, all: readonly FlatFigure[], warnings: Diag
   };
   const figures = all.map((f) => readableKeys(f, bench.kind));
   for (const f of all) warnings.push(...unusedKeyNotes(f, bench.kind));
-  return figures.map((f): MeasuredFigure => {
-    let m: FigureValues;
-    try {
-      m = measureFigure(bench, f, { all: figures, dropoutAt, warnings });
-    } catch (e) {
-      if (!(e instanceof RailcheckError)) throw e;
-      const reason = reasonOf(e, f);
-      warnings.push(notMeasuredNote(f, reason));
-      return { ok: false, kind: f.figure, origin: f.origin, reason };
-    }
-    return withUnits(m, f, bench.kind, warnings);
-  });
+  // The stress figure judges what every other figure's solves went through, so it is measured last (docs/stress.md).
+  const order = figures.map((_, k) => k).sort((a, b) => Number(figures[a]!.figure === 'stress') - Number(figures[b]!.figure === 'stress'));
+  const out: MeasuredFigure[] = new Array<MeasuredFigure>(figures.length);
+  for (const k of order) out[k] = measureOne(bench, figures[k]!, figures, dropoutAt, warnings);
+  warnings.push(...overRatingNotes(bench));
+  return out;
+}
+
+/** One figure measured on the bench; a RailcheckError makes it not measured, with the reason. */
+function measureOne(bench: Bench, f: FlatFigure, figures: readonly FlatFigure[], dropoutAt: (fall: number) => Dropout, warnings: Diagnostic[]): MeasuredFigure {
+  let m: FigureValues;
+  try {
+    m = measureFigure(bench, f, { all: figures, dropoutAt, warnings });
+  } catch (e) {
+    if (!(e instanceof RailcheckError)) throw e;
+    const reason = reasonOf(e, f);
+    warnings.push(notMeasuredNote(f, reason));
+    return { ok: false, kind: f.figure, origin: f.origin, reason };
+  }
+  return withUnits(m, f, bench.kind, warnings);
 }
 
 /** True when the circuit's `.supply` input is a `sin` source: its operating point is a cycle average (figures.md). */

@@ -7,7 +7,7 @@
  */
 import { errorAt, RailcheckError } from '../errors.js';
 
-export { MAX_SAG_DURATION } from '../figure-registry.js';
+export { MAX_SAG_DURATION, MAX_SETTLE_TIME } from '../figure-registry.js';
 
 /**
  * Throws RailcheckError unless `ok(value)`; `expected` says the range in

@@ -14,7 +14,8 @@ import { errorAt, RailcheckError } from '../errors.js';
 import { describeTransientFailure, runTransient, transientFailureCode } from '../engine/transient.js';
 import { MAX_BREAKPOINTS } from '../budgets.js';
 import { formatSI } from '../units.js';
-import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type NodeCycle, type OutputStats, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
+import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type NodeCycle, type OutputStats, type SettlingPlan, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
+import { SteadyCheck } from './settling.js';
 import { settleCycle, type Probe } from './periodic.js';
 import { applyDrive, loadCurrentOf, onRail, vout, type Stage } from './stage.js';
 
@@ -29,6 +30,16 @@ const DROPOUT_RATIO_RESOLUTION = 1e-5;
 
 /** Least steps per source cycle in a dip transient (as in every periodic run). */
 const DIP_STEPS_PER_CYCLE = 200;
+
+/**
+ * Least steps per source cycle in a switch-on run: twice the periodic runs'
+ * 200, so that the sampled peak of a rectifier's conduction pulse (a small
+ * share of the cycle) lies close to the true one.
+ */
+const STARTUP_STEPS_PER_CYCLE = 400;
+
+/** Truncation-error tolerance of the switch-on run (the analysis default is 1e-3): the inrush peak is read off the accepted points. */
+const STARTUP_LTE_RELTOL = 1e-4;
 
 /** Where a solve starts: the solution at the start of a settled cycle, and that start time (s). */
 interface WarmStart {
@@ -61,6 +72,7 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
   if (fi !== undefined) probes.push((x) => x[fi]! - x[stage.refIndex]!, (x) => railSign * (x[fi]! - x[stage.outIndex]!));
   const wantTable = operatingPoint !== undefined;
   const names = power || wantTable ? c.devices.map((d) => d.name) : [];
+  const meter = stage.meter;
   const energy = new Float64Array(names.length);
   const lastP = new Float64Array(names.length);
   const charge = new Map<string, number>();
@@ -72,13 +84,16 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
   const lastV = new Float64Array(nodeIndex.length);
   let lastT = Number.NaN;
   applyDrive(stage, { dc: stage.inputDc, waveform: { ...sine, va: sine.va * setting.level }, loadAmps: setting.loadAmps }, voutNominal);
+  meter?.begin(`${what.replace(/: periodic steady state of the sine-fed stage$/, '')} (amplitude ${setting.level}×${setting.loadAmps === undefined ? '' : `, load ${formatSI(setting.loadAmps, 'A')}`})`, true);
   const periodic = settleCycle(c, {
     period,
     probes,
     ...(from ? { initialSolution: from.solution, start: from.start } : {}),
-    ...(names.length > 0
+    ...(names.length > 0 || meter
       ? {
           onPoint: (t, ctx) => {
+            meter?.sample(t, ctx.x, ctx.state);
+            if (names.length === 0) return;
             const dt = Number.isNaN(lastT) ? 0 : t - lastT;
             for (let k = 0; k < names.length; k++) {
               const rep = c.devices[k]!.report(ctx.x, ctx.state);
@@ -103,6 +118,7 @@ function steadyCycle(stage: Stage, sine: Sine, voutNominal: number, setting: Sta
         }
       : {}),
   }, what, stage.supply.origin);
+  meter?.end();
   const [o, feed, margin] = periodic.last;
   const perElement: Record<string, number> = {};
   names.forEach((n, k) => (perElement[n] = energy[k]! / period));
@@ -212,6 +228,7 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
           // Whole cycles are landed on, and the windows of the dip lie on them.
           const boundaries: number[] = [];
           for (let t = nominalStart.start + period; t < tEnd; t += period) boundaries.push(t);
+          stage.meter?.begin(`sag: an amplitude dip of ${(depth * 100).toFixed(1)} %`, false);
           const r = runTransient(stage.compiled, {
             tstep: period / 50,
             tstop: tEnd,
@@ -221,12 +238,64 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
             junctionCmin: JUNCTION_CMIN,
             extraBreakpoints: boundaries,
             keepTrace: false,
-            onAccept: (t, ctx) => observe(t, railSign * vout(stage, ctx.x)),
+            onAccept: (t, ctx) => {
+              stage.meter?.sample(t, ctx.x, ctx.state);
+              observe(t, railSign * vout(stage, ctx.x));
+            },
             shared,
           });
+          stage.meter?.end();
           if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `sag of the sine-fed stage: the dip transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))} (depth ${(depth * 100).toFixed(1)} %)`, origin.pos, origin.lineText)]);
         },
       };
+    },
+    planStartup(): SettlingPlan {
+      return {
+        steadyMin: nominal.min,
+        steadyMax: nominal.max,
+        before: 0,
+        checkEvery: period,
+        run(tEnd, voltTol, observe, shared) {
+          // The state is compared with the settled cycle's at every whole cycle, each landed on: count them first.
+          const cycles = tEnd / period;
+          if (!(cycles <= MAX_BREAKPOINTS)) {
+            throw new RailcheckError([errorAt('budget-breakpoints', `startup of the sine-fed stage: tmax spans ${cycles.toPrecision(3)} cycles of the source, each landed on, over the budget MAX_BREAKPOINTS = ${MAX_BREAKPOINTS}`, origin.pos, origin.lineText, 'a shorter tmax= or a lower source frequency')]);
+          }
+          // The sine from t = 0, the load at its own value: the nominal run's setting, from everything discharged.
+          applyDrive(stage, { dc: stage.inputDc, waveform: sine, loadAmps: undefined }, voutNominal);
+          const boundaries: number[] = [];
+          for (let k = 1; k * period < tEnd; k++) boundaries.push(k * period);
+          // The settled cycle starts at a whole number of periods after t = 0, as every cycle boundary here does.
+          const check = new SteadyCheck(stage.compiled, nominalStart.solution, voltTol);
+          let next = 0;
+          let at: number | undefined;
+          const r = runTransient(stage.compiled, {
+            tstep: period / 50,
+            tstop: tEnd,
+            discharged: true,
+            stepsPerCycle: STARTUP_STEPS_PER_CYCLE,
+            lteReltol: STARTUP_LTE_RELTOL,
+            junctionCmin: JUNCTION_CMIN,
+            extraBreakpoints: boundaries,
+            keepTrace: false,
+            onAccept: (t, ctx) => {
+              observe(t, ctx.x, ctx.state);
+              check.observe(ctx.x);
+              if (next >= boundaries.length || t < boundaries[next]! - 1e-9 * period) return false;
+              next++;
+              if (!check.near(ctx.x)) return false;
+              at = t;
+              return true;
+            },
+            shared,
+          });
+          if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `startup of the sine-fed stage: the transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))}`, origin.pos, origin.lineText)]);
+          return at === undefined ? { settled: false, furthest: check.furthest() } : { settled: true, at };
+        },
+      };
+    },
+    planStep(): SettlingPlan {
+      throw new RailcheckError([errorAt('not-supported', 'a load step on a sine-fed stage is not measured yet: the step figure is measured on stages with a DC input only (figures.md, step)')]);
     },
   };
 }

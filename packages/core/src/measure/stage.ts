@@ -6,7 +6,7 @@
  * source's small-signal drive, the load) before every solve, so no solve
  * depends on what an earlier one left behind.
  */
-import { isKind, type IndependentSource, type Resistor, type WaveformSpec } from '@railcheck/devices';
+import { isKind, type LoadContext, type IndependentSource, type Resistor, type WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
 import type { CompiledCircuit } from '../engine/compile.js';
 import type { FlatSupply } from '../elaborate/flat.js';
@@ -14,6 +14,7 @@ import { continueAlong, lerp } from '../engine/continuation.js';
 import { solveOperatingPoint } from '../engine/dcop.js';
 import { opFailure } from '../analysis/dc.js';
 import { formatSI } from '../units.js';
+import { hasStressRatings, StressMeter } from '../analysis/stress.js';
 
 /**
  * The stage's load: a current source (value in A) or a resistor (value in
@@ -23,7 +24,7 @@ import { formatSI } from '../units.js';
  * source's value is `direction` × that current.
  */
 export type StageLoad =
-  | { readonly kind: 'current'; readonly name: string; readonly device: IndependentSource; readonly nominal: number; readonly direction: 1 | -1 }
+  | { readonly kind: 'current'; readonly name: string; readonly device: IndependentSource; readonly nominal: number; readonly direction: 1 | -1; /** The source's own waveform as compiled. */ readonly waveform: WaveformSpec | undefined }
   | { readonly kind: 'resistor'; readonly name: string; readonly device: Resistor; readonly nominal: number };
 
 /** A stage on a circuit that belongs to one bench. */
@@ -42,10 +43,25 @@ export interface Stage {
   readonly outIndex: number;
   readonly refIndex: number;
   readonly feedIndex: number | undefined;
+  /** Watches part stress over every solve of the bench (analysis/stress.ts) when the netlist asks for a stress figure or rates a part beyond `pmax`; undefined otherwise. */
+  readonly meter: StressMeter | undefined;
+  /** Temperature every device of the circuit is set to, °C (the figure temperature); a measurement that sets other temperatures puts this one back. */
+  readonly celsius: number;
 }
 
-/** Describes the stage of a compiled circuit with a `.supply` line. Throws RailcheckError when `in=` is not a voltage source. */
-export function makeStage(c: CompiledCircuit, supply: FlatSupply): Stage {
+/** Options of a settled cycle that hand each of its accepted points to the stage's stress meter (none without a meter). */
+export function meterPoints(stage: Stage): { onPoint?: (timeSeconds: number, ctx: LoadContext) => void } {
+  const m = stage.meter;
+  return m ? { onPoint: (t, ctx) => m.sample(t, ctx.x, ctx.state) } : {};
+}
+
+/** True when a circuit's benches watch part stress: a `.figure stress`, or a part rated beyond `pmax` (docs/stress.md). */
+export function wantsStress(c: CompiledCircuit): boolean {
+  return c.flat.figures.some((f) => f.figure === 'stress') || hasStressRatings(c.flat.elements);
+}
+
+/** Describes the stage of a compiled circuit with a `.supply` line, its devices at `celsius` °C (default: the first `.temp`, else 27 °C). Throws RailcheckError when `in=` is not a voltage source. */
+export function makeStage(c: CompiledCircuit, supply: FlatSupply, celsius: number = c.flat.temperatures[0] ?? 27): Stage {
   const input = c.sources.get(supply.input);
   if (!input || input.kind !== 'vsource') throw new RailcheckError([errorAt('bad-supply-input', `.supply in=${supply.input} is not a voltage source`, supply.origin.pos, supply.origin.lineText)]);
   let load: StageLoad | undefined;
@@ -53,7 +69,7 @@ export function makeStage(c: CompiledCircuit, supply: FlatSupply): Stage {
     const d = c.deviceByKey.get(supply.load);
     // The passive sign convention: a source with n+ on out takes its value out of out (a positive rail's load).
     const onOut = c.flat.elements.find((el) => el.key === supply.load)?.nodes[0] === supply.out;
-    if (d && isKind(d, 'isource')) load = { kind: 'current', name: d.name, device: d, nominal: d.dc, direction: onOut ? 1 : -1 };
+    if (d && isKind(d, 'isource')) load = { kind: 'current', name: d.name, device: d, nominal: d.dc, direction: onOut ? 1 : -1, waveform: d.waveform };
     else if (d && isKind(d, 'resistor')) load = { kind: 'resistor', name: d.name, device: d, nominal: d.resistance };
   }
   return {
@@ -66,6 +82,8 @@ export function makeStage(c: CompiledCircuit, supply: FlatSupply): Stage {
     outIndex: c.nodeIndex.get(supply.out) ?? 0,
     refIndex: c.nodeIndex.get(supply.ref) ?? 0,
     feedIndex: supply.feed === undefined ? undefined : (c.nodeIndex.get(supply.feed) ?? 0),
+    meter: wantsStress(c) ? new StressMeter(c) : undefined,
+    celsius,
   };
 }
 
@@ -97,6 +115,8 @@ export interface Drive {
   readonly loadAmps: number | undefined;
   /** Small-signal drive of the input, V (phase 0); every other source's is 0. Default 0. */
   readonly inputAc?: number;
+  /** A current load's waveform in the transient, A in the source's own sense (a load step); default the source's own. */
+  readonly loadWaveform?: WaveformSpec;
 }
 
 /** Sets the input, the small-signal drives and the load for a solve. `voutNominal` (V) turns a load current into a resistance. */
@@ -107,6 +127,7 @@ export function applyDrive(stage: Stage, d: Drive, voutNominal: number): void {
   }
   stage.input.acMag = d.inputAc ?? 0;
   stage.input.waveform = d.waveform;
+  if (stage.load?.kind === 'current') stage.load.device.waveform = d.loadWaveform ?? stage.load.waveform;
   applyDcSetting(stage, { vin: d.dc, loadAmps: d.loadAmps }, voutNominal);
 }
 

@@ -26,6 +26,8 @@ export type Expr =
 /** Functions an expression may call (netlist.md). */
 export type ExprFunction = 'sqrt' | 'exp' | 'ln' | 'log10' | 'abs' | 'min' | 'max' | 'pow';
 
+import type { PartDataKey } from '../part-data.js';
+
 /**
  * A value position: a plain number (suffixes and units already applied) or a
  * `{expr}` to be evaluated at elaboration, where parameters are known.
@@ -56,6 +58,8 @@ interface ElementBase extends CardOrigin {
   readonly name: string;
   /** `pmax=W` power rating, when given. */
   readonly pmax?: Value;
+  /** Ratings and thermal data given as options (`vmax=`, `rth=`...: part-data.ts), by lower-case key; absent when none is given. */
+  readonly part?: Readonly<Partial<Record<PartDataKey, Value>>>;
 }
 
 /** Two-terminal passive element (R, C, L). */

@@ -13,6 +13,7 @@ import type {
   Value,
   Waveform,
 } from './ast.js';
+import { partDataKeysOf, type PartDataKey } from '../part-data.js';
 import type { Cursor } from './cursor.js';
 import { show } from './cursor.js';
 import type { Token } from './lexer.js';
@@ -74,6 +75,16 @@ function opt<K extends string, V>(key: K, v: V | undefined): { [P in K]?: V } {
   return (v === undefined ? {} : { [key]: v }) as { [P in K]?: V };
 }
 
+/** The part-data options (part-data.ts) among the options read, as the card's `part` field (absent when none is given). */
+function partOf(letter: string, o: ReadonlyMap<string, Value>): { part?: Readonly<Partial<Record<PartDataKey, Value>>> } {
+  const part: Partial<Record<PartDataKey, Value>> = {};
+  for (const k of partDataKeysOf(letter)) {
+    const v = o.get(k);
+    if (v !== undefined) part[k] = v;
+  }
+  return Object.keys(part).length > 0 ? { part } : {};
+}
+
 /** Reports a plain-number value outside its field's valid range (expressions are checked at elaboration). */
 function checkValue(c: Cursor, name: Token, field: ValueField, value: Value, at: Token | undefined): void {
   if (value.kind !== 'number' || inRange(field.range, value.value)) return;
@@ -110,8 +121,8 @@ const FAMILY_PARSERS: Readonly<Record<CardFamily, FamilyParser>> = {
     checkFields(c, name, 3, 3, `2 nodes and a ${what}`);
     const ns = nodes(c, 2, form);
     const value = mainValue(c, name, kind, form);
-    const o = options(c, name, letter === 'R' ? ['pmax'] : ['ic', 'pmax']);
-    return { ...origin, kind: letter, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], value, ...opt('ic', o.get('ic')), ...opt('pmax', o.get('pmax')) };
+    const o = options(c, name, [...(letter === 'R' ? ['pmax'] : ['ic', 'pmax']), ...partDataKeysOf(letter)]);
+    return { ...origin, kind: letter, name: name.text, nodes: [ns[0] ?? '', ns[1] ?? ''], value, ...opt('ic', o.get('ic')), ...opt('pmax', o.get('pmax')), ...partOf(letter, o) };
   },
   source: (c, name, kind, origin) => parseSource(c, name, DEVICES[kind].letter as 'V' | 'I', origin),
   semiconductor: (c, name, kind, origin) => {
@@ -122,8 +133,8 @@ const FAMILY_PARSERS: Readonly<Record<CardFamily, FamilyParser>> = {
     const ns = nodes(c, n, form);
     const model = c.name('a model name', form).text;
     const area = c.isValue(c.peek()) && !c.atAssignment() ? c.value('the area', form) : undefined;
-    const o = options(c, name, area === undefined ? ['area', 'pmax'] : ['pmax']);
-    const common = { ...origin, name: name.text, model, ...opt('area', area ?? o.get('area')), ...opt('pmax', o.get('pmax')) };
+    const o = options(c, name, [...(area === undefined ? ['area', 'pmax'] : ['pmax']), ...partDataKeysOf(letter)]);
+    const common = { ...origin, name: name.text, model, ...opt('area', area ?? o.get('area')), ...opt('pmax', o.get('pmax')), ...partOf(letter, o) };
     if (letter === 'D') return { ...common, kind: letter, nodes: [ns[0] ?? '', ns[1] ?? ''] };
     return { ...common, kind: letter, nodes: [ns[0] ?? '', ns[1] ?? '', ns[2] ?? ''] };
   },

@@ -6,6 +6,7 @@
 import { DEVICES, kindOfLetter, type CardFamily, type DeviceKind } from '@railcheck/devices';
 import type { Assignments, Card, CardOfFamily, DeviceCard, ElementCard, Netlist, SupplyCard, AnalysisCard, Value, Waveform } from './ast.js';
 import { printExpr } from './expr.js';
+import { PART_DATA_KEYS } from '../part-data.js';
 import { formatNumber, formatPercent, readNumberWord } from './numbers.js';
 import { argumentError, shielded } from '../arguments.js';
 import { NETLISTS, netlistShapeProblem } from './brand.js';
@@ -61,7 +62,7 @@ const FAMILY_PRINTERS: { readonly [F in CardFamily]: (e: CardOfFamily[F]) => str
 };
 
 function element(e: ElementCard): string {
-  const pmax = optional('pmax', e.pmax);
+  const pmax = [...optional('pmax', e.pmax), ...(e.kind === 'X' ? [] : PART_DATA_KEYS.flatMap((k) => optional(k, e.part?.[k])))];
   if (e.kind === 'X') return [e.name, ...e.nodes, e.subckt, ...pairs(e.params), ...pmax].join(' ');
   const family = DEVICES[kindOfLetter(e.kind) as DeviceKind].family;
   const fields = (FAMILY_PRINTERS[family] as (card: DeviceCard) => string[])(e);

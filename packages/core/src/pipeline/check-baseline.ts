@@ -41,6 +41,8 @@ export interface Tolerance {
  */
 export const DEFAULT_TOLERANCES: Readonly<Record<FigureUnit, Tolerance>> = {
   V: { rel: 1e-4, abs: 1e-6 },
+  A: { rel: 1e-4, abs: 1e-9 },
+  s: { rel: 1e-4, abs: 1e-9 },
   'V/V': { rel: 1e-4, abs: 1e-7 },
   '%/V': { rel: 1e-4, abs: 1e-5 },
   '%': { rel: 1e-4, abs: 1e-5 },
@@ -49,6 +51,10 @@ export const DEFAULT_TOLERANCES: Readonly<Record<FigureUnit, Tolerance>> = {
   W: { rel: 1e-4, abs: 1e-9 },
   ratio: { rel: 1e-4, abs: 1e-7 },
   flag: { rel: 0, abs: 0 },
+  // thermal figure (docs/thermal.md): temperatures to a thousandth of a kelvin
+  '°C': { rel: 0, abs: 1e-3 },
+  K: { rel: 0, abs: 1e-3 },
+  'K/W': { rel: 1e-4, abs: 1e-6 },
 };
 
 /** One netlist's entry in a baseline. */
@@ -157,9 +163,11 @@ export function writeFileAtomic(file: string, text: string): void {
 /** A value with its unit, six significant digits: enough to show a move past the default tolerances. */
 export function valueText(value: number, unit: FigureUnit): string {
   return match(unit)
-    .with('V', 'V/V', 'Ω', 'W', (u) => formatSI(value, u, 6))
+    .with('V', 'A', 's', 'V/V', 'Ω', 'W', (u) => formatSI(value, u, 6))
     .with('dB', '%', '%/V', (u) => `${Number(value.toPrecision(6))} ${u}`)
     .with('ratio', 'flag', () => `${Number(value.toPrecision(6))}`)
+    // thermal figure (docs/thermal.md)
+    .with('°C', 'K', 'K/W', (u) => `${Number(value.toPrecision(6))} ${u}`)
     .exhaustive();
 }
 

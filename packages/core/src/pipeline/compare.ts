@@ -119,7 +119,7 @@ export interface FigureComparison {
   readonly absolute: number | undefined;
   /**
    * (modified − original) / |original| as a ratio (0.1 = 10 %), only where it
-   * means something: both measured, the unit neither dB nor a flag, the
+   * means something: both measured, the unit neither dB nor a flag nor °C, the
    * original not 0, and the two of the same sign (docs/compare.md).
    */
   readonly relative: number | undefined;
@@ -379,7 +379,8 @@ export function circuitChanges(a: FlatCircuit, b: FlatCircuit): CircuitChanges {
 
 /** The relative change where it means something (see {@link FigureComparison.relative}). */
 export function relativeChange(original: number, modified: number, unit: FigureUnit): number | undefined {
-  if (unit === 'dB' || unit === 'flag') return undefined;
+  // A relative change of a Celsius temperature depends on where 0 °C lies (thermal figure, docs/thermal.md).
+  if (unit === 'dB' || unit === 'flag' || unit === '°C') return undefined;
   if (original === 0 || original * modified < 0) return undefined;
   return (modified - original) / Math.abs(original);
 }

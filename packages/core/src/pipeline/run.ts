@@ -20,6 +20,7 @@ import { setCircuitTemperature } from '../engine/dcop.js';
 import { dcSweep, operatingPoint, type DcSweep, type OperatingPoint } from '../analysis/dc.js';
 import { safetyWarnings } from '../analysis/safety.js';
 import { operatingPointsJudged, sanityWarnings } from '../analysis/sanity.js';
+import { hasStressRatings, judgeStress, namedOverRatings, overRatingWarnings, StressMeter } from '../analysis/stress.js';
 import { isSineFed, measureFigures, type FigureReport } from '../measure/figures.js';
 import { transient, type TransientResult } from '../analysis/tran.js';
 import { acFrequencies, acSweep, type AcResult } from '../analysis/ac.js';
@@ -130,8 +131,8 @@ function operatingPointOrigin(flat: FlatCircuit): { origin: CardOrigin; what: st
   return { origin: { pos: { file: flat.file, line: 1, column: 1 }, lineText: flat.title }, what: 'which every run finds, at each .temp temperature' };
 }
 
-/** Runs every analysis of a compiled circuit. Throws only RailcheckError (an analysis that fails). */
-export function analyse(c: CompiledCircuit): { operatingPoints: OperatingPoint[]; sweeps: DcSweep[]; transients: TransientResult[]; ac: AcResult[] } {
+/** Runs every analysis of a compiled circuit, part stress kept by `meter` when given. Throws only RailcheckError (an analysis that fails). */
+export function analyse(c: CompiledCircuit, meter?: StressMeter): { operatingPoints: OperatingPoint[]; sweeps: DcSweep[]; transients: TransientResult[]; ac: AcResult[] } {
   const flat = c.flat;
   const operatingPoints: OperatingPoint[] = [];
   const sweeps: DcSweep[] = [];
@@ -142,12 +143,13 @@ export function analyse(c: CompiledCircuit): { operatingPoints: OperatingPoint[]
   for (const celsius of flat.temperatures) {
     setCircuitTemperature(c, celsius);
     operatingPoints.push(operatingPoint(c, celsius, opCard, what));
+    meter?.point(c.ws.x, c.ws.states[0], `the operating point at ${celsius} °C`);
     for (const a of flat.analyses) {
-      if (a.kind === 'dc') sweeps.push(dcSweep(c, celsius, a.source, a.start, a.stop, a.step, a.origin));
+      if (a.kind === 'dc') sweeps.push(dcSweep(c, celsius, a.source, a.start, a.stop, a.step, a.origin, meter));
       else if (a.kind === 'ac') ac.push(acSweep(c, celsius, acFrequencies(a.variation, a.points, a.fstart, a.fstop), a.origin));
       else if (a.kind === 'tran') {
         const method = a.flags.includes('be') ? 'be' : 'trap';
-        transients.push(transient(c, celsius, { tstep: a.tstep, tstop: a.tstop, tstart: a.tstart, tmax: a.tmax, method, fromIc: a.flags.includes('fromic') }, a.origin));
+        transients.push(transient(c, celsius, { tstep: a.tstep, tstop: a.tstop, tstart: a.tstart, tmax: a.tmax, method, fromIc: a.flags.includes('fromic') }, a.origin, meter));
       }
     }
   }
@@ -172,7 +174,9 @@ export function runParsed(parsed: ParseResult): RunResult {
   const c = prepared.compiled;
   const warnings = [...prepared.warnings, ...acDriveWarnings(c.flat), ...spreadNote(c.flat)];
   try {
-    const results = analyse(c);
+    // Ratings beyond pmax are judged over every analysis too (docs/stress.md).
+    const meter = hasStressRatings(c.flat.elements) ? new StressMeter(c) : undefined;
+    const results = analyse(c, meter);
     // Figures are measured on a bench of their own at the first .temp (measure/create-bench.ts).
     const figures = c.flat.figures.length > 0 || c.flat.limits.length > 0 || isSineFed(c) ? measureFigures(c) : undefined;
     // The caution judges what the analyses reached, the sine-fed steady cycle among them (analysis/safety.ts).
@@ -187,6 +191,7 @@ export function runParsed(parsed: ParseResult): RunResult {
     const figureOver = new Set((figures?.warnings ?? []).filter((w) => w.code === 'over-rating').map((w) => `${w.pos?.file}:${w.pos?.line}`));
     warnings.push(...sanityWarnings(c.flat, judged).filter((w) => w.code !== 'over-rating' || !figureOver.has(`${w.pos?.file}:${w.pos?.line}`)));
     if (figures) warnings.push(...figures.warnings);
+    if (meter) warnings.push(...overRatingWarnings(c.elements, judgeStress(c.elements, meter.results()), namedOverRatings(figures?.warnings ?? [])));
     return { ok: true, report: { title: c.flat.title, file: c.flat.file, circuit: c.flat, compiled: c, ...results, figures, warnings } };
   } catch (e) {
     // Without results, the sources as written still earn the caution.

@@ -1,0 +1,35 @@
+/**
+ * The stress example as a user runs it (docs/stress.md): the table in the
+ * text report marks the reservoir past its ripple-current rating, the same
+ * rows come out in --json, the part's line carries the note, and the
+ * example has no limit, so it passes (exit 0). Presentation checks: the values behind
+ * them are checked against outside references in test/core/measure/stress.test.ts.
+ */
+import { fileURLToPath } from 'node:url';
+import { describe, expect, test } from 'vitest';
+import { cli } from '../support.js';
+
+const example = fileURLToPath(new URL('../../../examples/greenhouse-valve-stress.cir', import.meta.url));
+
+describe('examples/greenhouse-valve-stress.cir', () => {
+  test('text: the reservoir is OVER its irms rating, a note at its line; no limit, so exit 0 (a note is not a failure)', async () => {
+    const r = await cli(['run', example]);
+    expect(r.status).toBe(0);
+    expect(r.out).toMatch(/part stress/);
+    expect(r.out).toMatch(/stress\.CRES\.irms\s+\S+ mA\s+500 mA irms=\s+\S+\s+OVER/);
+    expect(r.out).toMatch(/greenhouse-valve-stress\.cir:\d+:1: warning: CRES goes through \S+ mA \(irms\)/);
+  }, 120_000);
+
+  test('json: one stress row per rated quantity, ratio = worst / rating, status from the ratio', async () => {
+    const r = await cli(['run', example, '--json']);
+    const j = JSON.parse(r.out) as { stress: { element: string; quantity: string; worst: number; rating: number; ratio: number; status: string; derate: number }[]; figures: Record<string, number> };
+    const cres = j.stress.find((s) => s.element === 'CRES' && s.quantity === 'irms')!;
+    expect(cres.status).toBe('over');
+    for (const s of j.stress) {
+      expect(s.ratio).toBeCloseTo(s.worst / s.rating, 12);
+      expect(s.status).toBe(s.ratio > 1 ? 'over' : s.ratio > s.derate ? 'margin' : 'ok');
+      expect(j.figures[`stress.${s.element}.${s.quantity}`]).toBeCloseTo(s.ratio, 12);
+    }
+    expect(j.figures['stress.worst']).toBe(Math.max(...j.stress.map((s) => s.ratio)));
+  }, 120_000);
+});
