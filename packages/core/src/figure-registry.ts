@@ -10,7 +10,7 @@
 import { argumentError, checkString } from './arguments.js';
 
 /** A `.figure` kind (figures.md). */
-export type FigureKind = 'line' | 'load' | 'dropout' | 'ripple' | 'dissipation' | 'sag' | 'stress' | 'startup' | 'step'
+export type FigureKind = 'line' | 'load' | 'dropout' | 'ripple' | 'dissipation' | 'sag' | 'stress' | 'short' | 'startup' | 'step'
   // thermal figure (docs/thermal.md)
   | 'thermal';
 
@@ -87,6 +87,12 @@ export const FIGURES: readonly FigureEntry[] = [
   { name: 'sag.out_pp_before', kind: 'sag', units: both('V'), better: 'lower', title: 'output ripple before the dip', doc: 'output peak-to-peak over the last whole ripple cycle before the dip, the drift across the cycle taken out' },
   { name: 'stress.worst', kind: 'stress', units: both('ratio'), better: 'lower', title: 'highest stress ratio', doc: 'the largest worst value / rating over every rated quantity of every part, over the conditions of the figures measured' },
   { name: 'stress.<element>.<quantity>', pattern: /^stress\.[^.]+(\.[^.]+)*\.(v|vr|vce|vcb|iavg|ipk|irms|ic|p)$/, kind: 'stress', units: both('ratio'), better: 'lower', title: 'stress ratio', doc: 'the worst value of one rated quantity of one part / its rating (docs/stress.md, "Quantities")' },
+  { name: 'short.current', kind: 'short', units: both('A'), better: 'lower', title: 'short-circuit current', doc: 'the current into a short of r ohms from out to ref at nominal input (its cycle average on a sine-fed stage)' },
+  { name: 'short.vout', kind: 'short', units: both('V'), better: 'none', title: 'output across the short', doc: '|Vout| with the output shorted (the cycle mean on a sine-fed stage)' },
+  { name: 'short.pin', kind: 'short', units: both('W'), better: 'lower', title: 'input power into the short', doc: 'the power out of the input source with the output shorted (a cycle average on a sine-fed stage)' },
+  { name: 'short.pd.<element>', pattern: /^short\.pd\.[^.]+(\.[^.]+)*$/, kind: 'short', units: both('W'), better: 'lower', title: 'dissipation in the short', doc: 'the power a resistor, diode or transistor absorbs with the output shorted' },
+  { name: 'short.worst', kind: 'short', units: both('ratio'), better: 'lower', title: 'highest stress ratio in the short', doc: 'the largest worst value / rating over every rated quantity of every part with the output shorted: the part that fails first' },
+  { name: 'short.<element>.<quantity>', pattern: /^short\.[^.]+(\.[^.]+)*\.(v|vr|vce|vcb|iavg|ipk|irms|ic|p)$/, kind: 'short', units: both('ratio'), better: 'lower', title: 'stress ratio in the short', doc: 'the worst value of one rated quantity of one part with the output shorted / its rating (docs/stress.md, "Quantities")' },
   { name: 'startup.inrush', kind: 'startup', units: both('A'), better: 'lower', title: 'inrush current', doc: 'the largest magnitude of the input source current from switch-on, everything discharged' },
   { name: 'startup.ipk_rect', kind: 'startup', units: both('A'), better: 'lower', title: 'peak rectifier current', doc: 'the largest forward current of any diode of the stage from switch-on' },
   { name: 'startup.settle', kind: 'startup', units: both('s'), better: 'lower', title: 'start-up settling time', doc: 'time from switch-on until the output comes within fall of its steady value (band) and stays there' },
@@ -189,6 +195,9 @@ const FALL_PERCENT: KeyBounds = { above: 0, below: 1 };
 /** A simulated time of a start-up or load-step figure, s. */
 const SETTLE_TIME = bounds({ above: 0, atMost: MAX_SETTLE_TIME });
 
+/** Largest resistance of the output short, Ω: above it the "short" is a heavy load, which the load figures cover. */
+export const MAX_SHORT_OHMS = 100;
+
 /** Lowest ambient of the thermal figure, °C: the lowest `.temp` accepted (docs/thermal.md). */
 export const MIN_AMBIENT_CELSIUS = -273;
 
@@ -234,6 +243,15 @@ export const FIGURE_KIND_INFO: Readonly<Record<FigureKind, FigureKindInfo>> = {
       vderate: num(true, 'ratio', 'derating of voltage ratings: a voltage above this ratio of its rating is marked', DERATE),
       iderate: num(true, 'ratio', 'derating of current ratings, likewise', DERATE),
       pderate: num(true, 'ratio', 'derating of power ratings, likewise', DERATE),
+    },
+  },
+  short: {
+    title: 'output short',
+    keys: {
+      r: num(false, 'Ω', 'resistance of the short from out to ref, Ω', bounds({ above: 0, atMost: MAX_SHORT_OHMS })),
+      vderate: num(true, 'ratio', 'derating of voltage ratings in the short, as for stress', DERATE),
+      iderate: num(true, 'ratio', 'derating of current ratings in the short, likewise', DERATE),
+      pderate: num(true, 'ratio', 'derating of power ratings in the short, likewise', DERATE),
     },
   },
   startup: {

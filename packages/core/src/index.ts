@@ -85,5 +85,7 @@ export { startup, DEFAULT_SETTLE_TMAX, DEFAULT_SETTLE_RATIO } from './measure/st
 export type { Startup, StartupOptions } from './measure/startup.js';
 export { loadStep, DEFAULT_STEP_RISE } from './measure/load-step.js';
 export type { LoadStep, LoadStepOptions } from './measure/load-step.js';
+export { outputShort, DEFAULT_SHORT_OHMS } from './measure/short.js';
+export type { OutputShort, ShortOptions } from './measure/short.js';
 export { describeSteady } from './measure/periodic.js';
 export type { SteadyInfo } from './measure/periodic.js';

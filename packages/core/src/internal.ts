@@ -93,6 +93,8 @@ export { startup, DEFAULT_SETTLE_TMAX, DEFAULT_SETTLE_RATIO } from './measure/st
 export type { Startup, StartupOptions } from './measure/startup.js';
 export { loadStep, DEFAULT_STEP_RISE } from './measure/load-step.js';
 export type { LoadStep, LoadStepOptions } from './measure/load-step.js';
+export { outputShort, DEFAULT_SHORT_OHMS } from './measure/short.js';
+export type { OutputShort, ShortOptions } from './measure/short.js';
 export { BandWatch, SteadyCheck } from './measure/settling.js';
 // thermal figure (docs/thermal.md)
 export { thermal, DEFAULT_TJMAX, THERMAL_MIN_POWER, SELF_HEAT_TOLERANCE, SELF_HEAT_MAX_ITERATIONS, SELF_HEAT_MIN_DAMPING, RUNAWAY_CELSIUS } from './measure/thermal.js';

@@ -1,8 +1,9 @@
 /**
  * The stress example as a user runs it (docs/stress.md): the table in the
  * text report marks the reservoir past its ripple-current rating, the same
- * rows come out in --json, the part's line carries the note, and the
- * example has no limit, so it passes (exit 0). Presentation checks: the values behind
+ * rows come out in --json, the part's line carries the note, the shorted
+ * output has a table of its own with the part that fails first named, and
+ * the example has no limit, so it passes (exit 0). Presentation checks: the values behind
  * them are checked against outside references in test/core/measure/stress.test.ts.
  */
 import { fileURLToPath } from 'node:url';
@@ -18,6 +19,10 @@ describe('examples/greenhouse-valve-stress.cir', () => {
     expect(r.out).toMatch(/part stress/);
     expect(r.out).toMatch(/stress\.CRES\.irms\s+\S+ mA\s+500 mA irms=\s+\S+\s+OVER/);
     expect(r.out).toMatch(/greenhouse-valve-stress\.cir:\d+:1: warning: CRES goes through \S+ mA \(irms\)/);
+    // The short: its own section and table, the pass transistor named as the first to fail.
+    expect(r.out).toMatch(/output short — output shorted to its reference through 10 mΩ/);
+    expect(r.out).toMatch(/short\.Q1\.p\s+\S+ W\s+2 W pmax or PMAX\s+\S+\s+OVER\s+the shorted output, settled cycle/);
+    expect(r.out).toMatch(/warning: short: with the output shorted through 10 mΩ, Q1 reaches \S+× its p rating/);
   }, 120_000);
 
   test('json: one stress row per rated quantity, ratio = worst / rating, status from the ratio', async () => {
@@ -31,5 +36,11 @@ describe('examples/greenhouse-valve-stress.cir', () => {
       expect(j.figures[`stress.${s.element}.${s.quantity}`]).toBeCloseTo(s.ratio, 12);
     }
     expect(j.figures['stress.worst']).toBe(Math.max(...j.stress.map((s) => s.ratio)));
+    // The short's rows are its own: their ratios are the short.* values, and its worst is the largest of them.
+    const short = (JSON.parse(r.out) as { short_stress: { element: string; quantity: string; ratio: number }[] }).short_stress;
+    expect(short.length).toBeGreaterThan(0);
+    for (const s of short) expect(j.figures[`short.${s.element}.${s.quantity}`]).toBe(s.ratio);
+    expect(j.figures['short.worst']).toBe(Math.max(...short.map((s) => s.ratio)));
+    expect(j.figures['short.worst']).toBeGreaterThan(j.figures['stress.worst']!);
   }, 120_000);
 });

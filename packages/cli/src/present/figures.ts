@@ -74,11 +74,11 @@ export function notMeasuredNames(figures: FigureReport): string[] {
 /** The words of a stress row's status. */
 const STATUS_WORDS: Readonly<Record<StressRow['status'], string>> = { over: 'OVER', margin: 'past derating', ok: '' };
 
-/** The stress table (docs/stress.md): per part and rated quantity the worst value, the rating, the ratio, a mark, and where the worst was reached. */
-export function formatStressTable(rows: readonly StressRow[]): string {
+/** The stress table (docs/stress.md): per part and rated quantity the worst value, the rating, the ratio, a mark, and where the worst was reached; `prefix` is the figure's (`stress`, or `short` for the shorted output). */
+export function formatStressTable(rows: readonly StressRow[], prefix: 'stress' | 'short' = 'stress'): string {
   // The first column is the value's own name, as a .limit writes it.
   const head = ['value', 'worst', 'rating', 'ratio', 'mark', 'where'];
-  const body = rows.map((r) => [`stress.${r.element}.${r.quantity}`, formatSI(r.value, r.unit), `${formatSI(r.rating, r.unit)} ${r.ratedBy}`, r.ratio.toFixed(3), STATUS_WORDS[r.status], r.where]);
+  const body = rows.map((r) => [`${prefix}.${r.element}.${r.quantity}`, formatSI(r.value, r.unit), `${formatSI(r.rating, r.unit)} ${r.ratedBy}`, r.ratio.toFixed(3), STATUS_WORDS[r.status], r.where]);
   return table([head, ...body], '      ', true);
 }
 
@@ -97,11 +97,13 @@ export function formatFigures(figures: FigureReport, temperature: number): strin
     match(f)
       .with({ ok: true }, (g) => {
         lines.push(`  ${FIGURE_KIND_INFO[g.kind].title} — ${g.conditions}`);
-        // The stress figure's values are its table's ratios: the table says them with the values behind them.
-        const shown = Object.entries(g.values).filter(([n]) => !g.stress || n === 'stress.worst');
+        // A stress table's ratios are values too: the table says them with the values behind them.
+        const prefix = g.kind === 'short' ? 'short' : 'stress';
+        const inTable = new Set((g.stress ?? []).map((r) => `${prefix}.${r.element}.${r.quantity}`));
+        const shown = Object.entries(g.values).filter(([n]) => !inTable.has(n));
         const rows = shown.map(([n, v]) => [n, formatFigureValue(n, v, g.units[n]!)]);
         if (rows.length > 0) lines.push(table(rows, '      '));
-        if (g.stress) lines.push(formatStressTable(g.stress));
+        if (g.stress && g.stress.length > 0) lines.push(formatStressTable(g.stress, prefix));
         // The reason names the value.
         for (const v of g.notMeasured) lines.push(`      not measured: ${reasonText(v.reason)}`);
       })

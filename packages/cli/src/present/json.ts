@@ -41,11 +41,16 @@ export function limitJson(l: LimitResult): Record<string, unknown> {
     .exhaustive();
 }
 
-/** `stress`: the stress figure's rows with snake-case keys, or nothing when no stress figure was measured. */
+/** `stress` and `short_stress`: the stress table of the stress figure and of the short figure, rows with snake-case keys; each only when its figure was measured. */
 function stressJson(report: RunReport): Record<string, unknown> {
-  const f = report.figures?.figures.find((g) => g.ok && g.stress);
-  if (!f || !f.ok || !f.stress) return {};
-  return { stress: f.stress.map((r) => ({ element: r.element, quantity: r.quantity, unit: r.unit, worst: r.value, rating: r.rating, rated_by: r.ratedBy, ratio: r.ratio, derate: r.derate, status: r.status, where: r.where })) };
+  const rowsOf = (kind: 'stress' | 'short'): Record<string, unknown>[] | undefined => {
+    const f = report.figures?.figures.find((g) => g.ok && g.kind === kind);
+    if (!f || !f.ok || !f.stress) return undefined;
+    return f.stress.map((r) => ({ element: r.element, quantity: r.quantity, unit: r.unit, worst: r.value, rating: r.rating, rated_by: r.ratedBy, ratio: r.ratio, derate: r.derate, status: r.status, where: r.where }));
+  };
+  const stress = rowsOf('stress');
+  const short = rowsOf('short');
+  return { ...(stress ? { stress } : {}), ...(short ? { short_stress: short } : {}) };
 }
 
 /** Builds the JSON object for a run. */
@@ -76,7 +81,7 @@ export function reportJson(report: RunReport, steps = false): Record<string, unk
     limits: (report.figures?.limits ?? []).map(limitJson),
     not_measured: notMeasuredJson(report.figures),
     figure_conditions: Object.fromEntries((report.figures?.figures ?? []).flatMap((f) => (f.ok ? [[f.kind, f.conditions]] : []))),
-    // The stress figure's table (docs/stress.md), when it was measured.
+    // The stress tables of the stress and short figures (docs/stress.md), when measured.
     ...stressJson(report),
     warnings: report.warnings.map((w) => formatDiagnostic({ ...w, severity: 'warning' }).split('\n')[0]!),
     operating_points: report.operatingPoints.map((p) => ({ temperature: p.temperature, method: p.method, iterations: p.iterations, basis: cycle ? 'switch-on' : 'dc', ...op(p) })),

@@ -43,15 +43,17 @@ export function createBench(compiled: CompiledCircuit, options: BenchOptions = {
  * workspace and sources are the bench's from now on), at `celsius` °C,
  * its nominal solve started from `from` when given (a neighbouring
  * circuit's {@link Bench.warmStart}; from zero or switch-on when that
- * fails). Internal to core: tolerance runs build their benches this way on
- * a revalued circuit. Throws RailcheckError.
+ * fails), with a stress meter when `watch.meter` (default: when the
+ * netlist asks for stress, stage.ts wantsStress). Internal to core:
+ * tolerance runs build their benches this way on a revalued circuit, the
+ * output short on a shorted one. Throws RailcheckError.
  */
-export function benchOnCircuit(circuit: CompiledCircuit, celsius: number, from?: BenchStart): Bench {
+export function benchOnCircuit(circuit: CompiledCircuit, celsius: number, from?: BenchStart, watch: { readonly meter?: boolean } = {}): Bench {
   const supply = circuit.flat.supply;
   if (!supply) throw new RailcheckError([errorAt('no-supply', 'figures need a .supply line naming the stage')]);
   setCircuitTemperature(circuit, celsius);
   // Every transient of every figure on this bench draws from one allowance (budgets.ts).
   circuit.ws.stepAllowance = { left: MAX_BENCH_STEPS, budget: 'MAX_BENCH_STEPS', limit: MAX_BENCH_STEPS };
-  const stage = makeStage(circuit, supply, celsius);
+  const stage = makeStage(circuit, supply, celsius, watch.meter);
   return BENCHES.mark(stage.inputWaveform?.kind === 'sin' ? createSineFedBench(stage, from) : createDcBench(stage, from));
 }

@@ -18,11 +18,12 @@ import { lineRegulation, loadRegulation } from './regulation.js';
 import { rippleRejection } from './ripple.js';
 import { sagRideThrough } from './sag.js';
 import { stressTable } from './stress.js';
-import type { StressRow } from '../analysis/stress.js';
+import { DEFAULT_DERATING, type Derating, type StressRow } from '../analysis/stress.js';
 import { settleBandVolts, startup } from './startup.js';
 import { loadStep } from './load-step.js';
 // thermal figure (docs/thermal.md)
 import { thermal } from './thermal.js';
+import { outputShort } from './short.js';
 import { requireKey } from './keys.js';
 
 /** The values of one figure that was measured, and the conditions they were measured at. */
@@ -32,7 +33,7 @@ export interface FigureValues {
   readonly values: Readonly<Record<string, number>>;
   /** What it was measured at, in words. */
   readonly conditions: string;
-  /** The stress figure's table (docs/stress.md); absent on every other figure. */
+  /** The stress table of the stress figure, or of the short figure with the output shorted (docs/stress.md); absent on every other figure. */
   readonly stress?: readonly StressRow[];
   /** Values of the figure this stage cannot have or could not give (`startup.ipk_rect` of a stage without a diode, an infinite heatsink allowance), each with the reason in words, not naming the value; reported as not measured. */
   readonly omitted?: readonly { readonly name: string; readonly reason: string }[];
@@ -141,11 +142,30 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
       };
     })
     .with('stress', () => {
-      const { rows, derating } = stressTable(bench, f);
+      const { rows, derating } = stressTable(bench, f, derateKeys(f));
       const values: Record<string, number> = { 'stress.worst': Math.max(...rows.map((r) => r.ratio)) };
       for (const r of rows) values[`stress.${r.element}.${r.quantity}`] = r.ratio;
       const conditions = `worst over every condition of the figures before it on this bench; marked past ${derating.voltage} of voltage, ${derating.current} of current and ${derating.power} of power ratings`;
       return { kind: 'stress', values, conditions, stress: rows };
+    })
+    .with('short', () => {
+      const r = outputShort(bench, { ohms: k.get('r'), derating: derateKeys(f), origin: f.origin });
+      const values: Record<string, number> = { 'short.current': r.current, 'short.vout': r.vout, 'short.pin': r.pin };
+      for (const [name, p] of Object.entries(r.pd)) values[`short.pd.${name}`] = p;
+      const omitted: { name: string; reason: string }[] = [];
+      if (r.rows.length > 0) {
+        const first = r.rows.reduce((a, b) => (b.ratio > a.ratio ? b : a));
+        values['short.worst'] = first.ratio;
+        for (const row of r.rows) values[`short.${row.element}.${row.quantity}`] = row.ratio;
+        if (first.ratio > 1) {
+          ctx.warnings.push(warningAt('short-over-rating', `short: with the output shorted through ${formatSI(r.ohms, 'Ω')}, ${first.element} reaches ${first.ratio.toFixed(2)}× its ${first.quantity} rating (${first.ratedBy}), the highest of any part: without current limiting it is the first to fail`, f.origin.pos, f.origin.lineText));
+        }
+      } else omitted.push({ name: 'short.worst', reason: 'no part carries a rating to judge it by (vmax=, imax=, ipk=, irms=, pmax=, or the model VCEMAX, VCBMAX, ICMAX, PMAX)' });
+      const input = match(bench)
+        .with({ kind: 'dc' }, () => `input ${volts(bench.input.nominal)}`)
+        .with({ kind: 'sine-fed' }, (b) => `${volts(b.amplitude)} amplitude`)
+        .exhaustive();
+      return { kind: 'short', values, conditions: `output shorted to its reference through ${formatSI(r.ohms, 'Ω')}, ${input}, in place of the load; ${r.how}`, stress: r.rows, omitted };
     })
     .with('startup', () => {
       const r = startup(bench, { fall: bandVolts(f, 'fall', bench.voutNominal), tmax: k.get('tmax') });
@@ -196,6 +216,15 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
       return { kind: 'thermal', values, conditions: `ambient ${r.ambient} °C, ${corners}; tjmax ${tjmaxText}${warm}`, omitted };
     })
     .exhaustive();
+}
+
+/** The derating keys of a stress or short figure (defaults: DEFAULT_DERATING). */
+function derateKeys(f: FlatFigure): Derating {
+  return {
+    voltage: f.keys.get('vderate') ?? DEFAULT_DERATING.voltage,
+    current: f.keys.get('iderate') ?? DEFAULT_DERATING.current,
+    power: f.keys.get('pderate') ?? DEFAULT_DERATING.power,
+  };
 }
 
 /** The dissipation figure's corners as the line and load figures of the netlist set them: the highest input and the load range. */

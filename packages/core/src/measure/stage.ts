@@ -60,8 +60,8 @@ export function wantsStress(c: CompiledCircuit): boolean {
   return c.flat.figures.some((f) => f.figure === 'stress') || hasStressRatings(c.flat.elements);
 }
 
-/** Describes the stage of a compiled circuit with a `.supply` line, its devices at `celsius` °C (default: the first `.temp`, else 27 °C). Throws RailcheckError when `in=` is not a voltage source. */
-export function makeStage(c: CompiledCircuit, supply: FlatSupply, celsius: number = c.flat.temperatures[0] ?? 27): Stage {
+/** Describes the stage of a compiled circuit with a `.supply` line, its devices at `celsius` °C (default: the first `.temp`, else 27 °C), watched by a stress meter when `meter` (default {@link wantsStress}). Throws RailcheckError when `in=` is not a voltage source. */
+export function makeStage(c: CompiledCircuit, supply: FlatSupply, celsius: number = c.flat.temperatures[0] ?? 27, meter: boolean = wantsStress(c)): Stage {
   const input = c.sources.get(supply.input);
   if (!input || input.kind !== 'vsource') throw new RailcheckError([errorAt('bad-supply-input', `.supply in=${supply.input} is not a voltage source`, supply.origin.pos, supply.origin.lineText)]);
   let load: StageLoad | undefined;
@@ -82,7 +82,7 @@ export function makeStage(c: CompiledCircuit, supply: FlatSupply, celsius: numbe
     outIndex: c.nodeIndex.get(supply.out) ?? 0,
     refIndex: c.nodeIndex.get(supply.ref) ?? 0,
     feedIndex: supply.feed === undefined ? undefined : (c.nodeIndex.get(supply.feed) ?? 0),
-    meter: wantsStress(c) ? new StressMeter(c) : undefined,
+    meter: meter ? new StressMeter(c) : undefined,
     celsius,
   };
 }

@@ -6,17 +6,12 @@
  */
 import { errorAt, RailcheckError, type Diagnostic } from '../errors.js';
 import type { FlatFigure } from '../elaborate/flat.js';
-import { DEFAULT_DERATING, judgeStress, overRatingWarnings, type Derating, type StressRow } from '../analysis/stress.js';
+import { judgeStress, overRatingWarnings, type Derating, type StressRow } from '../analysis/stress.js';
 import type { Bench } from './bench.js';
 
-/** The stress table of the bench's stage with the figure's derating keys (defaults: {@link DEFAULT_DERATING}). Throws RailcheckError when no part carries a rating. */
-export function stressTable(bench: Bench, f: FlatFigure): { rows: StressRow[]; derating: Derating } {
+/** The stress table of the bench's stage with the figure's `derating`. Throws RailcheckError (at the figure's line) when no part carries a rating. */
+export function stressTable(bench: Bench, f: FlatFigure, derating: Derating): { rows: StressRow[]; derating: Derating } {
   const meter = bench.stage.meter;
-  const derating: Derating = {
-    voltage: f.keys.get('vderate') ?? DEFAULT_DERATING.voltage,
-    current: f.keys.get('iderate') ?? DEFAULT_DERATING.current,
-    power: f.keys.get('pderate') ?? DEFAULT_DERATING.power,
-  };
   const rows = meter ? judgeStress(bench.stage.compiled.elements, meter.results(), derating) : [];
   if (rows.length === 0) {
     throw new RailcheckError([errorAt('no-ratings', 'stress: no part carries a rating to judge it by', f.origin.pos, f.origin.lineText, 'a rating on some part: vmax=, imax=, ipk=, irms=, pmax= on its line, or VCEMAX, VCBMAX, ICMAX, PMAX in its model (docs/stress.md)')]);
