@@ -156,7 +156,14 @@ export interface SettlingPlan {
   /** Least and greatest output of the steady state the run settles to, V on the rail side (equal on a DC bench; the settled cycle's on a sine-fed one). */
   readonly steadyMin: number;
   readonly steadyMax: number;
-  /** Output before the run, V on the rail side: the steady output at the first current of a load step, 0 at switch-on. */
+  /** Mean output of that steady state, V on the rail side (the settled cycle's mean on a sine-fed bench). */
+  readonly steadyMean: number;
+  /**
+   * Output before the run, V on the rail side: at the first current of a
+   * load step the steady output (DC bench) or the settled cycle's extreme
+   * the step pushes towards (its least for a rising load, its greatest for
+   * a falling one; sine-fed bench); 0 at switch-on.
+   */
   readonly before: number;
   /** Length of one source cycle, s, between the checks of a sine-fed bench; 0 on a DC bench, which checks at every accepted point. */
   readonly checkEvery: number;
@@ -216,7 +223,7 @@ export interface BenchCommon {
   planDip(shape: DipShape): DipPlan;
   /** Plans the switch-on from everything discharged, with the input and load at nominal. Throws RailcheckError. */
   planStartup(): SettlingPlan;
-  /** Plans a load step at nominal input, from the steady state at `step.from`. Throws RailcheckError (a sine-fed bench: not supported yet). */
+  /** Plans a load step at nominal input, from the steady state at `step.from` (on a sine-fed bench the step starts at a whole source cycle; its run's times are from the start of the step). Throws RailcheckError. */
   planStep(step: LoadStepShape): SettlingPlan;
 }
 

@@ -232,7 +232,7 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
     planStartup(): SettlingPlan {
       // The input steps to its DC value at t = 0 (no waveform), the load at nominal.
       const drive = nominalDrive({ waveform: undefined });
-      return { steadyMin: voutNominal, steadyMax: voutNominal, before: 0, checkEvery: 0, run: (tEnd, voltTol, observe, shared) => settle('startup', drive, undefined, snapshot.x, tEnd, voltTol, observe, shared) };
+      return { steadyMin: voutNominal, steadyMax: voutNominal, steadyMean: voutNominal, before: 0, checkEvery: 0, run: (tEnd, voltTol, observe, shared) => settle('startup', drive, undefined, snapshot.x, tEnd, voltTol, observe, shared) };
     },
     planStep(step: LoadStepShape): SettlingPlan {
       const l = stage.load;
@@ -251,7 +251,7 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
       // The load ramps from the first current to the second over `rise`, from t = 0 (in the source's own sense).
       const ramp: WaveformSpec = { kind: 'pwl', times: [0, step.rise], values: [l.direction * step.from, l.direction * step.to] };
       const drive = nominalDrive({ waveform: undefined, loadAmps: step.from, loadWaveform: ramp });
-      return { steadyMin: after, steadyMax: after, before, checkEvery: 0, run: (tEnd, voltTol, observe, shared) => settle('load step', drive, from, target, tEnd, voltTol, observe, shared) };
+      return { steadyMin: after, steadyMax: after, steadyMean: after, before, checkEvery: 0, run: (tEnd, voltTol, observe, shared) => settle('load step', drive, from, target, tEnd, voltTol, observe, shared) };
     },
   };
 }

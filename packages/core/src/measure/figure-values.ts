@@ -184,11 +184,11 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
     })
     .with('step', () => {
       const r = loadStep(bench, { from: k.get('from'), to: k.get('to'), rise: k.get('rise'), band: bandVolts(f, 'band', bench.voutNominal), tmax: k.get('tmax') });
-      return {
-        kind: 'step',
-        values: { 'step.dip': r.dip, 'step.peak': r.peak, 'step.recovery': r.recovery },
-        conditions: `load ${amps(r.from)} → ${amps(r.to)} in ${formatSI(r.rise, 's')}, input ${volts(bench.input.nominal)}; output ${volts(r.before)} → ${volts(r.after)}, recovery within ${volts(r.band)}; steady state reached at ${formatSI(r.end, 's')}`,
-      };
+      const conditions = match(bench)
+        .with({ kind: 'dc' }, () => `load ${amps(r.from)} → ${amps(r.to)} in ${formatSI(r.rise, 's')}, input ${volts(bench.input.nominal)}; output ${volts(r.before)} → ${volts(r.after)}, recovery within ${volts(r.band)}; steady state reached at ${formatSI(r.end, 's')}`)
+        .with({ kind: 'sine-fed' }, (b) => `load ${amps(r.from)} → ${amps(r.to)} in ${formatSI(r.rise, 's')} at the start of a source cycle, ${volts(b.amplitude)} amplitude; from the settled cycle's ${r.to > r.from ? 'trough' : 'crest'} ${volts(r.before)} to the settled cycle ${volts(r.steadyMin)} … ${volts(r.steadyMax)}, recovery within ${volts(r.band)} of it; steady state reached at ${formatSI(r.end, 's')} after the step`)
+        .exhaustive();
+      return { kind: 'step', values: { 'step.dip': r.dip, 'step.peak': r.peak, 'step.recovery': r.recovery }, conditions };
     })
     // thermal figure (docs/thermal.md)
     .with('thermal', () => {

@@ -7,7 +7,11 @@
  * the step pushes it (down for a rising load, up for a falling one), the
  * overshoot past the new steady value on the way back, and the time after
  * which the output stays within `band` of that value. The bench applies the
- * step (bench.ts, planStep); a sine-fed stage does not get this figure yet.
+ * step (bench.ts, planStep). On a sine-fed stage "steady" is the settled
+ * cycle: the step starts at the start of a source cycle from the settled
+ * cycle at the first current, the excursion is taken from that cycle's
+ * extreme on the side the step pushes (its trough for a rising load), and
+ * the band lies about the settled cycle at the second current.
  */
 import { errorAt, RailcheckError } from '../errors.js';
 import { checkOptions } from '../arguments.js';
@@ -40,20 +44,24 @@ export interface LoadStep {
   readonly rise: number;
   readonly band: number;
   readonly tmax: number;
-  /** Steady output at `from` and at `to`, V. */
+  /** Output before the step, V: the steady output at `from` (on a sine-fed stage the settled cycle's least for a rising load, greatest for a falling one). */
   readonly before: number;
+  /** Steady output at `to`, V (the settled cycle's mean on a sine-fed stage). */
   readonly after: number;
-  /** `step.dip`: the largest excursion from `before` the way the step pushes the output (Vout(before) − least Vout for a rising load, greatest Vout − Vout(before) for a falling one), V; 0 if it never moves that way. */
+  /** Least and greatest steady output at `to`, V (equal on a DC input): the recovery band is [least − band, greatest + band]. */
+  readonly steadyMin: number;
+  readonly steadyMax: number;
+  /** `step.dip`: the largest excursion from `before` the way the step pushes the output (`before` − least Vout for a rising load, greatest Vout − `before` for a falling one, at least as far as the new steady band's near edge), V; 0 if it never moves that way. */
   readonly dip: number;
-  /** `step.peak`: after the extreme of the dip, the largest excursion past `after` the other way, V; 0 if none. */
+  /** `step.peak`: when the output went past the new steady band's near edge, the largest swing back past its far edge after that extreme (above `steadyMax` for a rising load, below `steadyMin` for a falling one), V; 0 if none. */
   readonly peak: number;
-  /** `step.recovery`: time from the start of the step after which the output stays within `band` of `after`, s. */
+  /** `step.recovery`: time from the start of the step after which the output stays within `band` of the new steady band [steadyMin, steadyMax], s. */
   readonly recovery: number;
   /** When the run was judged settled, s. */
   readonly end: number;
 }
 
-/** Measures a load step. Throws RailcheckError (no current-source load, a sine-fed stage, not settled by `tmax`, a failed transient). */
+/** Measures a load step. Throws RailcheckError (no current-source load, not settled by `tmax`, a failed transient). */
 export function loadStep(bench: Bench, opts: LoadStepOptions = {}): LoadStep {
   BENCHES.check('loadStep', 'bench', bench);
   checkOptions('loadStep', opts, { from: 'finite', to: 'finite', rise: 'finite', band: 'finite', tmax: 'finite' });
@@ -82,7 +90,14 @@ export function loadStep(bench: Bench, opts: LoadStepOptions = {}): LoadStep {
       greatestAfter = -Infinity;
     } else if (w > greatestAfter) greatestAfter = w;
   });
-  const dip = Math.max(0, s * plan.before - least);
-  const peak = Math.max(0, greatestAfter - s * plan.steadyMax);
-  return { from, to, rise, band, tmax, before: plan.before, after: plan.steadyMax, dip, peak, recovery: r.entered, end: r.end };
+  // The new steady band in w: [near, far] (for a rising load its least and greatest output; for a falling one mirrored).
+  const near = s > 0 ? plan.steadyMin : -plan.steadyMax;
+  const far = s > 0 ? plan.steadyMax : -plan.steadyMin;
+  // The run ends once its state is within tolerance of the steady state it approaches, so the output's extreme the
+  // way the step pushes is at least that steady state's (a monotone approach reaches it only in the limit).
+  const dip = Math.max(0, s * plan.before - Math.min(least, near));
+  // An overshoot is a swing back past the far edge after the output went past the near one; an output that only
+  // approaches its new band from the side it started on (a reservoir's crests coming down to the new ones) has none.
+  const peak = least < near ? Math.max(0, greatestAfter - far) : 0;
+  return { from, to, rise, band, tmax, before: plan.before, after: plan.steadyMean, steadyMin: plan.steadyMin, steadyMax: plan.steadyMax, dip, peak, recovery: r.entered, end: r.end };
 }

@@ -14,7 +14,7 @@ import { errorAt, RailcheckError } from '../errors.js';
 import { describeTransientFailure, runTransient, transientFailureCode } from '../engine/transient.js';
 import { MAX_BREAKPOINTS } from '../budgets.js';
 import { formatSI } from '../units.js';
-import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type NodeCycle, type OutputStats, type SettlingPlan, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
+import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type LoadStepShape, type NodeCycle, type OutputStats, type SettlingPlan, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
 import { SteadyCheck } from './settling.js';
 import { settleCycle, type Probe } from './periodic.js';
 import { applyDrive, loadCurrentOf, onRail, vout, type Stage } from './stage.js';
@@ -253,6 +253,7 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
       return {
         steadyMin: nominal.min,
         steadyMax: nominal.max,
+        steadyMean: nominal.mean,
         before: 0,
         checkEvery: period,
         run(tEnd, voltTol, observe, shared) {
@@ -294,8 +295,62 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
         },
       };
     },
-    planStep(): SettlingPlan {
-      throw new RailcheckError([errorAt('not-supported', 'a load step on a sine-fed stage is not measured yet: the step figure is measured on stages with a DC input only (figures.md, step)')]);
+    planStep(step: LoadStepShape): SettlingPlan {
+      const l = stage.load;
+      if (l?.kind !== 'current') {
+        const why = l === undefined ? 'the step figure needs the load element named on the .supply line' : `the step figure needs a current-source load (an I element) to step; ${l.name} is a resistor`;
+        throw new RailcheckError([errorAt('no-load', why, origin.pos, origin.lineText, '.supply ... load=<I element>')]);
+      }
+      // The settled cycles at both currents, from the nominal one and then from the first (whole cycles apart, so in phase).
+      const first = steadyCycle(stage, sine, voutNominal, { level: 1, loadAmps: step.from }, false, 'load step, first current: periodic steady state of the sine-fed stage', railSign, nominalStart);
+      const second = steadyCycle(stage, sine, voutNominal, { level: 1, loadAmps: step.to }, false, 'load step, second current: periodic steady state of the sine-fed stage', railSign, first.next);
+      const t0 = first.next.start;
+      const rising = step.to > step.from;
+      return {
+        steadyMin: second.stats.min,
+        steadyMax: second.stats.max,
+        steadyMean: second.stats.mean,
+        // The settled cycle's extreme on the side the step pushes the output: its trough for a rising load, its crest for a falling one.
+        before: rising ? first.stats.min : first.stats.max,
+        checkEvery: period,
+        run(tEnd, voltTol, observe, shared) {
+          const cycles = tEnd / period;
+          if (!(cycles <= MAX_BREAKPOINTS)) {
+            throw new RailcheckError([errorAt('budget-breakpoints', `load step of the sine-fed stage: tmax spans ${cycles.toPrecision(3)} cycles of the source, each landed on, over the budget MAX_BREAKPOINTS = ${MAX_BREAKPOINTS}`, origin.pos, origin.lineText, 'a shorter tmax= or a lower source frequency')]);
+          }
+          // The step starts at the start of a source cycle (the sine's phase as written) and ramps over `rise`, in the source's own sense.
+          const ramp: WaveformSpec = { kind: 'pwl', times: [t0, t0 + step.rise], values: [l.direction * step.from, l.direction * step.to] };
+          applyDrive(stage, { dc: stage.inputDc, waveform: sine, loadAmps: step.from, loadWaveform: ramp }, voutNominal);
+          const boundaries: number[] = [];
+          for (let k = 1; k * period < tEnd; k++) boundaries.push(t0 + k * period);
+          const check = new SteadyCheck(stage.compiled, second.next.solution, voltTol);
+          let next = 0;
+          let at: number | undefined;
+          const r = runTransient(stage.compiled, {
+            tstep: period / 50,
+            tstop: t0 + tEnd,
+            startTime: t0,
+            initialSolution: first.next.solution,
+            stepsPerCycle: DIP_STEPS_PER_CYCLE,
+            junctionCmin: JUNCTION_CMIN,
+            extraBreakpoints: [t0 + step.rise, ...boundaries],
+            keepTrace: false,
+            onAccept: (t, ctx) => {
+              // Times from the start of the step.
+              observe(t - t0, ctx.x, ctx.state);
+              check.observe(ctx.x);
+              if (next >= boundaries.length || t < boundaries[next]! - 1e-9 * period) return false;
+              next++;
+              if (!check.near(ctx.x)) return false;
+              at = t - t0;
+              return true;
+            },
+            shared,
+          });
+          if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `load step of the sine-fed stage: the transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))}`, origin.pos, origin.lineText)]);
+          return at === undefined ? { settled: false, furthest: check.furthest() } : { settled: true, at };
+        },
+      };
     },
   };
 }
