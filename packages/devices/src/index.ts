@@ -24,6 +24,8 @@ export type {
 } from './device.js';
 export { BJT_PARAMS, DIODE_PARAMS, bjtModel, diodeModel } from './models.js';
 export type { BjtModel, DiodeModel, ParamSpec } from './models.js';
+export { BJT_SHEET_KEYS, DIODE_SHEET_KEYS, DEFAULT_IC_TEST, DEFAULT_IZT, DEFAULT_VCE_TEST, resolveBjtSheet, resolveDiodeSheet, resolveSheet, sheetKeys } from './datasheet.js';
+export type { SheetKey, SheetProblem, SheetResolution } from './datasheet.js';
 export type { SourceSpec, WaveformSpec } from './sources.js';
 
 export {

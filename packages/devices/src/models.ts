@@ -37,6 +37,9 @@ export interface DiodeModel {
   /** IS temperature exponent. */ readonly XTI: number;
   /** Temperature coefficient of BV, 1/K. */ readonly TBV: number;
   /** Power rating, W; undefined = none. */ readonly PMAX: number | undefined;
+  /** Repetitive peak reverse voltage rating V_RRM (IEC 60747-2), V; undefined = none. */ readonly VRRM: number | undefined;
+  /** Average forward current rating I_F(AV) (IEC 60747-2), A; undefined = none. */ readonly IFAV: number | undefined;
+  /** Repetitive peak forward current rating I_FRM (IEC 60747-2), A; undefined = none. */ readonly IFRM: number | undefined;
 }
 
 /** Bipolar transistor parameters (Ebers-Moll transport form with Early effect). */
@@ -85,6 +88,9 @@ export const DIODE_PARAMS: readonly ParamSpec[] = [
   { name: 'XTI', default: 3, unit: '', doc: 'IS temperature exponent', range: ANY },
   { name: 'TBV', default: 0, unit: '1/K', doc: 'temperature coefficient of BV', range: ANY },
   { name: 'PMAX', default: undefined, unit: 'W', doc: 'power rating', range: POSITIVE },
+  { name: 'VRRM', default: undefined, unit: 'V', doc: 'repetitive peak reverse voltage rating (VRRM)', range: POSITIVE },
+  { name: 'IFAV', default: undefined, unit: 'A', doc: 'average forward current rating (IF(AV))', range: POSITIVE },
+  { name: 'IFRM', default: undefined, unit: 'A', doc: 'repetitive peak forward current rating (IFRM)', range: POSITIVE },
 ];
 
 /** Bipolar transistor parameter table, defaults per netlist.md. */

@@ -3,7 +3,7 @@
  * scope of its instance and binds its model.
  */
 import {
-  AREA_RANGE, DEVICES, MODEL_KINDS, RATING_RANGE, WAVEFORM_RANGES, buildModel, describeRange, inRange, paramTable,
+  AREA_RANGE, DEVICES, MODEL_KINDS, RATING_RANGE, WAVEFORM_RANGES, buildModel, describeRange, inRange, modelKindOf, paramTable, resolveSheet, sheetKeys,
   type DeviceKind, type ModelType, type SourceSpec, type ValueField, type ValueRange, type WaveformSpec,
 } from '@railcheck/devices';
 import { match } from 'ts-pattern';
@@ -23,12 +23,12 @@ export interface ElementEnv {
   readonly reported: Set<string>;
 }
 
-/** Records an out-of-range error once per place and message. */
-function rangeError(env: ElementEnv, at: CardOrigin, message: string, expected: string): void {
+/** Records an out-of-range error (or one of `code`) once per place and message. */
+function rangeError(env: ElementEnv, at: CardOrigin, message: string, expected: string, code = 'out-of-range'): void {
   const key = `${at.pos.file}:${at.pos.line}:${at.pos.column}:${message}`;
   if (env.reported.has(key)) return;
   env.reported.add(key);
-  env.ev.fail(at, 'out-of-range', message, expected);
+  env.ev.fail(at, code, message, expected);
 }
 
 /** Checks the evaluated `x` against `range`; an error names `what` and the value. NaN (already reported) passes. */
@@ -164,17 +164,33 @@ function sourceSpec(env: ElementEnv, card: Extract<ElementCard, { kind: 'V' | 'I
 function modelParams(env: ElementEnv, card: ModelCard, scope: Scope): Map<string, number> {
   const given = new Map<string, number>();
   const table = paramTable(card.type);
+  const sheet = sheetKeys(modelKindOf(card.type));
+  const placeOfParam = (name: string): CardOrigin => {
+    const a = card.params.find((q) => q.name.toUpperCase() === name);
+    if (!a) return { pos: card.pos, lineText: card.lineText };
+    return { pos: a.pos, lineText: a.pos.line === card.pos.line && a.pos.file === card.pos.file ? card.lineText : '' };
+  };
   for (const a of card.params) {
     const name = a.name.toUpperCase();
     const x = env.ev.num(a.value, scope);
-    const spec = table.find((p) => p.name === name);
+    const spec = table.find((p) => p.name === name) ?? sheet.find((p) => p.name === name);
     if (spec && !Number.isNaN(x) && !inRange(spec.range, x)) {
-      const at = { pos: a.pos, lineText: a.pos.line === card.pos.line && a.pos.file === card.pos.file ? card.lineText : '' };
-      rangeError(env, at, `.model ${card.name}: ${name}=${x} is out of range (${spec.doc})`, `${name} ${describeRange(spec.range)}`);
+      rangeError(env, placeOfParam(name), `.model ${card.name}: ${name}=${x} is out of range (${spec.doc})`, `${name} ${describeRange(spec.range)}`);
     }
     given.set(name, x);
   }
-  return given;
+  if (![...given.keys()].some((k) => sheet.some((s) => s.name === k)) || [...given.values()].some(Number.isNaN)) return given;
+  // The datasheet form (docs/models.md, "Datasheet form"): its keys become the physical parameters they fix.
+  const r = resolveSheet(modelKindOf(card.type), given);
+  if (!r.ok) {
+    for (const p of r.problems) rangeError(env, placeOfParam(p.key), `.model ${card.name}: ${p.message}`, p.expected, 'bad-datasheet');
+    return new Map([...given].filter(([k]) => !sheet.some((s) => s.name === k)));
+  }
+  for (const [name, x] of r.params) {
+    const spec = table.find((p) => p.name === name);
+    if (spec && !given.has(name) && !inRange(spec.range, x)) rangeError(env, placeOfParam(sheet.find((s) => s.sets.includes(name))?.name ?? name), `.model ${card.name}: the datasheet values give ${name}=${x}, out of range (${spec.doc})`, `${name} ${describeRange(spec.range)}`);
+  }
+  return r.params;
 }
 
 function bindModel(env: ElementEnv, card: DiodeCard | BjtCard, kind: 'diode' | 'bjt'): { model: ModelCard; scope: Scope } | undefined {

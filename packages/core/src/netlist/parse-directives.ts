@@ -3,7 +3,7 @@
  * Subcircuits, Includes, Analyses): `.model`, `.param`, `.subckt` headers,
  * `.ends`, `.include`, `.op`, `.dc`, `.tran`, `.ac`, `.temp`.
  */
-import { MODEL_TYPES, knownParams } from '@railcheck/devices';
+import { MODEL_TYPES, knownParams, modelKindOf, sheetKeys } from '@railcheck/devices';
 import type { AnalysisCard, Assignments, ModelCard, ModelType, ParamCard, Value } from './ast.js';
 import type { Cursor } from './cursor.js';
 import { show } from './cursor.js';
@@ -25,7 +25,8 @@ export function parseModel(c: Cursor): ModelCard {
   const typeTok = c.name('the model type', 'D, NPN or PNP');
   const type: ModelType | undefined = MODEL_TYPES.find((t) => t === typeTok.text.toUpperCase());
   if (!type) c.fail('unknown-model-type', `unknown model type "${typeTok.text}"`, typeTok, 'D, NPN or PNP');
-  const known = knownParams(type);
+  // Physical parameters (docs/models.md) and the datasheet form's keys (docs/models.md, "Datasheet form").
+  const known = [...knownParams(type), ...sheetKeys(modelKindOf(type)).map((k) => k.name)];
   const open = c.peek()?.kind === 'lparen' ? c.next() : undefined;
   const params: Array<Assignments[number]> = [];
   const seen = new Set<string>();
