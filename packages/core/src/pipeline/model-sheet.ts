@@ -1,0 +1,176 @@
+/**
+ * The datasheet values a model implies (docs/models.md, "Datasheet form";
+ * `railcheck model`): the model is put in the test circuits a datasheet's
+ * values are measured in and simulated (operating points of the whole
+ * pipeline, so the values are those the model gives in any netlist):
+ *
+ * - diode: VF = V(anode) with a current source of IF forward through it;
+ *   a model with BV: VZ with IZT driven in reverse, ZZT = ΔV/ΔI for a step
+ *   of ±1 % of IZT about it (central difference), ZZK likewise at IZK, and
+ *   TCVZ = (VZ(28 °C) − VZ(26 °C))/2 K;
+ * - transistor: at VCE from a voltage source, the base driven by a current
+ *   source searched (secant on its logarithm) until IC = ICHFE: HFE = IC/IB;
+ *   VBE = V(base) where IC = ICVBE; HOE = ΔIC/ΔVCE at that base current
+ *   for VCE ± 0.5 V (central difference; h_oe is the output admittance
+ *   with the base current held, IEC 60747-7 h-parameters, from memory).
+ *
+ * The test currents and voltage are the model's own datasheet keys when it
+ * is written in the datasheet form, else the documented defaults (or the
+ * caller's). Each value comes with the conditions it was measured at.
+ */
+import { DEFAULT_IC_TEST, DEFAULT_IZT, DEFAULT_VCE_TEST, modelKindOf, type ModelType } from '@railcheck/devices';
+import { errorAt, type Diagnostic } from '../errors.js';
+import type { ModelCard, Netlist } from '../netlist/ast.js';
+import { printValue } from '../netlist/print.js';
+import { parseNetlist } from '../netlist/index.js';
+import { runNetlist } from './run.js';
+
+/** Test conditions of the implied datasheet values (A, V); unset: the model's own datasheet keys, else the defaults. */
+export interface SheetConditions {
+  /** Forward currents of the VF points, A (default the model's IF, IF2, IF3, else 10 mA). */
+  readonly if?: readonly number[] | undefined;
+  /** Zener test current, A (default the model's IZT, else its IBV). */
+  readonly izt?: number | undefined;
+  /** Knee current, A (default the model's IZK; none: no ZZK). */
+  readonly izk?: number | undefined;
+  /** Collector current of the gain point, A (default the model's ICHFE, else 10 mA). */
+  readonly ichfe?: number | undefined;
+  /** Collector current of the VBE point, A (default the model's ICVBE, else ICHFE). */
+  readonly icvbe?: number | undefined;
+  /** Collector-emitter voltage of the transistor's points, V (default the model's VCE, else 5 V). */
+  readonly vce?: number | undefined;
+}
+
+/** One implied datasheet value: its key (as the datasheet form names it), value in SI units, unit, and the conditions in words. */
+export interface SheetValue {
+  readonly key: string;
+  readonly value: number;
+  readonly unit: string;
+  readonly at: string;
+}
+
+/** The outcome: the values a model implies, or the errors that stopped the test circuits. */
+export type ImpliedSheet = { readonly ok: true; readonly type: ModelType; readonly values: readonly SheetValue[] } | { readonly ok: false; readonly errors: readonly Diagnostic[] };
+
+/** The `.model` line of a card, its values as written (numbers, or expressions in braces). */
+export function modelLine(card: ModelCard, name = card.name): string {
+  return `.model ${name} ${card.type} (${card.params.map((p) => `${p.name}=${printValue(p.value)}`).join(' ')})`;
+}
+
+/** A plain number of a card's parameter, when written as one. */
+function numberOf(card: ModelCard, key: string): number | undefined {
+  const p = card.params.find((q) => q.name.toUpperCase() === key);
+  return p?.value.kind === 'number' ? p.value.value : undefined;
+}
+
+/** An operating point of a test circuit: node voltages and element currents, or the errors. */
+function op(lines: readonly string[], temps?: readonly number[]): { nodes: Record<string, number>; currents: Record<string, number> }[] | Diagnostic[] {
+  const r = runNetlist([...lines, ...(temps ? [`.temp ${temps.join(' ')}`] : []), '.op', '.end', ''].join('\n'), { file: '(model test circuit)' });
+  if (!r.ok) return [...r.errors];
+  return r.report.operatingPoints.map((p) => ({ nodes: { ...p.nodes }, currents: { ...p.currents } }));
+}
+
+const isErrors = (x: unknown[]): x is Diagnostic[] => x.length > 0 && typeof (x[0] as Diagnostic).message === 'string' && 'severity' in (x[0] as object);
+
+/** Number text that reads back exactly. */
+const n = (x: number): string => String(x);
+
+/** The values, throwing SheetFailure from a test circuit. */
+function measureSheet(card: ModelCard, conditions: SheetConditions): ImpliedSheet {
+  const model = modelLine(card, 'M');
+  const kind = modelKindOf(card.type);
+  const values: SheetValue[] = [];
+  if (kind === 'diode') {
+    const ifs = conditions.if ?? (['IF', 'IF2', 'IF3'].map((k) => numberOf(card, k)).filter((x): x is number => x !== undefined));
+    const forward = ifs.length > 0 ? ifs : [DEFAULT_IC_TEST];
+    forward.forEach((i, k) => {
+      const r = op(['diode forward point', `I1 0 a ${n(i)}`, 'D1 a 0 M', model]);
+      if (isErrors(r)) throw new SheetFailure(r);
+      values.push({ key: k === 0 ? 'VF' : `VF${k + 1}`, value: r[0]!.nodes['a']!, unit: 'V', at: `IF = ${n(i)} A` });
+    });
+    // A model with breakdown: the Zener's values.
+    const hasBv = card.params.some((p) => ['BV', 'VZ'].includes(p.name.toUpperCase()));
+    if (hasBv) {
+      const izt = conditions.izt ?? numberOf(card, 'IZT') ?? numberOf(card, 'IBV') ?? (card.params.some((p) => p.name.toUpperCase() === 'VZ') ? DEFAULT_IZT : 1e-3);
+      const zener = (i: number, temps?: readonly number[]): number[] => {
+        const r = op(['zener point', `I1 0 k ${n(i)}`, 'D1 0 k M', model], temps);
+        if (isErrors(r)) throw new SheetFailure(r);
+        return r.map((p) => p.nodes['k']!);
+      };
+      const [vz] = zener(izt);
+      values.push({ key: 'VZ', value: vz!, unit: 'V', at: `IZT = ${n(izt)} A` });
+      const slope = (i: number): number => (zener(1.01 * i)[0]! - zener(0.99 * i)[0]!) / (0.02 * i);
+      values.push({ key: 'ZZT', value: slope(izt), unit: 'Ω', at: `IZT = ${n(izt)} A, a step of ±1 %` });
+      const izk = conditions.izk ?? numberOf(card, 'IZK');
+      if (izk !== undefined) values.push({ key: 'ZZK', value: slope(izk), unit: 'Ω', at: `IZK = ${n(izk)} A, a step of ±1 %` });
+      const [cold, warm] = zener(izt, [26, 28]);
+      values.push({ key: 'TCVZ', value: (warm! - cold!) / 2, unit: 'V/K', at: `IZT = ${n(izt)} A, 26 °C to 28 °C` });
+    }
+    return { ok: true, type: card.type, values };
+  }
+  const pnp = card.type === 'PNP';
+  const vce = conditions.vce ?? numberOf(card, 'VCE') ?? DEFAULT_VCE_TEST;
+  const ichfe = conditions.ichfe ?? numberOf(card, 'ICHFE') ?? DEFAULT_IC_TEST;
+  const icvbe = conditions.icvbe ?? numberOf(card, 'ICVBE') ?? ichfe;
+  // Magnitudes: a PNP's collector sits at −VCE and its base current flows out.
+  const point = (ib: number, v: number): { ic: number; vbe: number } => {
+    const r = op(['transistor point', `VC c 0 ${n(pnp ? -v : v)}`, pnp ? `IB b 0 ${n(ib)}` : `IB 0 b ${n(ib)}`, 'Q1 c b 0 M', model]);
+    if (isErrors(r)) throw new SheetFailure(r);
+    return { ic: Math.abs(r[0]!.currents['Q1.c']!), vbe: Math.abs(r[0]!.nodes['b']!) };
+  };
+  /** The base current (A) that gives a collector current of `ic` A at VCE: secant on ln IB against ln IC. */
+  const baseFor = (ic: number): number => {
+    let x0 = Math.log(ic / 100);
+    let f0 = Math.log(point(Math.exp(x0), vce).ic / ic);
+    let x1 = x0 - f0;
+    for (let k = 0; k < 40; k++) {
+      const f1 = Math.log(point(Math.exp(x1), vce).ic / ic);
+      if (Math.abs(f1) < 1e-12) return Math.exp(x1);
+      const x2 = f1 === f0 ? x1 - f1 : x1 - (f1 * (x1 - x0)) / (f1 - f0);
+      [x0, f0, x1] = [x1, f1, x2];
+    }
+    throw new SheetFailure([errorAt('model-test', `no base current gives IC = ${ic} A at VCE = ${vce} V`, undefined, undefined, 'a transistor model in forward operation at the test point')]);
+  };
+  const ibh = baseFor(ichfe);
+  values.push({ key: 'HFE', value: ichfe / ibh, unit: '', at: `IC = ${n(ichfe)} A, VCE = ${n(vce)} V` });
+  const ibv = icvbe === ichfe ? ibh : baseFor(icvbe);
+  values.push({ key: 'VBE', value: point(ibv, vce).vbe, unit: 'V', at: `IC = ${n(icvbe)} A, VCE = ${n(vce)} V` });
+  const dv = Math.min(0.5, vce / 4);
+  values.push({ key: 'HOE', value: (point(ibh, vce + dv).ic - point(ibh, vce - dv).ic) / (2 * dv), unit: 'S', at: `IC = ${n(ichfe)} A, VCE = ${n(vce)} V ± ${n(dv)} V, IB held` });
+  return { ok: true, type: card.type, values };
+}
+
+/** A test circuit that could not be solved: carries its errors out of the nested searches. */
+class SheetFailure extends Error {
+  constructor(readonly diagnostics: readonly Diagnostic[]) {
+    super(diagnostics.map((d) => d.message).join('; '));
+  }
+}
+
+/**
+ * The datasheet values a `.model` card implies (see the module comment),
+ * or the errors of a test circuit that could not be solved. The card's
+ * values must be plain numbers or expressions of constants (the test
+ * circuits hold no `.param`).
+ */
+export function impliedDatasheet(card: ModelCard, conditions: SheetConditions = {}): ImpliedSheet {
+  try {
+    return measureSheet(card, conditions);
+  } catch (e) {
+    if (e instanceof SheetFailure) return { ok: false, errors: e.diagnostics };
+    throw e;
+  }
+}
+
+/** The first top-level `.model` card named `name` (any case) of a read netlist, or undefined. */
+export function findModelCard(netlist: Netlist, name: string): ModelCard | undefined {
+  return netlist.cards.find((c): c is ModelCard => c.kind === 'model' && c.name.toLowerCase() === name.toLowerCase());
+}
+
+/** The `.model` card of one line of text (`.model NAME TYPE (...)`), or the reader's errors. */
+export function readModelLine(line: string): { ok: true; card: ModelCard } | { ok: false; errors: readonly Diagnostic[] } {
+  const parsed = parseNetlist(`model\n${line}\n`, { file: '(model line)' });
+  if (!parsed.ok) return { ok: false, errors: parsed.errors };
+  const card = parsed.netlist.cards.find((c): c is ModelCard => c.kind === 'model');
+  return card ? { ok: true, card } : { ok: false, errors: [errorAt('no-model', 'the text holds no .model line', undefined, undefined, '.model NAME D|NPN|PNP (key=value ...)')] };
+}
