@@ -95,7 +95,7 @@ export interface SheetProblem {
 
 /** The outcome of resolving a datasheet form: the physical parameters (given ones kept, sheet keys replaced), and which defaults filled what the form left open. */
 export type SheetResolution =
-  | { readonly ok: true; readonly params: Map<string, number>; readonly filled: readonly string[] }
+  | { readonly ok: true; readonly params: Map<string, number>; readonly filled: readonly string[]; readonly notes: readonly SheetProblem[] }
   | { readonly ok: false; readonly problems: readonly SheetProblem[] };
 
 const VT = thermalVoltage(TNOM);
@@ -163,6 +163,8 @@ export function resolveDiodeSheet(given: ReadonlyMap<string, number>): SheetReso
   // The Zener's knee fixes RS (and NBV) first: the forward points then see that RS.
   let rs = g('RS');
   let nbvFromKnee: number | undefined;
+  let kneeMissed: { zzk: number; izk: number } | undefined;
+  const notes: SheetProblem[] = [];
   const vz = g('VZ');
   const izt = g('IZT') ?? DEFAULT_IZT;
   if (vz !== undefined && g('IZT') === undefined) filled.push(`IZT = ${DEFAULT_IZT} A (default test current)`);
@@ -173,10 +175,16 @@ export function resolveDiodeSheet(given: ReadonlyMap<string, number>): SheetReso
     if (!(izk < izt)) return { ok: false, problems: [{ key: 'IZK', message: `the knee current IZK = ${izk} A is not below the test current ${izt} A`, expected: 'IZK < IZT' }] };
     const nbv = (zzk - zzt) / (VT * (1 / izk - 1 / izt));
     const r = zzt - (nbv * VT) / izt;
-    if (!(nbv > 0) || !(r >= 0)) return { ok: false, problems: [{ key: 'ZZK', message: `ZZK = ${zzk} Ω at ${izk} A and ZZT = ${zzt} Ω at ${izt} A cannot both hold: they need ${!(nbv > 0) ? `NBV = ${nbv.toPrecision(3)}` : `RS = ${r.toPrecision(3)} Ω`}`, expected: 'ZZK > ZZT with ZZK·IZK > ZZT·IZT (a knee that softens at low current)' }] };
-    nbvFromKnee = nbv;
-    rs = r;
-    out.set('RS', r);
+    if (!(nbv > 0)) return { ok: false, problems: [{ key: 'ZZK', message: `ZZK = ${zzk} Ω at ${izk} A and ZZT = ${zzt} Ω at ${izt} A cannot both hold: the knee would be sharper than the test point (NBV = ${nbv.toPrecision(3)})`, expected: 'ZZK > ZZT: a knee that softens at low current' }] };
+    if (r >= 0) {
+      nbvFromKnee = nbv;
+      rs = r;
+      out.set('RS', r);
+    } else {
+      // The breakdown term's dynamic resistance falls as 1/I: a knee softer than that (most real datasheets) cannot be met
+      // with RS ≥ 0. ZZT, the value a regulator works at, is kept; the knee is met as closely as RS = 0 allows.
+      kneeMissed = { zzk, izk };
+    }
   }
   // Forward points.
   const points: Array<[number, number]> = [];
@@ -195,9 +203,10 @@ export function resolveDiodeSheet(given: ReadonlyMap<string, number>): SheetReso
       const { n, is } = twoPoint(v1 - i1 * r, i1, v2 - i2 * r, i2);
       return v3 - i3 * r - n * VT * Math.log1p(i3 / is);
     };
-    const hi = (v1 - 1e-3) / i3;
+    // Every junction voltage VF − IF·RS stays positive below the least VF/IF.
+    const hi = Math.min(v1 / i1, v2 / i2, v3 / i3) * (1 - 1e-12);
     if (!(f(0) > 0)) return { ok: false, problems: [{ key: 'VF3', message: 'the third forward point lies on or below the Shockley curve through the first two: no series resistance puts it there', expected: 'VF3 above the voltage the first two points give at IF3' }] };
-    if (!(f(hi) < 0)) return { ok: false, problems: [{ key: 'VF3', message: 'no series resistance puts the third forward point on the curve through the first two', expected: 'forward points of one diode' }] };
+    if (!(f(hi) < 0) && !Number.isNaN(f(hi))) return { ok: false, problems: [{ key: 'VF3', message: 'no series resistance puts the third forward point on the curve through the first two', expected: 'forward points of one diode' }] };
     rs = bisect(f, 0, hi);
     out.set('RS', rs);
   }
@@ -230,6 +239,10 @@ export function resolveDiodeSheet(given: ReadonlyMap<string, number>): SheetReso
     else if (zzt !== undefined) {
       nbv = ((zzt - r) * ibv) / VT;
       if (!(nbv > 0)) return { ok: false, problems: [{ key: 'ZZT', message: `ZZT = ${zzt} Ω is not above the series resistance RS = ${r} Ω`, expected: 'ZZT > RS' }] };
+      if (kneeMissed) {
+        const got = (nbv * VT) / kneeMissed.izk + r;
+        notes.push({ key: 'ZZK', message: `ZZK = ${kneeMissed.zzk} Ω at ${kneeMissed.izk} A is softer than the model's breakdown can be with ZZT = ${zzt} Ω at ${izt} A (its dynamic resistance falls as 1/I): ZZT is met, and the model gives ${Number(got.toPrecision(3))} Ω at IZK`, expected: 'ZZK below ZZT·IZT/IZK + RS, or no knee point' });
+      }
     } else {
       nbv = g('NBV') ?? 1;
       if (g('NBV') === undefined) filled.push('NBV = 1 (default: no ZZT given, a sharp knee)');
@@ -242,7 +255,7 @@ export function resolveDiodeSheet(given: ReadonlyMap<string, number>): SheetReso
     const tc = g('TCVZ') ?? (g('TCVZPCT') !== undefined ? (g('TCVZPCT')! / 100) * vz : undefined);
     if (tc !== undefined) out.set('TBV', tc / bv);
   }
-  return { ok: true, params: out, filled };
+  return { ok: true, params: out, filled, notes };
 }
 
 /** Collector current (A) of the transport model in forward operation at Vbe, VCE (magnitudes), and its Icc and Iec. */
@@ -317,12 +330,13 @@ export function resolveBjtSheet(given: ReadonlyMap<string, number>): SheetResolu
       }
     }
   }
+  const notes: SheetProblem[] = [];
   if (!(p.is > 0) || !Number.isFinite(p.is)) return { ok: false, problems: [{ key: 'VBE', message: `VBE = ${vbe} V at ${icvbe} A gives no saturation current`, expected: 'a base-emitter voltage of a silicon transistor (about 0.5 V to 1 V)' }] };
   if (given.has('HFE') && !(bf > 0 && Number.isFinite(bf))) return { ok: false, problems: [{ key: 'HFE', message: `HFE = ${g('HFE')} at ${ichfe} A gives no forward beta`, expected: 'a gain above 0' }] };
   if (vbe !== undefined) out.set('IS', p.is);
   if (given.has('HFE')) out.set('BF', bf);
   if (given.has('VA') || hoe !== undefined) out.set('VAF', p.vaf!);
-  return { ok: true, params: out, filled };
+  return { ok: true, params: out, filled, notes };
 }
 
 /** Resolves the datasheet form of a model of `kind` (see {@link resolveDiodeSheet}, {@link resolveBjtSheet}). */

@@ -30,7 +30,14 @@ import { formatSI } from '../units.js';
 export type StressQuantity = 'v' | 'vr' | 'vce' | 'vcb' | 'iavg' | 'ipk' | 'irms' | 'ic' | 'p';
 
 /** Where a quantity's rating comes from: an element option (part-data.ts), `pmax`, or a transistor model parameter. */
-export type RatingSource = { readonly kind: 'option'; readonly key: PartDataKey } | { readonly kind: 'pmax' } | { readonly kind: 'model'; readonly param: 'VCEMAX' | 'VCBMAX' | 'ICMAX' };
+export type RatingSource =
+  /** An element option; for a diode, when the line has none, the model's datasheet rating `param` (VRRM, IFAV, IFRM). */
+  | { readonly kind: 'option'; readonly key: PartDataKey; readonly param?: DiodeRatingParam }
+  | { readonly kind: 'pmax' }
+  | { readonly kind: 'model'; readonly param: 'VCEMAX' | 'VCBMAX' | 'ICMAX' };
+
+/** A diode model's ratings (datasheet symbols, IEC 60747-2). */
+export type DiodeRatingParam = 'VRRM' | 'IFAV' | 'IFRM';
 
 /** Whether a quantity is a voltage, a current or a power: each has its own derating ratio. */
 export type StressClass = 'voltage' | 'current' | 'power';
@@ -44,7 +51,7 @@ export interface StressQuantityInfo {
 }
 
 const q = (quantity: StressQuantity, unit: 'V' | 'A' | 'W', cls: StressClass, rating: RatingSource): StressQuantityInfo => ({ quantity, unit, class: cls, rating });
-const opt = (key: PartDataKey): RatingSource => ({ kind: 'option', key });
+const opt = (key: PartDataKey, param?: DiodeRatingParam): RatingSource => (param ? { kind: 'option', key, param } : { kind: 'option', key });
 const PMAX: RatingSource = { kind: 'pmax' };
 
 /** The element kinds whose stress is measured. */
@@ -55,7 +62,7 @@ export const STRESS_QUANTITIES: Readonly<Record<StressedKind, readonly StressQua
   resistor: [q('v', 'V', 'voltage', opt('vmax')), q('p', 'W', 'power', PMAX)],
   capacitor: [q('v', 'V', 'voltage', opt('vmax')), q('ipk', 'A', 'current', opt('ipk')), q('irms', 'A', 'current', opt('irms'))],
   inductor: [q('iavg', 'A', 'current', opt('imax')), q('ipk', 'A', 'current', opt('ipk')), q('irms', 'A', 'current', opt('irms'))],
-  diode: [q('vr', 'V', 'voltage', opt('vmax')), q('iavg', 'A', 'current', opt('imax')), q('ipk', 'A', 'current', opt('ipk')), q('irms', 'A', 'current', opt('irms')), q('p', 'W', 'power', PMAX)],
+  diode: [q('vr', 'V', 'voltage', opt('vmax', 'VRRM')), q('iavg', 'A', 'current', opt('imax', 'IFAV')), q('ipk', 'A', 'current', opt('ipk', 'IFRM')), q('irms', 'A', 'current', opt('irms')), q('p', 'W', 'power', PMAX)],
   bjt: [
     q('vce', 'V', 'voltage', { kind: 'model', param: 'VCEMAX' }),
     q('vcb', 'V', 'voltage', { kind: 'model', param: 'VCBMAX' }),
@@ -72,7 +79,7 @@ export function isStressed(el: FlatElement): el is Extract<FlatElement, { kind: 
 /** An element's rating of a quantity, in the quantity's unit; undefined when the part has none. */
 export function ratingOf(el: FlatElement, r: RatingSource): number | undefined {
   return match(r)
-    .with({ kind: 'option' }, (o) => el.part[o.key])
+    .with({ kind: 'option' }, (o) => el.part[o.key] ?? (o.param !== undefined && el.kind === 'diode' ? el.model[o.param] : undefined))
     .with({ kind: 'pmax' }, () => el.pmax)
     .with({ kind: 'model' }, (m) => (el.kind === 'bjt' ? el.model[m.param] : undefined))
     .exhaustive();
@@ -283,10 +290,10 @@ export interface StressRow extends StressWorst {
   readonly status: StressStatus;
 }
 
-/** The rating's origin in words. */
-function ratedBy(r: RatingSource): string {
+/** Where an element's rating comes from, in words (an option on its line wins over its model's rating). */
+function ratedBy(el: FlatElement, r: RatingSource): string {
   return match(r)
-    .with({ kind: 'option' }, (o) => `${o.key}=`)
+    .with({ kind: 'option' }, (o) => (el.part[o.key] === undefined && o.param !== undefined ? `model ${o.param}` : `${o.key}=`))
     .with({ kind: 'pmax' }, () => 'pmax or PMAX')
     .with({ kind: 'model' }, (m) => `model ${m.param}`)
     .exhaustive();
@@ -305,7 +312,7 @@ export function judgeStress(elements: readonly FlatElement[], worst: readonly St
     const ratio = w.value / rating;
     const derate = derating[info.class];
     const status: StressStatus = ratio > 1 ? 'over' : ratio > derate ? 'margin' : 'ok';
-    rows.push({ ...w, rating, ratedBy: ratedBy(info.rating), ratio, derate, status });
+    rows.push({ ...w, rating, ratedBy: ratedBy(el, info.rating), ratio, derate, status });
   }
   return rows;
 }

@@ -7,6 +7,7 @@ import {
   type DeviceKind, type ModelType, type SourceSpec, type ValueField, type ValueRange, type WaveformSpec,
 } from '@railcheck/devices';
 import { match } from 'ts-pattern';
+import { warningAt } from '../errors.js';
 import type { BjtCard, CardOrigin, DeviceCard, DiodeCard, ElementCard, ModelCard, Value, Waveform } from '../netlist/ast.js';
 import type { FlatElement } from './flat.js';
 import { PART_DATA, PART_DATA_KEYS, type PartData, type PartDataKey } from '../part-data.js';
@@ -185,6 +186,13 @@ function modelParams(env: ElementEnv, card: ModelCard, scope: Scope): Map<string
   if (!r.ok) {
     for (const p of r.problems) rangeError(env, placeOfParam(p.key), `.model ${card.name}: ${p.message}`, p.expected, 'bad-datasheet');
     return new Map([...given].filter(([k]) => !sheet.some((s) => s.name === k)));
+  }
+  for (const note of r.notes) {
+    const at = placeOfParam(note.key);
+    const key = `${at.pos.file}:${at.pos.line}:${at.pos.column}:${note.message}`;
+    if (env.reported.has(key)) continue;
+    env.reported.add(key);
+    env.ev.diagnostics.push({ ...warningAt('datasheet-not-met', `.model ${card.name}: ${note.message}`, at.pos, at.lineText === '' ? undefined : at.lineText), expected: note.expected });
   }
   for (const [name, x] of r.params) {
     const spec = table.find((p) => p.name === name);
