@@ -9,9 +9,10 @@
 import { describe, expect, test } from 'vitest';
 import { element, elaborationErrors, flatten, solve } from './support.js';
 
-/** docs/models.md, Diode, "Defaults:" (BV and PMAX: none). */
+/** docs/models.md, Diode, "Defaults:" (BV, PMAX and the ratings VRRM, IFAV, IFRM: none). */
 const DIODE_DEFAULTS = {
   IS: 1e-14, N: 1, RS: 0, BV: undefined, IBV: 1e-3, NBV: 1, CJO: 0, VJ: 1, M: 0.5, TT: 0, EG: 1.11, XTI: 3, TBV: 0, PMAX: undefined,
+  VRRM: undefined, IFAV: undefined, IFRM: undefined,
 };
 
 /** docs/models.md, Bipolar transistor, "Defaults:" (VAF, VAR and PMAX: none). */

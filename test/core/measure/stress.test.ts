@@ -189,3 +189,25 @@ describe('capacitor ripple current of a bridge and reservoir', () => {
     expect(irms).toBeLessThan(estimate);
   }, 120_000);
 });
+
+describe('ratings in a diode model (the datasheet values VRRM, IFAV, IFRM)', () => {
+  test('a half-wave reservoir rectifier: vr is the peak inverse voltage 2·Vpk − VF, judged by the model VRRM; an option on the line wins', () => {
+    // Peak inverse voltage of a half-wave capacitor-input rectifier: 2·Vm less the diode drop (textbook result, e.g.
+    // any power-electronics text's rectifier chapter; from memory): the reservoir holds about Vm − VF while the
+    // secondary swings to −Vm.
+    const vpk = 10;
+    const lines = (extra: string): string => `half-wave PIV\nVSEC sec 0 sin(0 ${vpk} 50)\nD1 sec out DR${extra}\nC1 out 0 1000u\nRL out 0 1k\n.model DR D (VF=0.7 IF=10m VF2=0.9 IF2=1 VRRM=25 IFAV=1 IFRM=5)\n.supply in=VSEC out=out load=RL\n.figure stress\n.end\n`;
+    const rows = stressRows(reportOf(lines('')));
+    const vr = row(rows, 'D1', 'vr');
+    expect(vr.ratedBy).toBe('model VRRM');
+    expect(vr.rating).toBe(25);
+    // Between 2·Vpk − 1 V and 2·Vpk: the drop at the light load is 0.6 V to 0.8 V (the model's two points).
+    expect(vr.value).toBeGreaterThan(2 * vpk - 1);
+    expect(vr.value).toBeLessThan(2 * vpk);
+    expect(row(rows, 'D1', 'iavg').ratedBy).toBe('model IFAV');
+    expect(row(rows, 'D1', 'ipk').ratedBy).toBe('model IFRM');
+    const own = row(stressRows(reportOf(lines(' vmax=50'))), 'D1', 'vr');
+    expect(own.ratedBy).toBe('vmax=');
+    expect(own.rating).toBe(50);
+  });
+});
