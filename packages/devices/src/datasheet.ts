@@ -306,29 +306,41 @@ export function resolveBjtSheet(given: ReadonlyMap<string, number>): SheetResolu
   const p: BjtPoint = { is: g('IS') ?? 1e-16, nf: g('NF') ?? 1, nr: g('NR') ?? 1, br: g('BR') ?? 1, vaf: g('VA') ?? g('VAF'), var: g('VAR') };
   const hoe = g('HOE');
   let bf = g('BF') ?? 100;
-  // HOE ties VAF to Icc at the gain point, which depends on IS and VAF: a fixed point, reached in a few rounds.
+  const rb = g('RB') ?? 0;
+  const rc = g('RC') ?? 0;
+  const re = g('RE') ?? 0;
+  // The datasheet's VBE and VCE are at the terminals: the junctions see them less the drops across RB, RC and RE,
+  // which depend on the currents the model gives, as HOE ties VAF to Icc at the gain point: a fixed point, reached
+  // in a few rounds (one, with no terminal resistance and no HOE).
+  const iterate = hoe !== undefined || rb > 0 || rc > 0 || re > 0;
   if (hoe !== undefined) p.vaf = ichfe / hoe;
-  for (let round = 0; round < (hoe !== undefined ? 60 : 1); round++) {
+  let ibv = icvbe / bf;
+  for (let round = 0; round < (iterate ? 100 : 1); round++) {
+    const before = [p.is, bf, p.vaf ?? 0];
     if (vbe !== undefined) {
-      const unit: BjtPoint = { ...p, is: 1 };
-      const perIs = collector(unit, vbe, vce).ic;
-      p.is = icvbe / perIs;
+      const vbej = vbe - ibv * rb - (icvbe + ibv) * re;
+      const vcej = vce - icvbe * rc - (icvbe + ibv) * re;
+      p.is = icvbe / collector({ ...p, is: 1 }, vbej, vcej).ic;
     }
     if (given.has('HFE') || hoe !== undefined) {
-      const v = vbeAt(p, ichfe, vce);
-      const { icc, iec } = collector(p, v, vce);
-      if (given.has('HFE')) {
-        const ib = ichfe / g('HFE')!;
-        bf = icc / (ib - iec / p.br);
-      }
+      const ibh = given.has('HFE') ? ichfe / g('HFE')! : ichfe / bf;
+      const vcej = vce - ichfe * rc - (ichfe + ibh) * re;
+      const { icc, iec } = collector(p, vbeAt(p, ichfe, vcej), vcej);
+      if (given.has('HFE')) bf = icc / (ibh - iec / p.br);
       if (hoe !== undefined) {
         const next = icc / hoe;
         if (!(next > vce)) return { ok: false, problems: [{ key: 'HOE', message: `HOE = ${hoe} S at ${ichfe} A gives an Early voltage of ${next.toPrecision(3)} V, not above VCE = ${vce} V`, expected: 'an output admittance well below IC/VCE' }] };
-        const done = Math.abs(next - p.vaf!) <= 1e-13 * next;
         p.vaf = next;
-        if (done) break;
       }
     }
+    if (vbe !== undefined) {
+      // The model's base current at the VBE point, for the next round's drops.
+      const vcej = vce - icvbe * rc - (icvbe + ibv) * re;
+      const { icc, iec } = collector(p, vbeAt(p, icvbe, vcej), vcej);
+      ibv = icc / bf + iec / p.br;
+    }
+    const after = [p.is, bf, p.vaf ?? 0];
+    if (after.every((x, k) => Math.abs(x - before[k]!) <= 1e-14 * Math.abs(x))) break;
   }
   const notes: SheetProblem[] = [];
   if (!(p.is > 0) || !Number.isFinite(p.is)) return { ok: false, problems: [{ key: 'VBE', message: `VBE = ${vbe} V at ${icvbe} A gives no saturation current`, expected: 'a base-emitter voltage of a silicon transistor (about 0.5 V to 1 V)' }] };
