@@ -4,9 +4,14 @@
  * (not railcheck's), so that the hand solutions follow the file as it is
  * and a changed value cannot leave them behind. Handles only what the
  * examples use: element lines, `.model` cards, `.param name=value` and
- * `{name}` references, `;` comments.
+ * `{name}` references, `;` comments. A model written in its datasheet form
+ * (docs/models.md) is turned into its physical parameters by the devices
+ * package's resolver: the hand solutions check the engine and the figures
+ * given those parameters, and test/devices/datasheet.test.ts checks the
+ * resolver itself against simulated test points.
  */
 import { readFileSync } from 'node:fs';
+import { resolveSheet, sheetKeys } from '@railcheck/devices';
 import { fileURLToPath } from 'node:url';
 
 /** Absolute path of an example netlist. */
@@ -74,7 +79,11 @@ export function readExample(file: string): NetlistValues {
         const [k, v] = t.split('=');
         p.set(k!.toUpperCase(), numberOf(v!, params));
       }
-      models.set(tokens[1]!.toUpperCase(), p);
+      const kind = tokens[2]!.toUpperCase() === 'D' ? 'diode' : 'bjt';
+      const sheet = [...p.keys()].some((k) => sheetKeys(kind).some((s) => s.name === k));
+      const r = sheet ? resolveSheet(kind, p) : undefined;
+      if (r && !r.ok) throw new Error(`model ${tokens[1]}: ${r.problems.map((x) => x.message).join('; ')}`);
+      models.set(tokens[1]!.toUpperCase(), r?.ok ? r.params : p);
     } else if (head === '.figure') {
       figures.set(tokens[1]!.toLowerCase(), new Map(tokens.slice(2).map((t) => t.split('=') as [string, string])));
     } else if (!head.startsWith('.')) {
