@@ -165,6 +165,22 @@ const LIBRARY_NAME = /^[A-Za-z0-9_-]+$/;
 export const LIBRARY_MARK = 'railcheck parts library';
 
 let libraryFolderFound: string | null | undefined;
+let libraryFolderOverride: string | undefined;
+
+/**
+ * Runs `fn` with `folder` taken as the parts library folder (for tests of
+ * nested library includes on a library of their own), then restores the
+ * search. Not for use outside tests.
+ */
+export function withPartsLibraryFolder<T>(folder: string, fn: () => T): T {
+  const before = libraryFolderOverride;
+  libraryFolderOverride = realOrSelf(folder);
+  try {
+    return fn();
+  } finally {
+    libraryFolderOverride = before;
+  }
+}
 
 /**
  * The parts library folder: the first `parts/` folder holding the
@@ -176,6 +192,7 @@ let libraryFolderFound: string | null | undefined;
  * found. The default search is done once.
  */
 export function partsLibraryFolder(start?: string): string | undefined {
+  if (start === undefined && libraryFolderOverride !== undefined) return libraryFolderOverride;
   if (start === undefined && libraryFolderFound !== undefined) return libraryFolderFound ?? undefined;
   let dir = start ?? dirname(fileURLToPath(import.meta.url));
   let found: string | undefined;
