@@ -308,7 +308,9 @@ function resolveLibraryInclude(ctx: IncludeState, c: Cursor, path: string, at: T
     display = `${LIBRARY_PREFIX}${file}`;
   } else {
     abs = resolve(dirname(including.abs), path);
-    display = `${LIBRARY_PREFIX}${relative(folder, abs).split(sep).join('/')}`;
+    const rel = relative(folder, abs).split(sep).join('/');
+    // A library file reached by its file name is shown as the name that includes it.
+    display = `${LIBRARY_PREFIX}${rel.endsWith('.lib') && LIBRARY_NAME.test(rel.slice(0, -4)) ? rel.slice(0, -4) : rel}`;
     if (!inside(folder, abs) || !inside(folder, realOrSelf(abs))) {
       c.fail('include-outside', `"${path}" in the library file ${including.display} leaves the library folder ${folder}`, at, `a path inside ${folder}`);
     }
