@@ -6,7 +6,9 @@
 //   because each package's declarations import the previous one's through its
 //   package.json `types`;
 // - packages/cli/examples/: a copy of the example netlists, so that an
-//   installed CLI finds the demo netlist inside its own package.
+//   installed CLI finds the demo netlist inside its own package;
+// - packages/cli/parts/: a copy of the parts library (packages/core/parts),
+//   so that `.include "parts:NAME"` finds it from the CLI bundle.
 // When the launcher (scripts/railcheck.mjs) imports this file to refresh a
 // stale bundle, only the JavaScript is rebuilt (quick); `node scripts/build.mjs`
 // (prepare, build) does everything.
@@ -29,6 +31,11 @@ const examples = join(pkg('cli'), 'examples');
 mkdirSync(examples, { recursive: true });
 for (const f of readdirSync(join(root, 'examples'))) {
   if (f.endsWith('.cir')) cpSync(join(root, 'examples', f), join(examples, f));
+}
+const parts = join(pkg('cli'), 'parts');
+mkdirSync(parts, { recursive: true });
+for (const f of readdirSync(join(pkg('core'), 'parts'))) {
+  if (f.endsWith('.lib') || f === 'README.md') cpSync(join(pkg('core'), 'parts', f), join(parts, f));
 }
 
 await Promise.all([

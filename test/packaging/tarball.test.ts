@@ -11,7 +11,9 @@
  * - compiled with tsc and run with node, it prints a divider's output voltage,
  *   checked by Ohm's law;
  * - the installed `railcheck demo` exits 0;
- * - examples/library/check-rail.mjs runs against the installed packages.
+ * - examples/library/check-rail.mjs runs against the installed packages;
+ * - the parts library ships in core and the CLI, and `.include "parts:zeners"`
+ *   works from both.
  * Needs the npm registry for ts-pattern and @types/node.
  */
 import { execFileSync, spawnSync } from 'node:child_process';
@@ -98,6 +100,25 @@ describe('the packed packages in a project of their own', () => {
       expect(readFileSync(join(dir, 'package.json'), 'utf8')).not.toContain('workspace:');
     }
     expect(existsSync(join(project(), 'node_modules', '@railcheck', 'cli', 'examples', 'sensor-rail-follower.cir'))).toBe(true);
+    // The parts library ships in core and in the CLI (docs/parts.md): its README and the four files.
+    for (const p of ['core', 'cli']) {
+      for (const f of ['README.md', 'zeners.lib', 'rectifiers.lib', 'transistors.lib', 'leds.lib']) {
+        expect(existsSync(join(project(), 'node_modules', '@railcheck', p, 'parts', f)), `${p}/parts/${f}`).toBe(true);
+      }
+    }
+  });
+
+  test('the installed railcheck and the installed core both find the parts library by name', () => {
+    writeFileSync(join(project(), 'shunt.cir'), 'Weather-station sensor rail: shunt reference\n.include "parts:zeners"\nV1 in 0 12\nR1 in out 1k\nD1 0 out zener_5v6_500mw\n.op\n');
+    const cli = run(join(project(), 'node_modules', '.bin', 'railcheck'), ['run', 'shunt.cir'], project());
+    expect(cli.stderr).toBe('');
+    expect(cli.status).toBe(0);
+    writeFileSync(join(project(), 'shunt.mjs'), "import { runNetlistFile } from '@railcheck/core';\nconst r = runNetlistFile('shunt.cir');\nconsole.log(JSON.stringify(r.ok ? r.report.operatingPoints[0].nodes : r.errors));\n");
+    const lib = run(process.execPath, ['shunt.mjs'], project());
+    expect(lib.stderr).toBe('');
+    const nodes = JSON.parse(lib.stdout) as { out?: number };
+    // A 5.6 V Zener fed 6.4 mA: within 0.1 V of its nominal voltage (zeners.lib: VZ 5.6 V at 5 mA, ZZT 25 Ω).
+    expect(Math.abs((nodes.out ?? 0) - 5.6)).toBeLessThan(0.1);
   });
 
   test('a consumer type-checks under strict settings, and a deliberate index-signature access is refused', () => {

@@ -9,6 +9,7 @@ export type { Diagnostic, SourcePos } from './errors.js';
 
 export { parseNetlist, parseNetlistOrThrow, readNetlistFile, parseScaledNumber, evaluateExpr, printNetlist } from './netlist/index.js';
 export type { ParseOptions, ParseResult } from './netlist/index.js';
+export { LIBRARY_PREFIX, partsLibraryFolder, libraryNames, withPartsLibraryFolder } from './netlist/include.js';
 export type {
   Netlist, Card, ElementCard, ModelCard, ParamCard, AnalysisCard, SupplyCard, SubcktDef, Value, Expr, ExprFunction,
   Waveform, Assignments, CardOrigin, FigureKind, LimitOp, ModelType, PassiveCard, SourceCard, DiodeCard, BjtCard,

@@ -62,6 +62,8 @@ const CASES: readonly Case[] = [
     at: { file: 'b.lib', line: 2, column: 10 }, message: [/a\.lib → .*b\.lib → .*a\.lib/],
   },
   { name: 'include of a missing file', text: 'Includes\n.include "nothere.lib"\n', at: { line: 2 }, message: [/nothere\.lib/] },
+  // docs/parts.md: an unknown library name lists the library files (the CLI bundle finds its own copy, packages/cli/parts).
+  { name: 'include of an unknown parts library file', text: 'Includes\n.include "parts:nope"\n', at: { line: 2, column: 10 }, message: [/parts:nope/, /"parts:zeners"/, /"parts:leds"/], expected: /parts:rectifiers/ },
   {
     name: 'node reached only through a capacitor',
     text: 'Floating\nV1 a 0 1\nR1 a 0 1k\nC1 a b 1u\n', at: { line: 4 }, message: [/\bb\b/, /C1/], expected: /DC path|path .*ground/,

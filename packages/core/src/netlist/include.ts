@@ -3,10 +3,13 @@
  * resolution relative to the including file, cycle detection, refusal of
  * paths whose real location (symbolic links followed) leaves the including
  * file's folder tree unless the caller allows them, refusal of anything
- * that is not a regular file, and a cap on the bytes read from each file.
+ * that is not a regular file, and a cap on the bytes read from each file;
+ * `.include "parts:NAME"`, a file of the parts library shipped with the
+ * package (docs/parts.md), found beside the running code.
  */
-import { closeSync, constants, fstatSync, openSync, readSync, realpathSync } from 'node:fs';
+import { closeSync, constants, existsSync, fstatSync, openSync, readdirSync, readFileSync, readSync, realpathSync } from 'node:fs';
 import { dirname, isAbsolute, join, normalize, relative, resolve, sep } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { match } from 'ts-pattern';
 import type { Cursor } from './cursor.js';
 import type { Token } from './lexer.js';
@@ -19,6 +22,8 @@ export interface IncludeFrame {
   readonly abs: string;
   /** Identity of the file for cycle detection: its real path on disk, `abs` for a caller-supplied reader. */
   readonly key: string;
+  /** True for a file of the parts library: read from disk, its includes resolved within the library folder. */
+  readonly library: boolean;
 }
 
 /** Deepest chain of includes accepted (a guard against runaway generated files). */
@@ -149,7 +154,73 @@ export function describeRefusal(r: ReadRefusal): { suffix: string; reason: strin
 /** The frame of the top file. */
 export function topFrame(file: string, source: FileSource): IncludeFrame {
   const abs = resolve(file);
-  return { display: file, abs, key: source.realPath(abs) };
+  return { display: file, abs, key: source.realPath(abs), library: false };
+}
+
+/** Prefix of an include path that names a file of the parts library (`.include "parts:zeners"`). */
+export const LIBRARY_PREFIX = 'parts:';
+/** Characters a library name may hold: letters, digits, `-` and `_`. */
+const LIBRARY_NAME = /^[A-Za-z0-9_-]+$/;
+/** Text the library's README.md holds, which tells the library folder from any other `parts/` folder. */
+export const LIBRARY_MARK = 'railcheck parts library';
+
+let libraryFolderFound: string | null | undefined;
+let libraryFolderOverride: string | undefined;
+
+/**
+ * Runs `fn` with `folder` taken as the parts library folder (for tests of
+ * nested library includes on a library of their own), then restores the
+ * search. Not for use outside tests.
+ */
+export function withPartsLibraryFolder<T>(folder: string, fn: () => T): T {
+  const before = libraryFolderOverride;
+  libraryFolderOverride = realOrSelf(folder);
+  try {
+    return fn();
+  } finally {
+    libraryFolderOverride = before;
+  }
+}
+
+/**
+ * The parts library folder: the first `parts/` folder holding the
+ * library's README.md (with {@link LIBRARY_MARK}) found searching upward
+ * from `start` (default: this module's own folder, so it works from the
+ * sources, packages/core/src/netlist → packages/core/parts, from the core
+ * bundle, packages/core/dist → packages/core/parts, and from the CLI
+ * bundle, packages/cli/dist → packages/cli/parts). Undefined when none is
+ * found. The default search is done once.
+ */
+export function partsLibraryFolder(start?: string): string | undefined {
+  if (start === undefined && libraryFolderOverride !== undefined) return libraryFolderOverride;
+  if (start === undefined && libraryFolderFound !== undefined) return libraryFolderFound ?? undefined;
+  let dir = start ?? dirname(fileURLToPath(import.meta.url));
+  let found: string | undefined;
+  for (;;) {
+    const readme = join(dir, 'parts', 'README.md');
+    try {
+      if (existsSync(readme) && readFileSync(readme, 'utf8').includes(LIBRARY_MARK)) {
+        found = realOrSelf(join(dir, 'parts'));
+        break;
+      }
+    } catch {
+      // an unreadable README is not the library's: search on
+    }
+    const up = dirname(dir);
+    if (up === dir) break;
+    dir = up;
+  }
+  if (start === undefined) libraryFolderFound = found ?? null;
+  return found;
+}
+
+/** Names of the library files in `folder` (`zeners` for zeners.lib), sorted. */
+export function libraryNames(folder: string): string[] {
+  try {
+    return readdirSync(folder).filter((f) => f.endsWith('.lib') && LIBRARY_NAME.test(f.slice(0, -4))).map((f) => f.slice(0, -4)).sort();
+  } catch {
+    return [];
+  }
 }
 
 /** What an include needs from the reader's state. */
@@ -175,6 +246,7 @@ function inside(dir: string, abs: string): boolean {
 export function resolveInclude(ctx: IncludeState, c: Cursor, path: string, at: Token): IncludeFrame & { text: string } {
   const including = ctx.stack[ctx.stack.length - 1];
   if (!including) c.fail('internal', 'include outside any file', at);
+  if (path.startsWith(LIBRARY_PREFIX) || including.library) return resolveLibraryInclude(ctx, c, path, at, including);
   const dir = dirname(including.abs);
   const abs = resolve(dir, path);
   const display = isAbsolute(path) ? normalize(path) : join(dirname(including.display), path);
@@ -188,18 +260,69 @@ export function resolveInclude(ctx: IncludeState, c: Cursor, path: string, at: T
       c.fail('include-outside', `"${path}" is a link to ${real}, outside the folder of ${including.display}; includes outside it are refused unless the caller allows them`, at, `a path whose real location is inside ${realDir}`);
     }
   }
+  checkStack(ctx, c, real, display, at);
+  const got = ctx.source.read(abs);
+  if (got.kind === 'refused') {
+    const { suffix, reason } = describeRefusal(got.refusal);
+    c.fail(`include-${suffix}`, `the included file ${display} (${real}) ${reason}`, at, `an existing, readable regular file of at most ${MAX_FILE_BYTES} bytes`);
+  }
+  return { display, abs, key: real, library: false, text: got.text };
+}
+
+/** Cycle and depth checks shared by every include. */
+function checkStack(ctx: IncludeState, c: Cursor, real: string, display: string, at: Token): void {
   const seen = ctx.stack.findIndex((f) => f.key === real);
   if (seen >= 0) {
     const cycle = [...ctx.stack.slice(seen).map((f) => f.display), display].join(' → ');
     c.fail('include-cycle', `include cycle: ${cycle}`, at, 'includes that do not lead back to a file being read');
   }
   if (ctx.stack.length >= MAX_INCLUDE_DEPTH) c.fail('include-too-deep', `includes nest more than ${MAX_INCLUDE_DEPTH} deep`, at, 'fewer nested includes');
-  const got = ctx.source.read(abs);
+}
+
+/**
+ * An include of the parts library: `parts:NAME` from any file, or a plain
+ * relative path inside a library file (resolved within the library folder,
+ * and refused if it leaves it). Library files are ours: they are read from
+ * disk whatever reader the caller supplied, and the containment rule of
+ * the including file does not apply to `parts:NAME`.
+ */
+function resolveLibraryInclude(ctx: IncludeState, c: Cursor, path: string, at: Token, including: IncludeFrame): IncludeFrame & { text: string } {
+  const folder = partsLibraryFolder();
+  if (folder === undefined) {
+    c.fail('include-library-missing', `"${path}" names the parts library, but no parts/ folder with its README.md was found above ${dirname(fileURLToPath(import.meta.url))}`, at, 'an installation of railcheck that ships its parts/ folder');
+  }
+  const available = (): string => {
+    const names = libraryNames(folder);
+    return names.length > 0 ? names.map((n) => `"${LIBRARY_PREFIX}${n}"`).join(', ') : `none (the folder ${folder} holds no .lib file)`;
+  };
+  let abs: string;
+  let display: string;
+  if (path.startsWith(LIBRARY_PREFIX)) {
+    const name = path.slice(LIBRARY_PREFIX.length);
+    if (!LIBRARY_NAME.test(name)) {
+      c.fail('include-library-name', `"${path}" is not a library name: after ${LIBRARY_PREFIX} come letters, digits, - and _ only; the library files are ${available()}`, at, available());
+    }
+    const file = libraryNames(folder).find((n) => n === name);
+    if (file === undefined) c.fail('include-library-unknown', `there is no library file "${path}"; the library files are ${available()}`, at, available());
+    abs = join(folder, `${file}.lib`);
+    display = `${LIBRARY_PREFIX}${file}`;
+  } else {
+    abs = resolve(dirname(including.abs), path);
+    const rel = relative(folder, abs).split(sep).join('/');
+    // A library file reached by its file name is shown as the name that includes it.
+    display = `${LIBRARY_PREFIX}${rel.endsWith('.lib') && LIBRARY_NAME.test(rel.slice(0, -4)) ? rel.slice(0, -4) : rel}`;
+    if (!inside(folder, abs) || !inside(folder, realOrSelf(abs))) {
+      c.fail('include-outside', `"${path}" in the library file ${including.display} leaves the library folder ${folder}`, at, `a path inside ${folder}`);
+    }
+  }
+  const real = realOrSelf(abs);
+  checkStack(ctx, c, real, display, at);
+  const got = readDiskFile(abs);
   if (got.kind === 'refused') {
     const { suffix, reason } = describeRefusal(got.refusal);
-    c.fail(`include-${suffix}`, `the included file ${display} (${real}) ${reason}`, at, `an existing, readable regular file of at most ${MAX_FILE_BYTES} bytes`);
+    c.fail(`include-${suffix}`, `the library file ${display} (${real}) ${reason}`, at, `an existing, readable regular file of at most ${MAX_FILE_BYTES} bytes`);
   }
-  return { display, abs, key: real, text: got.text };
+  return { display, abs, key: real, library: true, text: got.text };
 }
 
 /**
