@@ -17,7 +17,7 @@
 export { RailcheckError, formatDiagnostic, errorAt, warningAt } from './errors.js';
 export type { Diagnostic, SourcePos } from './errors.js';
 
-export { parseNetlist, parseNetlistOrThrow, readNetlistFile, printNetlist } from './netlist/index.js';
+export { parseNetlist, parseNetlistOrThrow, readNetlistFile, printNetlist, parseScaledNumber } from './netlist/index.js';
 export type { ParseOptions, ParseResult } from './netlist/index.js';
 export type {
   Netlist, Card, ElementCard, ModelCard, ParamCard, AnalysisCard, SupplyCard, SubcktDef, Value, Expr, ExprFunction,

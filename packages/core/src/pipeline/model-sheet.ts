@@ -31,6 +31,7 @@ import { createEvaluator } from '../elaborate/evaluate.js';
 import { resolveModelParams } from '../elaborate/elements.js';
 import { topScope } from '../elaborate/scope.js';
 import { argumentDiagnostic, isRecord } from '../arguments.js';
+import { formatSI } from '../units.js';
 import { runNetlist } from './run.js';
 
 /** Test conditions of the implied datasheet values (A, V); unset: the model's own datasheet keys, else the defaults. */
@@ -49,12 +50,15 @@ export interface SheetConditions {
   readonly vce?: number | undefined;
 }
 
-/** One implied datasheet value: its key (as the datasheet form names it), value in SI units, unit, and the conditions in words. */
+/** One implied datasheet value: its key (as the datasheet form names it), value in SI units, unit, and the conditions in words and as numbers. */
 export interface SheetValue {
   readonly key: string;
   readonly value: number;
   readonly unit: string;
+  /** The test conditions in words, e.g. `IZT = 5 mA, a step of ±1 %`. */
   readonly at: string;
+  /** The test conditions as numbers, SI units: IF, IZT, IZK, IC (A), VCE and its step DVCE (V), IB (A, the base current held for HOE), T1/T2 (°C). */
+  readonly conditions: Readonly<Record<string, number>>;
 }
 
 /** The outcome: the values a model implies, or the errors that stopped the test circuits. */
@@ -78,6 +82,9 @@ const isErrors = (x: unknown[]): x is Diagnostic[] => x.length > 0 && typeof (x[
 /** Number text that reads back exactly. */
 const n = (x: number): string => String(x);
 
+/** A condition as people read it (4 significant digits, SI prefix). */
+const si = (x: number, unit: string): string => formatSI(x, unit);
+
 /** The values of the resolved `card` (physical parameters, plain numbers), the test conditions defaulting to the datasheet keys `given` (evaluated, upper-case); throws SheetFailure from a test circuit. */
 function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, conditions: SheetConditions): ImpliedSheet {
   const model = modelLine(card, 'M');
@@ -89,7 +96,7 @@ function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, condi
     forward.forEach((i, k) => {
       const r = op(['diode forward point', `I1 0 a ${n(i)}`, 'D1 a 0 M', model]);
       if (isErrors(r)) throw new SheetFailure(r);
-      values.push({ key: k === 0 ? 'VF' : `VF${k + 1}`, value: r[0]!.nodes['a']!, unit: 'V', at: `IF = ${n(i)} A` });
+      values.push({ key: k === 0 ? 'VF' : `VF${k + 1}`, value: r[0]!.nodes['a']!, unit: 'V', at: `IF = ${si(i, 'A')}`, conditions: { IF: i } });
     });
     // A model with breakdown: the Zener's values.
     const hasBv = card.params.some((p) => p.name.toUpperCase() === 'BV');
@@ -101,13 +108,13 @@ function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, condi
         return r.map((p) => p.nodes['k']!);
       };
       const [vz] = zener(izt);
-      values.push({ key: 'VZ', value: vz!, unit: 'V', at: `IZT = ${n(izt)} A` });
+      values.push({ key: 'VZ', value: vz!, unit: 'V', at: `IZT = ${si(izt, 'A')}`, conditions: { IZT: izt } });
       const slope = (i: number): number => (zener(1.01 * i)[0]! - zener(0.99 * i)[0]!) / (0.02 * i);
-      values.push({ key: 'ZZT', value: slope(izt), unit: 'Ω', at: `IZT = ${n(izt)} A, a step of ±1 %` });
+      values.push({ key: 'ZZT', value: slope(izt), unit: 'Ω', at: `IZT = ${si(izt, 'A')}, a step of ±1 %`, conditions: { IZT: izt } });
       const izk = conditions.izk ?? given.get('IZK');
-      if (izk !== undefined) values.push({ key: 'ZZK', value: slope(izk), unit: 'Ω', at: `IZK = ${n(izk)} A, a step of ±1 %` });
+      if (izk !== undefined) values.push({ key: 'ZZK', value: slope(izk), unit: 'Ω', at: `IZK = ${si(izk, 'A')}, a step of ±1 %`, conditions: { IZK: izk } });
       const [cold, warm] = zener(izt, [26, 28]);
-      values.push({ key: 'TCVZ', value: (warm! - cold!) / 2, unit: 'V/K', at: `IZT = ${n(izt)} A, 26 °C to 28 °C` });
+      values.push({ key: 'TCVZ', value: (warm! - cold!) / 2, unit: 'V/K', at: `IZT = ${si(izt, 'A')}, 26 °C to 28 °C`, conditions: { IZT: izt, T1: 26, T2: 28 } });
     }
     return { ok: true, type: card.type, values };
   }
@@ -135,11 +142,11 @@ function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, condi
     throw new SheetFailure([errorAt('model-test', `no base current gives IC = ${ic} A at VCE = ${vce} V`, undefined, undefined, 'a transistor model in forward operation at the test point')]);
   };
   const ibh = baseFor(ichfe);
-  values.push({ key: 'HFE', value: ichfe / ibh, unit: '', at: `IC = ${n(ichfe)} A, VCE = ${n(vce)} V` });
+  values.push({ key: 'HFE', value: ichfe / ibh, unit: '', at: `IC = ${si(ichfe, 'A')}, VCE = ${si(vce, 'V')}`, conditions: { IC: ichfe, VCE: vce } });
   const ibv = icvbe === ichfe ? ibh : baseFor(icvbe);
-  values.push({ key: 'VBE', value: point(ibv, vce).vbe, unit: 'V', at: `IC = ${n(icvbe)} A, VCE = ${n(vce)} V` });
+  values.push({ key: 'VBE', value: point(ibv, vce).vbe, unit: 'V', at: `IC = ${si(icvbe, 'A')}, VCE = ${si(vce, 'V')}`, conditions: { IC: icvbe, VCE: vce } });
   const dv = Math.min(0.5, vce / 4);
-  values.push({ key: 'HOE', value: (point(ibh, vce + dv).ic - point(ibh, vce - dv).ic) / (2 * dv), unit: 'S', at: `IC = ${n(ichfe)} A, VCE = ${n(vce)} V ± ${n(dv)} V, IB held` });
+  values.push({ key: 'HOE', value: (point(ibh, vce + dv).ic - point(ibh, vce - dv).ic) / (2 * dv), unit: 'S', at: `IC = ${si(ichfe, 'A')}, VCE = ${si(vce, 'V')} ± ${si(dv, 'V')}, IB held`, conditions: { IC: ichfe, VCE: vce, DVCE: dv, IB: ibh } });
   return { ok: true, type: card.type, values };
 }
 
@@ -152,18 +159,19 @@ class SheetFailure extends Error {
 
 /**
  * The datasheet values a `.model` card implies (see the module comment):
- * the card is resolved ({@link resolveModelCard}) and its physical
- * parameters put in the test circuits. Values in SI units (V, A, Ω, V/K,
+ * the card is resolved ({@link resolveModelCard}; or `model` is the
+ * resolution already made) and its physical parameters put in the test
+ * circuits. Values in SI units (V, A, Ω, V/K,
  * S); the test conditions are `conditions`, else the card's own datasheet
  * keys, else the defaults of devices/datasheet.ts (IZT 5 mA, IC 10 mA,
  * VCE 5 V, IF 10 mA). The errors are the card's (out of range, datasheet
  * values that do not resolve) or those of a test circuit that could not be
  * solved.
  */
-export function impliedDatasheet(card: ModelCard, conditions: SheetConditions = {}, options: ResolveModelOptions = {}): ImpliedSheet {
+export function impliedDatasheet(model: ModelCard | ResolvedModel, conditions: SheetConditions = {}, options: ResolveModelOptions = {}): ImpliedSheet {
   const wrong = conditionsProblem(conditions);
   if (wrong) return { ok: false, errors: [wrong] };
-  const resolved = resolveModelCard(card, options);
+  const resolved = isRecord(model) && 'ok' in model ? (model as ResolvedModel) : resolveModelCard(model as ModelCard, options);
   if (!resolved.ok) return resolved;
   try {
     return measureSheet(resolved.card, resolved.given, conditions);
@@ -269,9 +277,15 @@ export function findModelCard(netlist: Netlist, name: string): ModelCard | undef
   return netlist.cards.find((c): c is ModelCard => c.kind === 'model' && c.name.toLowerCase() === name.toLowerCase());
 }
 
-/** The `.model` card of one line of text (`.model NAME TYPE (...)`), or the reader's errors. */
-export function readModelLine(line: string): { ok: true; card: ModelCard } | { ok: false; errors: readonly Diagnostic[] } {
-  const parsed = parseNetlist(`model\n${line}\n`, { file: '(model line)' });
+/**
+ * The `.model` card of one line of text (`.model NAME TYPE (...)`), or the
+ * reader's errors. The text is read as line 2 of a netlist `file` (default
+ * `(model line)`) whose line 1 is a title, so places name line 2.
+ */
+export function readModelLine(line: string, file = '(model line)'): { ok: true; card: ModelCard } | { ok: false; errors: readonly Diagnostic[] } {
+  if (typeof line !== 'string' || line.includes('\n')) return { ok: false, errors: [argumentDiagnostic('readModelLine', 'line', 'one line of text', line)] };
+  if (typeof file !== 'string') return { ok: false, errors: [argumentDiagnostic('readModelLine', 'file', 'a string', file)] };
+  const parsed = parseNetlist(`model\n${line}\n`, { file });
   if (!parsed.ok) return { ok: false, errors: parsed.errors };
   const card = parsed.netlist.cards.find((c): c is ModelCard => c.kind === 'model');
   return card ? { ok: true, card } : { ok: false, errors: [errorAt('no-model', 'the text holds no .model line', undefined, undefined, '.model NAME D|NPN|PNP (key=value ...)')] };
