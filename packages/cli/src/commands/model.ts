@@ -13,11 +13,11 @@
  * Exit status 0 on success, 2 for a usage error or a model that cannot be
  * resolved or simulated.
  */
-import { formatDiagnostic, formatSI, impliedDatasheet, parseNetlist, parseScaledNumber, readModelLine, readNetlistFile, resolveModelCard, resolveNetlistModel, modelLine, type Diagnostic, type ModelCard, type ParseResult, type ResolvedModel, type SheetConditions, type SheetValue } from '@railcheck/core';
-import { paramTable, MODEL_TYPES, type ModelType } from '@railcheck/devices';
+import { formatDiagnostic, impliedDatasheet, parseNetlist, parseScaledNumber, readModelLine, readNetlistFile, resolveModelCard, resolveNetlistModel, modelLine, type Diagnostic, type ModelCard, type ParseResult, type ResolvedModel, type SheetConditions, type SheetValue } from '@railcheck/core';
+import { MODEL_TYPES, type ModelType } from '@railcheck/devices';
 import { commandArgs, flagHelp, type FlagSpec } from '../args.js';
 import { EXIT_ERROR, EXIT_OK, type CliIo } from '../main.js';
-import { heading, table } from '../present/table.js';
+import { formatModel, modelJson, type ModelSource, type SheetRow } from '../present/model.js';
 
 /** `format` member of the JSON object. */
 export const MODEL_FORMAT = 'railcheck-model';
@@ -69,11 +69,6 @@ ${flagHelp(MODEL_FLAGS)}
 
 exit status: 0 the model was resolved and simulated, 2 a usage error or a
 model that cannot be resolved or simulated (the messages on standard error).`;
-
-/** One row of the check: an implied value, and the value given for it if any. */
-interface SheetRow extends SheetValue {
-  readonly given: number | undefined;
-}
 
 /** The given value the implied `v` stands beside: the key itself, TCVZ also from TCVZPCT (%/K of VZ), HOE from VA (IC/VA, the resolver's h_oe = Icc/VAF with Icc ≈ IC). */
 function givenFor(v: SheetValue, given: ReadonlyMap<string, number>): number | undefined {
@@ -184,94 +179,23 @@ function readSource(file: string, allowOutsideIncludes: boolean): ParseResult {
 
 function fromNetlist(file: string, name: string, flags: ReadonlyMap<string, string | true>, conditions: SheetConditions, io: CliIo): number {
   const parsed = readSource(file, flags.has('allow-outside-includes'));
-  if (!parsed.ok) return fail(io, parsed.errors, `${file} cannot be read; no model was resolved`);
+  if (!parsed.ok) return fail(io, parsed.errors, `${file} cannot be read${file.startsWith('parts:') ? ' (a parts library this railcheck may not have)' : ''}; no model was resolved`);
   const resolved = resolveNetlistModel(parsed.netlist, name);
   if (!resolved.ok) return fail(io, resolved.errors, `model ${name} of ${file} does not resolve`);
   const card = parsed.netlist.cards.find((c): c is ModelCard => c.kind === 'model' && c.name.toLowerCase() === name.toLowerCase())!;
   return present(io, 'netlist', { file, card }, modelLine(card), resolved, conditions, flags.has('json'));
 }
 
-/** Shortest text that reads back as the same double. */
-const exact = (x: number): string => String(x);
-
-function present(io: CliIo, source: 'datasheet' | 'netlist', from: { file: string; card: ModelCard } | undefined, written: string, resolved: ResolvedModel & { ok: true }, conditions: SheetConditions, json: boolean): number {
+function present(io: CliIo, source: ModelSource, from: { file: string; card: ModelCard } | undefined, written: string, resolved: ResolvedModel & { ok: true }, conditions: SheetConditions, json: boolean): number {
   // The test conditions default to the datasheet keys as written (resolved.given).
   const sheet = impliedDatasheet(resolved, conditions);
   if (!sheet.ok) return fail(io, sheet.errors, `the model ${resolved.name} cannot be simulated in its test circuits`);
   const rows: SheetRow[] = sheet.values.map((v) => ({ ...v, given: givenFor(v, resolved.given) }));
   if (json) {
-    io.out(JSON.stringify(modelJson(source, from, written, resolved, rows), null, 2));
+    io.out(JSON.stringify(modelJson(source, from, written, resolved, rows, MODEL_FORMAT, MODEL_VERSION), null, 2));
     return EXIT_OK;
   }
   io.out(formatModel(source, from, written, resolved, rows));
   return EXIT_OK;
 }
 
-function modelJson(source: 'datasheet' | 'netlist', from: { file: string; card: ModelCard } | undefined, written: string, r: ResolvedModel & { ok: true }, rows: readonly SheetRow[]): unknown {
-  return {
-    format: MODEL_FORMAT,
-    version: MODEL_VERSION,
-    source,
-    file: from?.file ?? null,
-    place: from ? { file: from.card.pos.file, line: from.card.pos.line } : null,
-    name: r.name,
-    type: r.type,
-    written,
-    given: Object.fromEntries(r.given),
-    line: r.line,
-    params: Object.fromEntries(r.params),
-    filled: r.filled,
-    implied: rows.map((v) => ({
-      key: v.key,
-      value: v.value,
-      unit: v.unit,
-      at: v.at,
-      conditions: v.conditions,
-      given: v.given ?? null,
-      difference: v.given === undefined ? null : v.value - v.given,
-      relative: v.given === undefined || v.given === 0 ? null : (v.value - v.given) / Math.abs(v.given),
-    })),
-  };
-}
-
-/** A value for people: 6 significant digits (the check compares to datasheet values of 2 to 3); a per-kelvin coefficient without prefix. */
-const shown = (x: number, unit: string): string => (unit === '' || unit.startsWith('1/') ? `${Number(x.toPrecision(6))}${unit ? ` ${unit}` : ''}` : formatSI(x, unit, 6));
-
-/** {@link table} of `rows` with a left-aligned last column of words after each row. */
-function tableWithWords(rows: ReadonlyArray<readonly string[]>, words: readonly string[]): string {
-  const laid = table(rows).split('\n');
-  const width = Math.max(...laid.map((l) => [...l].length));
-  return laid.map((l, k) => (words[k] ? `${l}${' '.repeat(width - [...l].length)}  ${words[k]}` : l)).join('\n');
-}
-
-/** A relative difference in percent, 2 significant digits (0 when exact). */
-const percent = (d: number, of: number): string => (of === 0 ? '' : d === 0 ? '0 %' : `${Number(((100 * d) / Math.abs(of)).toPrecision(2))} %`);
-
-function formatModel(source: 'datasheet' | 'netlist', from: { file: string; card: ModelCard } | undefined, written: string, r: ResolvedModel & { ok: true }, rows: readonly SheetRow[]): string {
-  const specs = paramTable(r.type);
-  const lines: string[] = [];
-  lines.push(source === 'datasheet' ? `railcheck model — ${r.type} from datasheet values` : `railcheck model — ${r.name} (${r.type}) in ${from!.file}, ${from!.card.pos.file}:${from!.card.pos.line}`);
-  lines.push('', heading(source === 'datasheet' ? 'Given' : 'As written'), `  ${written}`);
-  lines.push('', heading('Resolved .model line'), `  ${r.line}`);
-  lines.push('', heading('Physical parameters'));
-  const paramRows = [...r.params].map(([k, v]) => {
-    const spec = specs.find((p) => p.name === k);
-    return [k, shown(v, spec?.unit ?? ''), exact(v)];
-  });
-  const docs = ['', ...[...r.params.keys()].map((k) => specs.find((p) => p.name === k)?.doc ?? '')];
-  lines.push(paramRows.length > 0 ? tableWithWords([['', 'value', 'exact'], ...paramRows], docs) : '  (none given: every parameter at its default of docs/models.md)');
-  lines.push('  Parameters not listed keep their defaults (docs/models.md).');
-  lines.push('', heading('Defaults the datasheet values left to fill'));
-  lines.push(r.filled.length > 0 ? r.filled.map((f) => `  ${f}`).join('\n') : '  none');
-  const anyGiven = rows.some((v) => v.given !== undefined);
-  lines.push('', heading(anyGiven ? 'Check: the model simulated in the datasheet test circuits' : 'Datasheet values the model implies (simulated in the test circuits)'));
-  const head = anyGiven ? ['', 'implied', 'given', 'implied − given', ''] : ['', 'implied'];
-  const body = rows.map((v) => {
-    if (!anyGiven) return [v.key, shown(v.value, v.unit)];
-    if (v.given === undefined) return [v.key, shown(v.value, v.unit), '—', '', ''];
-    const d = v.value - v.given;
-    return [v.key, shown(v.value, v.unit), shown(v.given, v.unit), formatSI(d, v.unit, 3), percent(d, v.given)];
-  });
-  lines.push(tableWithWords([head, ...body], ['at', ...rows.map((v) => v.at)]));
-  return lines.join('\n');
-}
