@@ -14,7 +14,7 @@ const DIVIDER = 'Bench divider\nV1 in 0 12\nR1 in out 3k\nR2 out 0 1k\n.op\n';
 
 describe('help', () => {
   test.each([
-    [['--help']], [['-h']], [['help']], [['help', 'run']], [['--help', 'run']], [['run', '--help']], [['help', 'demo']], [['demo', '--help']], [['run', '-h']],
+    [['--help']], [['-h']], [['help']], [['help', 'run']], [['--help', 'run']], [['run', '--help']], [['help', 'demo']], [['demo', '--help']], [['run', '-h']], [['help', 'model']], [['model', '--help']],
   ])('railcheck %j prints usage and exits 0', async (argv) => {
     const run = await cli(argv);
     expect(run.status).toBe(0);
@@ -23,7 +23,7 @@ describe('help', () => {
   });
 
   test('each help names its own command and options', async () => {
-    expect((await cli(['--help'])).out).toMatch(/railcheck run FILE[\s\S]*railcheck demo[\s\S]*railcheck help/);
+    expect((await cli(['--help'])).out).toMatch(/railcheck run FILE[\s\S]*railcheck demo[\s\S]*railcheck model TYPE KEY=VALUE[\s\S]*railcheck model FILE MODELNAME[\s\S]*railcheck help/);
     const run = (await cli(['help', 'run'])).out;
     expect(run).toMatch(/railcheck run FILE/);
     expect(run).toContain('--json');

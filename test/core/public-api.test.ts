@@ -13,7 +13,8 @@ import * as internal from '@railcheck/core/internal';
 /** The public values, as DEVELOPERS.md lists them. */
 const PUBLIC_VALUES = [
   'RailcheckError', 'formatDiagnostic', 'errorAt', 'warningAt',
-  'parseNetlist', 'parseNetlistOrThrow', 'readNetlistFile', 'printNetlist',
+  'parseNetlist', 'parseNetlistOrThrow', 'readNetlistFile', 'printNetlist', 'parseScaledNumber',
+  'impliedDatasheet', 'readModelLine', 'findModelCard', 'modelLine', 'resolveModelCard', 'resolveNetlistModel',
   'elaborate', 'compileCircuit',
   'runNetlist', 'runNetlistFile', 'prepare',
   'compareNetlists', 'compareNetlistFiles', 'SAME_VALUE_RTOL', 'SAME_FIGURE_RTOL',

@@ -5,7 +5,7 @@
  * figure was not measured (the messages on standard error; in that last
  * case the report is still printed). A figure not measured without a limit
  * on it is a note in the report and leaves the status alone. `spread`,
- * `check`, `merge` and `compare` say theirs in their own modules. A user
+ * `check`, `merge`, `compare` and `model` say theirs in their own modules. A user
  * never sees a stack trace.
  */
 import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
@@ -23,6 +23,7 @@ import { COMPARE_HELP, compareCommand } from './commands/compare.js';
 import { CHECK_HELP, checkCommand } from './commands/check.js';
 import { MERGE_HELP, mergeCommand } from './commands/merge.js';
 import { SAMPLE_FLAGS, SPREAD_HELP, sampleCommand, spreadCommand } from './commands/spread.js';
+import { MODEL_HELP, modelCommand } from './commands/model.js';
 
 /** Where output goes; tests pass their own. */
 export interface CliIo {
@@ -81,6 +82,10 @@ usage:
                                   regression run of saved netlists (files or folders of *.cir)
   railcheck merge SHARD.json... [--junit FILE] [--json]
                                   combine the --json results of check's or spread's shards into one report
+  railcheck model TYPE KEY=VALUE... [--json]
+                                  datasheet values (VZ=5.6 IZT=5m ...) to a .model line of physical parameters, checked by simulation
+  railcheck model FILE MODELNAME [--json]
+                                  a netlist's model as written, resolved, and the datasheet values it implies
   railcheck help [COMMAND]        show help (also: railcheck COMMAND --help)
   railcheck --version             print the version (also -V)
 
@@ -91,6 +96,7 @@ or a limit could not be evaluated (its figure was not measured).
 spread: 0 every limit passes in every run, 1 a run fails a limit, misses its figure or does not run, 2 a netlist
 or usage error.
 check and merge: 0 every netlist passed, 1 any failed, 2 a usage error (merge of spread shards: as spread).
+model: 0 the model was resolved and simulated, 2 a usage error or a model that cannot be resolved or simulated.
 The netlist language is described in docs/netlist.md.`;
 
 const RUN_HELP = `usage: railcheck run FILE [options]
@@ -253,9 +259,9 @@ function topOptions(argv: readonly string[], io: CliIo): number {
 /** `railcheck help [COMMAND]`: the help asked for on standard output. */
 function helpCommand(rest: readonly string[], io: CliIo): number {
   const topic = rest[0];
-  const helps: Record<string, string> = { run: RUN_HELP, compare: COMPARE_HELP, demo: DEMO_HELP, check: CHECK_HELP, merge: MERGE_HELP, spread: SPREAD_HELP, help: USAGE };
+  const helps: Record<string, string> = { run: RUN_HELP, compare: COMPARE_HELP, demo: DEMO_HELP, check: CHECK_HELP, merge: MERGE_HELP, spread: SPREAD_HELP, model: MODEL_HELP, help: USAGE };
   if (rest.length > 1 || (topic !== undefined && !Object.hasOwn(helps, topic))) {
-    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, compare, spread, check, merge, demo or help\n\n${USAGE}`);
+    io.err(`railcheck help: no command '${rest.join(' ')}'; expected run, compare, spread, check, merge, model, demo or help\n\n${USAGE}`);
     return EXIT_ERROR;
   }
   io.out(topic === undefined ? USAGE : helps[topic]!);
@@ -279,14 +285,16 @@ export async function main(argv: readonly string[], io: CliIo = defaultIo): Prom
         return await checkCommand(rest, io);
       case 'merge':
         return mergeCommand(rest, io);
+      case 'model':
+        return modelCommand(rest, io);
       case undefined:
-        io.err(`railcheck: no command given; expected run, compare, spread, check, merge, demo, help or --version\n\n${USAGE}`);
+        io.err(`railcheck: no command given; expected run, compare, spread, check, merge, model, demo, help or --version\n\n${USAGE}`);
         return EXIT_ERROR;
       case 'help':
         return helpCommand(rest, io);
       default:
         if (command.startsWith('-')) return topOptions(argv, io);
-        io.err(`railcheck: unknown command '${command}'; expected run, compare, spread, check, merge, demo or help\n\n${USAGE}`);
+        io.err(`railcheck: unknown command '${command}'; expected run, compare, spread, check, merge, model, demo or help\n\n${USAGE}`);
         return EXIT_ERROR;
     }
   } catch (e) {

@@ -17,7 +17,7 @@
 export { RailcheckError, formatDiagnostic, errorAt, warningAt } from './errors.js';
 export type { Diagnostic, SourcePos } from './errors.js';
 
-export { parseNetlist, parseNetlistOrThrow, readNetlistFile, printNetlist } from './netlist/index.js';
+export { parseNetlist, parseNetlistOrThrow, readNetlistFile, printNetlist, parseScaledNumber } from './netlist/index.js';
 export type { ParseOptions, ParseResult } from './netlist/index.js';
 export type {
   Netlist, Card, ElementCard, ModelCard, ParamCard, AnalysisCard, SupplyCard, SubcktDef, Value, Expr, ExprFunction,
@@ -44,6 +44,8 @@ export type { CheckResult, CheckOptions, CheckOutcome, NetlistCheck, CheckTest }
 export type { NetlistRun, CheckLimit } from './pipeline/check-run.js';
 export { DEFAULT_TOLERANCES, readBaseline } from './pipeline/check-baseline.js';
 export type { Baseline, BaselineEntry, BaselineRead, Tolerance } from './pipeline/check-baseline.js';
+export { impliedDatasheet, readModelLine, findModelCard, modelLine, resolveModelCard, resolveNetlistModel } from './pipeline/model-sheet.js';
+export type { ImpliedSheet, SheetConditions, SheetValue, ResolvedModel, ResolveModelOptions } from './pipeline/model-sheet.js';
 export { histogram } from './stats.js';
 export { spreadNetlist, spreadNetlistFile, mergeSpreadResults, runSampleNetlist, runSampleNetlistFile } from './pipeline/spread.js';
 export { SPREAD_FORMAT, SPREAD_VERSION, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_CONFIDENCE, DEFAULT_MAX_CORNER_RUNS } from './pipeline/spread-types.js';

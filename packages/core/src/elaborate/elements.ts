@@ -163,6 +163,17 @@ function sourceSpec(env: ElementEnv, card: Extract<ElementCard, { kind: 'V' | 'I
  * error names the parameter at its own line and column.
  */
 function modelParams(env: ElementEnv, card: ModelCard, scope: Scope): Map<string, number> {
+  return resolveModelParams(env, card, scope).params;
+}
+
+/**
+ * A model card's parameters evaluated in `scope`, range-checked, and with
+ * the datasheet form (devices/datasheet.ts) resolved to the physical
+ * parameters of docs/models.md; `given` holds the values as written
+ * (evaluated), `filled` the defaults the datasheet form took. Problems are
+ * reported through `env` (once per place).
+ */
+export function resolveModelParams(env: ElementEnv, card: ModelCard, scope: Scope): { params: Map<string, number>; given: ReadonlyMap<string, number>; filled: readonly string[] } {
   const given = new Map<string, number>();
   const table = paramTable(card.type);
   const sheet = sheetKeys(modelKindOf(card.type));
@@ -180,12 +191,12 @@ function modelParams(env: ElementEnv, card: ModelCard, scope: Scope): Map<string
     }
     given.set(name, x);
   }
-  if (![...given.keys()].some((k) => sheet.some((s) => s.name === k)) || [...given.values()].some(Number.isNaN)) return given;
+  if (![...given.keys()].some((k) => sheet.some((s) => s.name === k)) || [...given.values()].some(Number.isNaN)) return { params: new Map(given), given, filled: [] };
   // The datasheet form (docs/models.md, "Datasheet form"): its keys become the physical parameters they fix.
   const r = resolveSheet(modelKindOf(card.type), given);
   if (!r.ok) {
     for (const p of r.problems) rangeError(env, placeOfParam(p.key), `.model ${card.name}: ${p.message}`, p.expected, 'bad-datasheet');
-    return new Map([...given].filter(([k]) => !sheet.some((s) => s.name === k)));
+    return { params: new Map([...given].filter(([k]) => !sheet.some((s) => s.name === k))), given, filled: [] };
   }
   for (const note of r.notes) {
     const at = placeOfParam(note.key);
@@ -198,7 +209,7 @@ function modelParams(env: ElementEnv, card: ModelCard, scope: Scope): Map<string
     const spec = table.find((p) => p.name === name);
     if (spec && !given.has(name) && !inRange(spec.range, x)) rangeError(env, placeOfParam(sheet.find((s) => s.sets.includes(name))?.name ?? name), `.model ${card.name}: the datasheet values give ${name}=${x}, out of range (${spec.doc})`, `${name} ${describeRange(spec.range)}`);
   }
-  return r.params;
+  return { params: r.params, given, filled: r.filled };
 }
 
 function bindModel(env: ElementEnv, card: DiodeCard | BjtCard, kind: 'diode' | 'bjt'): { model: ModelCard; scope: Scope } | undefined {

@@ -5,6 +5,7 @@
  * 2019, table 7) in the trade's spelling: `u`/`µ` micro, and `meg` for mega
  * because `m` (any case) is milli.
  */
+import { checkString } from '../arguments.js';
 
 /** Scale suffixes (netlist.md, Numbers) as powers of ten; `meg` is handled apart because `m` is milli. */
 const SUFFIX_EXP: Readonly<Record<string, number>> = {
@@ -79,8 +80,10 @@ export function scanNumber(s: string, start: number): NumberScan | undefined {
  * (netlist.md, Numbers): `'4.7k'` → 4700, `'10uF'` → 1e-5, `'1meg'` → 1e6,
  * `'100mA'` → 0.1. Surrounding white space is ignored.
  * @returns the value, or undefined when the text is not a finite number.
+ * Throws RailcheckError (`bad-argument`) when `text` is not a string.
  */
 export function parseScaledNumber(text: string): number | undefined {
+  checkString('parseScaledNumber', 'text', text);
   const s = text.trim();
   const scan = scanNumber(s, 0);
   if (!scan || scan.end !== s.length || !Number.isFinite(scan.value)) return undefined;

@@ -17,12 +17,21 @@
  * The test currents and voltage are the model's own datasheet keys when it
  * is written in the datasheet form, else the documented defaults (or the
  * caller's). Each value comes with the conditions it was measured at.
+ *
+ * {@link resolveModelCard} gives the physical parameters a card stands for
+ * (the datasheet form resolved by devices/datasheet.ts, as elaboration
+ * does) and a `.model` line of them that reads back exactly.
  */
-import { DEFAULT_IC_TEST, DEFAULT_IZT, DEFAULT_VCE_TEST, modelKindOf, type ModelType } from '@railcheck/devices';
+import { DEFAULT_IC_TEST, DEFAULT_IZT, DEFAULT_VCE_TEST, modelKindOf, paramTable, type ModelType } from '@railcheck/devices';
 import { errorAt, type Diagnostic } from '../errors.js';
 import type { ModelCard, Netlist } from '../netlist/ast.js';
 import { printValue } from '../netlist/print.js';
 import { parseNetlist } from '../netlist/index.js';
+import { createEvaluator } from '../elaborate/evaluate.js';
+import { resolveModelParams } from '../elaborate/elements.js';
+import { topScope } from '../elaborate/scope.js';
+import { argumentDiagnostic, isRecord } from '../arguments.js';
+import { formatSI } from '../units.js';
 import { runNetlist } from './run.js';
 
 /** Test conditions of the implied datasheet values (A, V); unset: the model's own datasheet keys, else the defaults. */
@@ -41,12 +50,15 @@ export interface SheetConditions {
   readonly vce?: number | undefined;
 }
 
-/** One implied datasheet value: its key (as the datasheet form names it), value in SI units, unit, and the conditions in words. */
+/** One implied datasheet value: its key (as the datasheet form names it), value in SI units, unit, and the conditions in words and as numbers. */
 export interface SheetValue {
   readonly key: string;
   readonly value: number;
   readonly unit: string;
+  /** The test conditions in words, e.g. `IZT = 5 mA, a step of ±1 %`. */
   readonly at: string;
+  /** The test conditions as numbers, SI units: IF, IZT, IZK, IC (A), VCE and its step DVCE (V), IB (A, the base current held for HOE), T1/T2 (°C). */
+  readonly conditions: Readonly<Record<string, number>>;
 }
 
 /** The outcome: the values a model implies, or the errors that stopped the test circuits. */
@@ -57,11 +69,6 @@ export function modelLine(card: ModelCard, name = card.name): string {
   return `.model ${name} ${card.type} (${card.params.map((p) => `${p.name}=${printValue(p.value)}`).join(' ')})`;
 }
 
-/** A plain number of a card's parameter, when written as one. */
-function numberOf(card: ModelCard, key: string): number | undefined {
-  const p = card.params.find((q) => q.name.toUpperCase() === key);
-  return p?.value.kind === 'number' ? p.value.value : undefined;
-}
 
 /** An operating point of a test circuit: node voltages and element currents, or the errors. */
 function op(lines: readonly string[], temps?: readonly number[]): { nodes: Record<string, number>; currents: Record<string, number> }[] | Diagnostic[] {
@@ -75,43 +82,46 @@ const isErrors = (x: unknown[]): x is Diagnostic[] => x.length > 0 && typeof (x[
 /** Number text that reads back exactly. */
 const n = (x: number): string => String(x);
 
-/** The values, throwing SheetFailure from a test circuit. */
-function measureSheet(card: ModelCard, conditions: SheetConditions): ImpliedSheet {
+/** A condition as people read it (4 significant digits, SI prefix). */
+const si = (x: number, unit: string): string => formatSI(x, unit);
+
+/** The values of the resolved `card` (physical parameters, plain numbers), the test conditions defaulting to the datasheet keys `given` (evaluated, upper-case); throws SheetFailure from a test circuit. */
+function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, conditions: SheetConditions): ImpliedSheet {
   const model = modelLine(card, 'M');
   const kind = modelKindOf(card.type);
   const values: SheetValue[] = [];
   if (kind === 'diode') {
-    const ifs = conditions.if ?? (['IF', 'IF2', 'IF3'].map((k) => numberOf(card, k)).filter((x): x is number => x !== undefined));
+    const ifs = conditions.if ?? (['IF', 'IF2', 'IF3'].map((k) => given.get(k)).filter((x): x is number => x !== undefined));
     const forward = ifs.length > 0 ? ifs : [DEFAULT_IC_TEST];
     forward.forEach((i, k) => {
       const r = op(['diode forward point', `I1 0 a ${n(i)}`, 'D1 a 0 M', model]);
       if (isErrors(r)) throw new SheetFailure(r);
-      values.push({ key: k === 0 ? 'VF' : `VF${k + 1}`, value: r[0]!.nodes['a']!, unit: 'V', at: `IF = ${n(i)} A` });
+      values.push({ key: k === 0 ? 'VF' : `VF${k + 1}`, value: r[0]!.nodes['a']!, unit: 'V', at: `IF = ${si(i, 'A')}`, conditions: { IF: i } });
     });
     // A model with breakdown: the Zener's values.
-    const hasBv = card.params.some((p) => ['BV', 'VZ'].includes(p.name.toUpperCase()));
+    const hasBv = card.params.some((p) => p.name.toUpperCase() === 'BV');
     if (hasBv) {
-      const izt = conditions.izt ?? numberOf(card, 'IZT') ?? numberOf(card, 'IBV') ?? (card.params.some((p) => p.name.toUpperCase() === 'VZ') ? DEFAULT_IZT : 1e-3);
+      const izt = conditions.izt ?? given.get('IZT') ?? (given.has('VZ') ? DEFAULT_IZT : (given.get('IBV') ?? 1e-3));
       const zener = (i: number, temps?: readonly number[]): number[] => {
         const r = op(['zener point', `I1 0 k ${n(i)}`, 'D1 0 k M', model], temps);
         if (isErrors(r)) throw new SheetFailure(r);
         return r.map((p) => p.nodes['k']!);
       };
       const [vz] = zener(izt);
-      values.push({ key: 'VZ', value: vz!, unit: 'V', at: `IZT = ${n(izt)} A` });
+      values.push({ key: 'VZ', value: vz!, unit: 'V', at: `IZT = ${si(izt, 'A')}`, conditions: { IZT: izt } });
       const slope = (i: number): number => (zener(1.01 * i)[0]! - zener(0.99 * i)[0]!) / (0.02 * i);
-      values.push({ key: 'ZZT', value: slope(izt), unit: 'Ω', at: `IZT = ${n(izt)} A, a step of ±1 %` });
-      const izk = conditions.izk ?? numberOf(card, 'IZK');
-      if (izk !== undefined) values.push({ key: 'ZZK', value: slope(izk), unit: 'Ω', at: `IZK = ${n(izk)} A, a step of ±1 %` });
+      values.push({ key: 'ZZT', value: slope(izt), unit: 'Ω', at: `IZT = ${si(izt, 'A')}, a step of ±1 %`, conditions: { IZT: izt } });
+      const izk = conditions.izk ?? given.get('IZK');
+      if (izk !== undefined) values.push({ key: 'ZZK', value: slope(izk), unit: 'Ω', at: `IZK = ${si(izk, 'A')}, a step of ±1 %`, conditions: { IZK: izk } });
       const [cold, warm] = zener(izt, [26, 28]);
-      values.push({ key: 'TCVZ', value: (warm! - cold!) / 2, unit: 'V/K', at: `IZT = ${n(izt)} A, 26 °C to 28 °C` });
+      values.push({ key: 'TCVZ', value: (warm! - cold!) / 2, unit: 'V/K', at: `IZT = ${si(izt, 'A')}, 26 °C to 28 °C`, conditions: { IZT: izt, T1: 26, T2: 28 } });
     }
     return { ok: true, type: card.type, values };
   }
   const pnp = card.type === 'PNP';
-  const vce = conditions.vce ?? numberOf(card, 'VCE') ?? DEFAULT_VCE_TEST;
-  const ichfe = conditions.ichfe ?? numberOf(card, 'ICHFE') ?? DEFAULT_IC_TEST;
-  const icvbe = conditions.icvbe ?? numberOf(card, 'ICVBE') ?? ichfe;
+  const vce = conditions.vce ?? given.get('VCE') ?? DEFAULT_VCE_TEST;
+  const ichfe = conditions.ichfe ?? given.get('ICHFE') ?? DEFAULT_IC_TEST;
+  const icvbe = conditions.icvbe ?? given.get('ICVBE') ?? ichfe;
   // Magnitudes: a PNP's collector sits at −VCE and its base current flows out.
   const point = (ib: number, v: number): { ic: number; vbe: number } => {
     const r = op(['transistor point', `VC c 0 ${n(pnp ? -v : v)}`, pnp ? `IB b 0 ${n(ib)}` : `IB 0 b ${n(ib)}`, 'Q1 c b 0 M', model]);
@@ -132,11 +142,11 @@ function measureSheet(card: ModelCard, conditions: SheetConditions): ImpliedShee
     throw new SheetFailure([errorAt('model-test', `no base current gives IC = ${ic} A at VCE = ${vce} V`, undefined, undefined, 'a transistor model in forward operation at the test point')]);
   };
   const ibh = baseFor(ichfe);
-  values.push({ key: 'HFE', value: ichfe / ibh, unit: '', at: `IC = ${n(ichfe)} A, VCE = ${n(vce)} V` });
+  values.push({ key: 'HFE', value: ichfe / ibh, unit: '', at: `IC = ${si(ichfe, 'A')}, VCE = ${si(vce, 'V')}`, conditions: { IC: ichfe, VCE: vce } });
   const ibv = icvbe === ichfe ? ibh : baseFor(icvbe);
-  values.push({ key: 'VBE', value: point(ibv, vce).vbe, unit: 'V', at: `IC = ${n(icvbe)} A, VCE = ${n(vce)} V` });
+  values.push({ key: 'VBE', value: point(ibv, vce).vbe, unit: 'V', at: `IC = ${si(icvbe, 'A')}, VCE = ${si(vce, 'V')}`, conditions: { IC: icvbe, VCE: vce } });
   const dv = Math.min(0.5, vce / 4);
-  values.push({ key: 'HOE', value: (point(ibh, vce + dv).ic - point(ibh, vce - dv).ic) / (2 * dv), unit: 'S', at: `IC = ${n(ichfe)} A, VCE = ${n(vce)} V ± ${n(dv)} V, IB held` });
+  values.push({ key: 'HOE', value: (point(ibh, vce + dv).ic - point(ibh, vce - dv).ic) / (2 * dv), unit: 'S', at: `IC = ${si(ichfe, 'A')}, VCE = ${si(vce, 'V')} ± ${si(dv, 'V')}, IB held`, conditions: { IC: ichfe, VCE: vce, DVCE: dv, IB: ibh } });
   return { ok: true, type: card.type, values };
 }
 
@@ -148,18 +158,118 @@ class SheetFailure extends Error {
 }
 
 /**
- * The datasheet values a `.model` card implies (see the module comment),
- * or the errors of a test circuit that could not be solved. The card's
- * values must be plain numbers or expressions of constants (the test
- * circuits hold no `.param`).
+ * The datasheet values a `.model` card implies (see the module comment):
+ * the card is resolved ({@link resolveModelCard}; or `model` is the
+ * resolution already made) and its physical parameters put in the test
+ * circuits. Values in SI units (V, A, Ω, V/K,
+ * S); the test conditions are `conditions`, else the card's own datasheet
+ * keys, else the defaults of devices/datasheet.ts (IZT 5 mA, IC 10 mA,
+ * VCE 5 V, IF 10 mA). The errors are the card's (out of range, datasheet
+ * values that do not resolve) or those of a test circuit that could not be
+ * solved.
  */
-export function impliedDatasheet(card: ModelCard, conditions: SheetConditions = {}): ImpliedSheet {
+export function impliedDatasheet(model: ModelCard | ResolvedModel, conditions: SheetConditions = {}, options: ResolveModelOptions = {}): ImpliedSheet {
+  const wrong = conditionsProblem(conditions);
+  if (wrong) return { ok: false, errors: [wrong] };
+  const resolved = isRecord(model) && 'ok' in model ? (model as ResolvedModel) : resolveModelCard(model as ModelCard, options);
+  if (!resolved.ok) return resolved;
   try {
-    return measureSheet(card, conditions);
+    return measureSheet(resolved.card, resolved.given, conditions);
   } catch (e) {
     if (e instanceof SheetFailure) return { ok: false, errors: e.diagnostics };
     throw e;
   }
+}
+
+/** A conditions argument that is not one: the bad-argument diagnostic. */
+function conditionsProblem(c: unknown): Diagnostic | undefined {
+  if (!isRecord(c)) return argumentDiagnostic('impliedDatasheet', 'conditions', 'an object of test conditions', c);
+  const positive = (v: unknown): boolean => typeof v === 'number' && Number.isFinite(v) && v > 0;
+  for (const k of ['izt', 'izk', 'ichfe', 'icvbe', 'vce'] as const) {
+    if (c[k] !== undefined && !positive(c[k])) return argumentDiagnostic('impliedDatasheet', `conditions.${k}`, 'a positive finite number', c[k]);
+  }
+  const ifs = c['if'];
+  if (ifs !== undefined && (!Array.isArray(ifs) || ifs.length === 0 || ifs.length > 3 || !ifs.every(positive))) return argumentDiagnostic('impliedDatasheet', 'conditions.if', 'one to three positive finite currents', ifs);
+  return undefined;
+}
+
+/** Values of top-level parameters a card's expressions may use (lower-case names → value). */
+export interface ResolveModelOptions {
+  /** `.param` values by lower-case name (default none: the card's values must be numbers or expressions of constants). */
+  readonly params?: ReadonlyMap<string, number> | undefined;
+}
+
+/**
+ * A model card resolved: its physical parameters (docs/models.md, SI units,
+ * upper-case names; the datasheet keys replaced by what they fix, every other
+ * value as given), the values as written (evaluated, datasheet keys among
+ * them), the defaults the datasheet form took, and a `.model` line of the
+ * physical parameters whose numbers read back exactly (the shortest text
+ * that round-trips) with its card.
+ */
+export type ResolvedModel =
+  | {
+      readonly ok: true;
+      readonly name: string;
+      readonly type: ModelType;
+      readonly params: ReadonlyMap<string, number>;
+      readonly given: ReadonlyMap<string, number>;
+      readonly filled: readonly string[];
+      readonly line: string;
+      readonly card: ModelCard;
+    }
+  | { readonly ok: false; readonly errors: readonly Diagnostic[] };
+
+/**
+ * Resolves a `.model` card as elaboration does: each value evaluated
+ * (`options.params` for the names of `.param`), checked against its range,
+ * and the datasheet form (VZ/IZT/ZZT..., HFE/ICHFE/VBE...) turned into the
+ * physical parameters by the equations of packages/devices/src/datasheet.ts
+ * (Shockley's equation and the breakdown term inverted at the test points;
+ * the Ebers-Moll transport model with Early effect inverted at IC and VCE).
+ * Parameters left unset keep the defaults of docs/models.md and are not
+ * listed. Errors carry the card's file, line and column.
+ */
+export function resolveModelCard(card: ModelCard, options: ResolveModelOptions = {}): ResolvedModel {
+  if (!isRecord(card) || card['kind'] !== 'model' || !Array.isArray(card['params'])) return { ok: false, errors: [argumentDiagnostic('resolveModelCard', 'card', 'a .model card (from parseNetlist or readModelLine)', card)] };
+  if (!isRecord(options) || (options.params !== undefined && !(options.params instanceof Map))) return { ok: false, errors: [argumentDiagnostic('resolveModelCard', 'options', 'an object with params a Map of parameter values', options)] };
+  const ev = createEvaluator();
+  const scope = topScope();
+  for (const [k, v] of options.params ?? []) scope.params.set(k.toLowerCase(), v);
+  ev.at(card);
+  const r = resolveModelParams({ scope, ev, noteNode: () => undefined, reported: new Set() }, card, scope);
+  if (ev.errorCount() > 0) return { ok: false, errors: ev.diagnostics.filter((d) => d.severity === 'error') };
+  const order = paramTable(card.type).map((p) => p.name);
+  const rank = (k: string): number => (order.includes(k) ? order.indexOf(k) : order.length);
+  const params = new Map([...r.params].sort(([a], [b]) => rank(a) - rank(b)));
+  const line = `.model ${card.name} ${card.type} (${[...params].map(([k, v]) => `${k}=${String(v)}`).join(' ')})`;
+  const read = readModelLine(line);
+  if (!read.ok) return read;
+  return { ok: true, name: card.name, type: card.type, params, given: r.given, filled: r.filled, line, card: read.card };
+}
+
+/**
+ * The model `name` (any case) of a read netlist resolved ({@link
+ * resolveModelCard}) with the netlist's top-level `.param` values, or the
+ * errors (no such model, a parameter or value that does not evaluate).
+ */
+export function resolveNetlistModel(netlist: Netlist, name: string): ResolvedModel {
+  if (!isRecord(netlist) || !Array.isArray(netlist['cards'])) return { ok: false, errors: [argumentDiagnostic('resolveNetlistModel', 'netlist', 'a netlist from parseNetlist or readNetlistFile', netlist)] };
+  if (typeof name !== 'string') return { ok: false, errors: [argumentDiagnostic('resolveNetlistModel', 'name', 'a model name', name)] };
+  const card = findModelCard(netlist, name);
+  if (!card) {
+    const names = netlist.cards.filter((c): c is ModelCard => c.kind === 'model').map((c) => c.name);
+    return { ok: false, errors: [errorAt('unknown-model', `${netlist.file} has no top-level .model ${name}`, undefined, undefined, names.length > 0 ? `one of its models: ${names.join(', ')}` : 'a netlist with a .model line')] };
+  }
+  const ev = createEvaluator();
+  const scope = topScope();
+  for (const c of netlist.cards) {
+    if (c.kind !== 'param') continue;
+    ev.at(c);
+    for (const a of c.assignments) scope.params.set(a.name.toLowerCase(), ev.num(a.value, scope));
+  }
+  if (ev.errorCount() > 0) return { ok: false, errors: ev.diagnostics.filter((d) => d.severity === 'error') };
+  return resolveModelCard(card, { params: scope.params });
 }
 
 /** The first top-level `.model` card named `name` (any case) of a read netlist, or undefined. */
@@ -167,9 +277,15 @@ export function findModelCard(netlist: Netlist, name: string): ModelCard | undef
   return netlist.cards.find((c): c is ModelCard => c.kind === 'model' && c.name.toLowerCase() === name.toLowerCase());
 }
 
-/** The `.model` card of one line of text (`.model NAME TYPE (...)`), or the reader's errors. */
-export function readModelLine(line: string): { ok: true; card: ModelCard } | { ok: false; errors: readonly Diagnostic[] } {
-  const parsed = parseNetlist(`model\n${line}\n`, { file: '(model line)' });
+/**
+ * The `.model` card of one line of text (`.model NAME TYPE (...)`), or the
+ * reader's errors. The text is read as line 2 of a netlist `file` (default
+ * `(model line)`) whose line 1 is a title, so places name line 2.
+ */
+export function readModelLine(line: string, file = '(model line)'): { ok: true; card: ModelCard } | { ok: false; errors: readonly Diagnostic[] } {
+  if (typeof line !== 'string' || line.includes('\n')) return { ok: false, errors: [argumentDiagnostic('readModelLine', 'line', 'one line of text', line)] };
+  if (typeof file !== 'string') return { ok: false, errors: [argumentDiagnostic('readModelLine', 'file', 'a string', file)] };
+  const parsed = parseNetlist(`model\n${line}\n`, { file });
   if (!parsed.ok) return { ok: false, errors: parsed.errors };
   const card = parsed.netlist.cards.find((c): c is ModelCard => c.kind === 'model');
   return card ? { ok: true, card } : { ok: false, errors: [errorAt('no-model', 'the text holds no .model line', undefined, undefined, '.model NAME D|NPN|PNP (key=value ...)')] };
