@@ -14,7 +14,7 @@ import { formatReport } from '@railcheck/cli';
 const example = (name: string): string => readFileSync(fileURLToPath(new URL(`../../examples/${name}`, import.meta.url)), 'utf8');
 /** The stages of each kind, with figure lines added before `.end` where an example does not ask for every figure. */
 const STAGES: Readonly<Record<BenchKind, ReadonlyArray<readonly [string, string]>>> = {
-  dc: [['sensor-rail-follower.cir', '.figure startup\n.figure step\n.figure stress\n.figure short\n'], ['railway-capacitance-multiplier.cir', ''], ['sensor-rail-thermal.cir', '']],
+  dc: [['sensor-rail-follower.cir', '.figure startup\n.figure step\n.figure stress\n.figure short\n'], ['railway-capacitance-multiplier.cir', ''], ['sensor-rail-thermal.cir', '.figure short\n']],
   'sine-fed': [['railway-transformer-follower.cir', '.figure sag depth=10% dur=40m\n.figure startup\n.figure thermal\n'], ['greenhouse-valve-stress.cir', '.figure step\n']],
 };
 /** Thermal data the thermal figure needs on a stage whose example has none (docs/thermal.md). */

@@ -91,6 +91,7 @@ export const FIGURES: readonly FigureEntry[] = [
   { name: 'short.vout', kind: 'short', units: both('V'), better: 'none', title: 'output across the short', doc: '|Vout| with the output shorted (the cycle mean on a sine-fed stage)' },
   { name: 'short.pin', kind: 'short', units: both('W'), better: 'lower', title: 'input power into the short', doc: 'the power out of the input source with the output shorted (a cycle average on a sine-fed stage)' },
   { name: 'short.pd.<element>', pattern: /^short\.pd\.[^.]+(\.[^.]+)*$/, kind: 'short', units: both('W'), better: 'lower', title: 'dissipation in the short', doc: 'the power a resistor, diode or transistor absorbs with the output shorted' },
+  { name: 'short.<element>.tj', pattern: /^short\.[^.]+(\.[^.]+)*\.tj$/, kind: 'short', units: both('°C'), better: 'lower', title: 'junction temperature in the short', doc: 'Ta + P·(rth + rthsink) of a diode or transistor with rth= at its dissipation with the output shorted, Ta the key tamb' },
   { name: 'short.worst', kind: 'short', units: both('ratio'), better: 'lower', title: 'highest stress ratio in the short', doc: 'the largest worst value / rating over every rated quantity of every part with the output shorted: the part that fails first' },
   { name: 'short.<element>.<quantity>', pattern: /^short\.[^.]+(\.[^.]+)*\.(v|vr|vce|vcb|iavg|ipk|irms|ic|p)$/, kind: 'short', units: both('ratio'), better: 'lower', title: 'stress ratio in the short', doc: 'the worst value of one rated quantity of one part with the output shorted / its rating (docs/stress.md, "Quantities")' },
   { name: 'startup.inrush', kind: 'startup', units: both('A'), better: 'lower', title: 'inrush current', doc: 'the largest magnitude of the input source current from switch-on, everything discharged' },
@@ -249,6 +250,7 @@ export const FIGURE_KIND_INFO: Readonly<Record<FigureKind, FigureKindInfo>> = {
     title: 'output short',
     keys: {
       r: num(false, 'Ω', 'resistance of the short from out to ref, Ω', bounds({ above: 0, atMost: MAX_SHORT_OHMS })),
+      tamb: num(false, '°C', 'ambient of the junction temperatures, °C (default: the figure temperature)', bounds({ atLeast: MIN_AMBIENT_CELSIUS })),
       vderate: num(true, 'ratio', 'derating of voltage ratings in the short, as for stress', DERATE),
       iderate: num(true, 'ratio', 'derating of current ratings in the short, likewise', DERATE),
       pderate: num(true, 'ratio', 'derating of power ratings in the short, likewise', DERATE),

@@ -87,6 +87,16 @@ describe('a follower with a resistor-fed base, shorted', () => {
     expect(rep.figures!.values['stress.Q1.p']!).toBeLessThan(1);
   });
 
+  test('a part with rth= gets its junction temperature in the short, Ta + P·(rth + rthsink) (JESD51-1 series path), and a note past tjmax', () => {
+    const text = follower(12, 4700, 150, 100, 'tamb=30').replace('Q1 in b out NQ pmax=1', 'Q1 in b out NQ pmax=1 rth=5 rthsink=20 tjmax=125');
+    const rep = reportOf(text);
+    const v = rep.figures!.values;
+    // JEDEC JESD51-1's junction-to-ambient series path, as the thermal figure uses it (docs/thermal.md).
+    expect(v['short.Q1.tj']).toBeCloseTo(30 + v['short.pd.Q1']! * 25, 10);
+    expect(v['short.Q1.tj']!).toBeGreaterThan(125);
+    expect(rep.warnings.some((w) => w.code === 'short-too-hot' && w.message.includes('Q1'))).toBe(true);
+  });
+
   test('r out of range is refused at the .figure line; no rating means short.worst is not measured, with the reason', () => {
     const bad = runNetlist(follower(12, 10e3, 100, 100, 'r=0'));
     expect(bad.ok).toBe(false);

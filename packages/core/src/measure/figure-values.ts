@@ -149,16 +149,20 @@ export function measureFigure(bench: Bench, f: FlatFigure, ctx: FigureContext): 
       return { kind: 'stress', values, conditions, stress: rows };
     })
     .with('short', () => {
-      const r = outputShort(bench, { ohms: k.get('r'), derating: derateKeys(f), origin: f.origin });
+      const r = outputShort(bench, { ohms: k.get('r'), ambient: k.get('tamb'), derating: derateKeys(f), origin: f.origin });
       const values: Record<string, number> = { 'short.current': r.current, 'short.vout': r.vout, 'short.pin': r.pin };
       for (const [name, p] of Object.entries(r.pd)) values[`short.pd.${name}`] = p;
+      for (const j of r.junctions) {
+        values[`short.${j.element}.tj`] = j.tj;
+        if (j.tj > j.tjmax) ctx.warnings.push(warningAt('short-too-hot', `short: with the output shorted, ${j.element} dissipates ${formatSI(r.pd[j.element] ?? 0, 'W')} and its junction reaches ${j.tj.toFixed(0)} °C at ${r.ambient} °C ambient, above its tjmax of ${j.tjmax} °C: it fails by heat, whatever its power rating says`, f.origin.pos, f.origin.lineText));
+      }
       const omitted: { name: string; reason: string }[] = [];
       if (r.rows.length > 0) {
         const first = r.rows.reduce((a, b) => (b.ratio > a.ratio ? b : a));
         values['short.worst'] = first.ratio;
         for (const row of r.rows) values[`short.${row.element}.${row.quantity}`] = row.ratio;
         if (first.ratio > 1) {
-          ctx.warnings.push(warningAt('short-over-rating', `short: with the output shorted through ${formatSI(r.ohms, 'Ω')}, ${first.element} reaches ${first.ratio.toFixed(2)}× its ${first.quantity} rating (${first.ratedBy}), the highest of any part: without current limiting it is the first to fail`, f.origin.pos, f.origin.lineText));
+          ctx.warnings.push(warningAt('short-over-rating', `short: with the output shorted through ${formatSI(r.ohms, 'Ω')}, ${first.element} reaches ${first.ratio.toFixed(2)}× its ${first.quantity} rating (${first.ratedBy}), the furthest past a rating of any part: without current limiting it is the first to fail by its ratings`, f.origin.pos, f.origin.lineText));
         }
       } else omitted.push({ name: 'short.worst', reason: 'no part carries a rating to judge it by (vmax=, imax=, ipk=, irms=, pmax=, or the model VCEMAX, VCBMAX, ICMAX, PMAX)' });
       const input = match(bench)

@@ -27,6 +27,7 @@ import { dissipates } from './dissipation.js';
 import { requireKey } from './keys.js';
 import { MAX_SHORT_OHMS } from '../figure-registry.js';
 import { describeSteady } from './periodic.js';
+import { DEFAULT_TJMAX } from './thermal.js';
 
 /** Default resistance of the short, Ω: 10 mΩ, about a short wire and a clip's contact (common practice, no source). */
 export const DEFAULT_SHORT_OHMS = 0.01;
@@ -38,6 +39,8 @@ export interface ShortOptions {
   readonly ohms?: number | undefined;
   /** Derating ratios of the stress rows (default {@link DEFAULT_DERATING}). */
   readonly derating?: Derating | undefined;
+  /** Ambient temperature for the junction temperatures, °C (default the figure temperature). */
+  readonly ambient?: number | undefined;
   /** The card the short's resistor is placed at in messages (default the `.supply` line). */
   readonly origin?: CardOrigin | undefined;
 }
@@ -54,6 +57,10 @@ export interface OutputShort {
   readonly pin: number;
   /** `short.pd.<element>`: power each resistor, diode and transistor of the stage absorbs (the load taken off), W (cycle averages on a sine-fed stage). */
   readonly pd: Readonly<Record<string, number>>;
+  /** Junction temperature in the short of every diode and transistor with `rth=`: Ta + P·(rth + rthsink) (JESD51-1 series path, as the thermal figure), °C, with its tjmax. */
+  readonly junctions: readonly { readonly element: string; readonly tj: number; readonly tjmax: number }[];
+  /** The ambient of the junction temperatures, °C. */
+  readonly ambient: number;
   /** Every rated quantity of every part in the short against its rating (empty when no part carries a rating). */
   readonly rows: readonly StressRow[];
   /** How the short's steady state was found, in words. */
@@ -86,7 +93,7 @@ function shortedCircuit(flat: FlatCircuit, ohms: number, origin: CardOrigin): { 
  */
 export function outputShort(bench: Bench, opts: ShortOptions = {}): OutputShort {
   BENCHES.check('outputShort', 'bench', bench);
-  checkOptions('outputShort', opts, { ohms: 'finite' });
+  checkOptions('outputShort', opts, { ohms: 'finite', ambient: 'finite' });
   const ohms = opts.ohms ?? DEFAULT_SHORT_OHMS;
   requireKey('short', 'r', ohms, (v) => Number.isFinite(v) && v > 0 && v <= MAX_SHORT_OHMS, `in (0, ${MAX_SHORT_OHMS}] Ω`);
   const main = bench.stage;
@@ -113,5 +120,11 @@ export function outputShort(bench: Bench, opts: ShortOptions = {}): OutputShort 
     .map((r) => ({ ...r, where }));
   const vout = Math.abs(stats.mean);
   const how = shorted.kind === 'dc' ? 'DC operating point' : `periodic steady state by ${stats.steady ? describeSteady(stats.steady) : 'whole cycles'}`;
-  return { ohms, current: vout / ohms, vout, pin: -(power[main.input.name] ?? 0), pd, rows, how };
+  const ambient = opts.ambient ?? main.celsius;
+  const junctions = main.compiled.elements.flatMap((el) => {
+    const rth = el.part.rth;
+    if (rth === undefined || (el.kind !== 'diode' && el.kind !== 'bjt')) return [];
+    return [{ element: el.name, tj: ambient + (pd[el.name] ?? 0) * (rth + (el.part.rthsink ?? 0)), tjmax: el.part.tjmax ?? DEFAULT_TJMAX[el.kind] }];
+  });
+  return { ohms, current: vout / ohms, vout, pin: -(power[main.input.name] ?? 0), pd, junctions, ambient, rows, how };
 }
