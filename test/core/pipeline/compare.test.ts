@@ -186,7 +186,7 @@ describe('two spellings of one circuit show no change', () => {
   const respelled = [
     'Weather-station sensor rail, written another way',
     '.MODEL npass npn (hfe=1.57e2 ichfe=0.05 vbe=680m vce=5 va=90 rb=10 pmax=1)',
-    '.model zref D (VZ=5600m IZT=5m ZZT=10 TCVZ=2e-3 PMAX=500m)',
+    '.model zref D (VZ=5620m IZT=5m ZZT=10.2 IZK=1m ZZK=0.039k TCVZ=2e-3 PMAX=500m)',
     '.param VBAT = 12',
     'iload OUT 0    0.05',
     'cout  OUT 0    100U',

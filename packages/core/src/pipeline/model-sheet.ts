@@ -30,7 +30,7 @@ import { parseNetlist } from '../netlist/index.js';
 import { createEvaluator } from '../elaborate/evaluate.js';
 import { resolveModelParams } from '../elaborate/elements.js';
 import { topScope } from '../elaborate/scope.js';
-import { argumentDiagnostic, isRecord } from '../arguments.js';
+import { argumentDiagnostic, argumentError, checkString, isRecord } from '../arguments.js';
 import { formatSI } from '../units.js';
 import { runNetlist } from './run.js';
 
@@ -64,8 +64,11 @@ export interface SheetValue {
 /** The outcome: the values a model implies, or the errors that stopped the test circuits. */
 export type ImpliedSheet = { readonly ok: true; readonly type: ModelType; readonly values: readonly SheetValue[] } | { readonly ok: false; readonly errors: readonly Diagnostic[] };
 
-/** The `.model` line of a card, its values as written (numbers, or expressions in braces). */
-export function modelLine(card: ModelCard, name = card.name): string {
+/** The `.model` line of a card, its values as written (numbers, or expressions in braces), under `name` (default the card's). Throws RailcheckError (`bad-argument`) for a `card` that is not a `.model` card. */
+export function modelLine(card: ModelCard, name?: string): string {
+  if (!isRecord(card) || card['kind'] !== 'model' || !Array.isArray(card['params']) || typeof card['type'] !== 'string') throw argumentError('modelLine', 'card', 'a .model card (from parseNetlist or readModelLine)', card);
+  if (name !== undefined && typeof name !== 'string') throw argumentError('modelLine', 'name', 'a model name', name);
+  name ??= card.name;
   return `.model ${name} ${card.type} (${card.params.map((p) => `${p.name}=${printValue(p.value)}`).join(' ')})`;
 }
 
@@ -171,7 +174,9 @@ class SheetFailure extends Error {
 export function impliedDatasheet(model: ModelCard | ResolvedModel, conditions: SheetConditions = {}, options: ResolveModelOptions = {}): ImpliedSheet {
   const wrong = conditionsProblem(conditions);
   if (wrong) return { ok: false, errors: [wrong] };
-  const resolved = isRecord(model) && 'ok' in model ? (model as ResolvedModel) : resolveModelCard(model as ModelCard, options);
+  // A resolution made before (resolveModelCard's result), or a card to resolve (guarded there).
+  const made = isRecord(model) && ((model['ok'] === true && isRecord(model['card']) && typeof model['line'] === 'string') || (model['ok'] === false && Array.isArray(model['errors'])));
+  const resolved = made ? (model as ResolvedModel) : resolveModelCard(model as ModelCard, options);
   if (!resolved.ok) return resolved;
   try {
     return measureSheet(resolved.card, resolved.given, conditions);
@@ -272,8 +277,10 @@ export function resolveNetlistModel(netlist: Netlist, name: string): ResolvedMod
   return resolveModelCard(card, { params: scope.params });
 }
 
-/** The first top-level `.model` card named `name` (any case) of a read netlist, or undefined. */
+/** The first top-level `.model` card named `name` (any case) of a read netlist, or undefined. Throws RailcheckError (`bad-argument`) for arguments of the wrong type. */
 export function findModelCard(netlist: Netlist, name: string): ModelCard | undefined {
+  if (!isRecord(netlist) || !Array.isArray(netlist['cards'])) throw argumentError('findModelCard', 'netlist', 'a netlist from parseNetlist or readNetlistFile', netlist);
+  checkString('findModelCard', 'name', name);
   return netlist.cards.find((c): c is ModelCard => c.kind === 'model' && c.name.toLowerCase() === name.toLowerCase());
 }
 
