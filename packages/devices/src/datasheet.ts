@@ -315,10 +315,15 @@ export function resolveBjtSheet(given: ReadonlyMap<string, number>): SheetResolu
   const iterate = hoe !== undefined || rb > 0 || rc > 0 || re > 0;
   if (hoe !== undefined) p.vaf = ichfe / hoe;
   let ibv = icvbe / bf;
+  let converged = !iterate;
   for (let round = 0; round < (iterate ? 100 : 1); round++) {
     const before = [p.is, bf, p.vaf ?? 0];
     if (vbe !== undefined) {
       const vbej = vbe - ibv * rb - (icvbe + ibv) * re;
+      // The drops across RB and RE take the whole VBE: no junction voltage is left to give the current.
+      if (!(vbej > 0.1)) {
+        return { ok: false, problems: [{ key: 'VBE', message: `VBE = ${vbe} V at ${icvbe} A is less than the drop across RB and RE at that current (about ${Number((ibv * rb + (icvbe + ibv) * re).toPrecision(3))} V)`, expected: 'a VBE above IB·RB + IE·RE, or smaller RB and RE' }] };
+      }
       const vcej = vce - icvbe * rc - (icvbe + ibv) * re;
       p.is = icvbe / collector({ ...p, is: 1 }, vbej, vcej).ic;
     }
@@ -340,8 +345,12 @@ export function resolveBjtSheet(given: ReadonlyMap<string, number>): SheetResolu
       ibv = icc / bf + iec / p.br;
     }
     const after = [p.is, bf, p.vaf ?? 0];
-    if (after.every((x, k) => Math.abs(x - before[k]!) <= 1e-14 * Math.abs(x))) break;
+    if (after.every((x, k) => Math.abs(x - before[k]!) <= 1e-12 * Math.abs(x))) {
+      converged = true;
+      break;
+    }
   }
+  if (!converged) return { ok: false, problems: [{ key: given.has('VBE') ? 'VBE' : 'HFE', message: 'the datasheet values and the terminal resistances RB, RC, RE admit no consistent set of parameters (the fixed point does not settle to 1e-12 in 100 rounds)', expected: 'datasheet values of one transistor, with RB, RC and RE small against VBE/IB and VBE/IE' }] };
   const notes: SheetProblem[] = [];
   if (!(p.is > 0) || !Number.isFinite(p.is)) return { ok: false, problems: [{ key: 'VBE', message: `VBE = ${vbe} V at ${icvbe} A gives no saturation current`, expected: 'a base-emitter voltage of a silicon transistor (about 0.5 V to 1 V)' }] };
   if (given.has('HFE') && !(bf > 0 && Number.isFinite(bf))) return { ok: false, problems: [{ key: 'HFE', message: `HFE = ${g('HFE')} at ${ichfe} A gives no forward beta`, expected: 'a gain above 0' }] };
