@@ -25,7 +25,7 @@ const PUBLIC_VALUES = [
   'MAINS_CAUTION', 'ELV_AC_RMS', 'ELV_DC', 'formatSI',
   'FIGURES', 'PART_DATA', 'PART_DATA_KEYS', 'STRESS_QUANTITIES', 'DEFAULT_DERATING', 'FIGURE_KIND_INFO', 'FIGURE_KINDS', 'BENCH_KINDS', 'figureEntry', 'figureKindOf', 'figureUnit',
   'measureFigures', 'createBench',
-  'lineRegulation', 'loadRegulation', 'dropout', 'DEFAULT_DROPOUT_FALL', 'rippleRejection', 'dissipation', 'sagRideThrough', 'startup', 'loadStep', 'outputShort', 'DEFAULT_SHORT_OHMS', 'DEFAULT_SETTLE_TMAX', 'DEFAULT_SETTLE_RATIO', 'DEFAULT_STEP_RISE',
+  'lineRegulation', 'loadRegulation', 'dropout', 'DEFAULT_DROPOUT_FALL', 'rippleRejection', 'dissipation', 'sagRideThrough', 'startup', 'loadStep', 'outputShort', 'DEFAULT_SHORT_OHMS', 'measureCurves', 'DEFAULT_SETTLE_TMAX', 'DEFAULT_SETTLE_RATIO', 'DEFAULT_STEP_RISE',
   'describeSteady',
 ];
 

@@ -95,6 +95,11 @@ export type { Startup, StartupOptions } from './measure/startup.js';
 export { loadStep, DEFAULT_STEP_RISE } from './measure/load-step.js';
 export type { LoadStep, LoadStepOptions } from './measure/load-step.js';
 export { outputShort, DEFAULT_SHORT_OHMS } from './measure/short.js';
+export { measureCurves } from './pipeline/curves.js';
+export type { CurveOptions, CurvesResult } from './pipeline/curves.js';
+export { figureCurves } from './measure/curves.js';
+export type { FigureCurves, LineCurve, LoadCurve, RejectionCurve, RippleWaveform, SagWaveform, Curve, CurvePoint } from './measure/curves.js';
+export type { StageWaveform } from './measure/bench.js';
 export type { OutputShort, ShortOptions } from './measure/short.js';
 export { BandWatch, SteadyCheck } from './measure/settling.js';
 // thermal figure (docs/thermal.md)

@@ -329,7 +329,7 @@ function failedText(t: SpreadTemperature, r: SpreadResult): string | undefined {
 }
 
 /** The values of figure `name` at temperature index `k` over every run that measured it, in run order (from `runs`). */
-function valuesOf(r: SpreadResult, k: number, name: string): number[] | undefined {
+export function valuesOf(r: SpreadResult, k: number, name: string): number[] | undefined {
   if (!r.runs) return undefined;
   const out: number[] = [];
   for (const run of r.runs) {

@@ -136,12 +136,12 @@ export interface DipPlan {
   readonly rippled: boolean;
   /**
    * Runs one dip of `depth` (a ratio of the nominal level) until `tEnd` s,
-   * handing every accepted point's time (s) and output (V, rail side) to
-   * `observe`; every step tried takes one from `shared` (the figure's
-   * MAX_FIGURE_STEPS). Throws RailcheckError (code `budget-…` when a budget
-   * is exceeded).
+   * handing every accepted point's time (s), output (V, rail side) and
+   * solution (V, A by unknown index) to `observe`; every step tried takes
+   * one from `shared` (the figure's MAX_FIGURE_STEPS). Throws
+   * RailcheckError (code `budget-…` when a budget is exceeded).
    */
-  run(depth: number, tEnd: number, observe: (timeSeconds: number, outputVolts: number) => void, shared: SharedStepBudget): void;
+  run(depth: number, tEnd: number, observe: (timeSeconds: number, outputVolts: number, x: Float64Array) => void, shared: SharedStepBudget): void;
 }
 
 /** How a settling run ended: judged settled at time `at` (s), or not by its end, with the unknown furthest from the steady state. */
@@ -176,6 +176,14 @@ export interface SettlingPlan {
    * when the transient fails (code `budget-…` for a budget).
    */
   run(tEnd: number, voltTol: number, observe: (timeSeconds: number, x: Float64Array, state: Float64Array) => void, shared: SharedStepBudget): SettlingOutcome;
+}
+
+/** Waveforms at the accepted points of a run: time (s), the input source's voltage, the feed node's (when the stage names one) and the output (V, as signed, against ground and ref). */
+export interface StageWaveform {
+  readonly time: readonly number[];
+  readonly input: readonly number[];
+  readonly feed: readonly number[] | undefined;
+  readonly output: readonly number[];
 }
 
 /** A load step (figures.md, step): currents drawn from the rail, A, and the rise time, s. */
@@ -219,6 +227,13 @@ export interface BenchCommon {
   smallSignalRejection(hertz: number): number | undefined;
   /** Ripple at periodic steady state: a DC bench adds `amp` V peak at `hertz` Hz to the input; a sine-fed stage's ripple is its own at nominal. Throws RailcheckError. */
   steadyRipple(hertz: number, amp: number): SteadyRipple;
+  /**
+   * The waveforms of `cycles` cycles at periodic steady state: on a DC
+   * bench with `amp` V peak at `hertz` Hz added to the input (the ripple
+   * figure's run), on a sine-fed bench its own nominal cycle (hertz and amp
+   * not used). Throws RailcheckError.
+   */
+  rippleWaveform(hertz: number, amp: number, cycles: number): StageWaveform;
   /** Plans dips of one shape. Throws RailcheckError. */
   planDip(shape: DipShape): DipPlan;
   /** Plans the switch-on from everything discharged, with the input and load at nominal. Throws RailcheckError. */

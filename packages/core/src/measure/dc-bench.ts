@@ -15,12 +15,12 @@ import { describeTransientFailure, runTransient, transientFailureCode } from '..
 import { opFailure } from '../analysis/dc.js';
 import { readSolution } from '../analysis/solution.js';
 import { formatSI } from '../units.js';
-import { dipBottomEnd, dipCorners, type BenchStart, type DcBench, type DipPlan, type DipShape, type LoadStepShape, type OutputStats, type SettlingOutcome, type SettlingPlan, type StageSetting, type SteadyRipple, type SteadyWalk } from './bench.js';
+import { dipBottomEnd, dipCorners, type BenchStart, type DcBench, type DipPlan, type DipShape, type LoadStepShape, type OutputStats, type SettlingOutcome, type SettlingPlan, type StageSetting, type StageWaveform, type SteadyRipple, type SteadyWalk } from './bench.js';
 import { SteadyCheck } from './settling.js';
 import type { SharedStepBudget } from '../engine/transient.js';
 import { settleCycle, type SteadyInfo } from './periodic.js';
 import { inputTransfer, smallSignalStart } from './small-signal.js';
-import { applyDrive, loadCurrentOf, meterPoints, onRail, solveSetting, vout, type DcSetting, type Drive, type Stage } from './stage.js';
+import { applyDrive, loadCurrentOf, meterPoints, onRail, solveSetting, vout, WaveRecorder, type DcSetting, type Drive, type Stage } from './stage.js';
 
 /** Width of the final dropout bracket, V: well inside the 1 mV figures.md asks for. */
 const DROPOUT_INPUT_TOLERANCE = 1e-4;
@@ -188,6 +188,24 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
       // A sine's p-p is 2·|amp| on a negative rail too.
       return { inputPp: 2 * Math.abs(amp), outputPp: r.outPp, steady: r.steady };
     },
+    rippleWaveform(hertz: number, amp: number, cycles: number): StageWaveform {
+      const settled = rippleSettle(hertz, amp, 'ripple waveform');
+      const rec = new WaveRecorder(stage);
+      // The settled cycles again, from the settled start (the sine still applied), every accepted point kept.
+      const period = 1 / hertz;
+      const r = runTransient(c, {
+        tstep: period / 50,
+        tstop: settled.start + cycles * period,
+        startTime: settled.start,
+        initialSolution: settled.solution,
+        stepsPerCycle: SAG_STEPS_PER_CYCLE,
+        junctionCmin: JUNCTION_CMIN,
+        keepTrace: false,
+        onAccept: (t, ctx) => rec.add(t, ctx.x, settled.start),
+      });
+      if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `ripple waveform: the transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))}`, stage.supply.origin.pos, stage.supply.origin.lineText)]);
+      return rec.result();
+    },
     planDip(shape: DipShape): DipPlan {
       const period = 1 / shape.freq;
       const rippled = shape.ripple > 0;
@@ -219,7 +237,7 @@ export function createDcBench(given: Stage, from?: BenchStart): DcBench {
             extraBreakpoints: rippled ? [t0 - period, bottomEnd - period, bottomEnd].filter((t) => t > 0) : [],
             onAccept: (t, ctx) => {
               stage.meter?.sample(t, ctx.x, ctx.state);
-              observe(t, railSign * vout(stage, ctx.x));
+              observe(t, railSign * vout(stage, ctx.x), ctx.x);
             },
             shared,
           });

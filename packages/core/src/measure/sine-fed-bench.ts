@@ -14,10 +14,10 @@ import { errorAt, RailcheckError } from '../errors.js';
 import { describeTransientFailure, runTransient, transientFailureCode } from '../engine/transient.js';
 import { MAX_BREAKPOINTS } from '../budgets.js';
 import { formatSI } from '../units.js';
-import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type LoadStepShape, type NodeCycle, type OutputStats, type SettlingPlan, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
+import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type LoadStepShape, type NodeCycle, type StageWaveform, type OutputStats, type SettlingPlan, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
 import { SteadyCheck } from './settling.js';
 import { settleCycle, type Probe } from './periodic.js';
-import { applyDrive, loadCurrentOf, onRail, vout, type Stage } from './stage.js';
+import { applyDrive, loadCurrentOf, onRail, vout, WaveRecorder, type Stage } from './stage.js';
 
 type Sine = Extract<WaveformSpec, { kind: 'sin' }>;
 
@@ -206,6 +206,26 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
     }),
     smallSignalRejection: () => undefined,
     steadyRipple: () => ({ inputPp: nominal.feed?.pp, outputPp: nominal.pp, steady: nominal.steady! }),
+    rippleWaveform(_hertz: number, _amp: number, cycles: number): StageWaveform {
+      // The nominal settled cycles, from the settled start, every accepted point kept.
+      applyDrive(stage, { dc: stage.inputDc, waveform: sine, loadAmps: loadNominal }, voutNominal);
+      const rec = new WaveRecorder(stage);
+      const boundaries: number[] = [];
+      for (let k = 1; k < cycles; k++) boundaries.push(nominalStart.start + k * period);
+      const r = runTransient(stage.compiled, {
+        tstep: period / 50,
+        tstop: nominalStart.start + cycles * period,
+        startTime: nominalStart.start,
+        initialSolution: nominalStart.solution,
+        stepsPerCycle: DIP_STEPS_PER_CYCLE,
+        junctionCmin: JUNCTION_CMIN,
+        extraBreakpoints: boundaries,
+        keepTrace: false,
+        onAccept: (t, ctx) => rec.add(t, ctx.x, nominalStart.start),
+      });
+      if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `ripple waveform of the sine-fed stage: the transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))}`, origin.pos, origin.lineText)]);
+      return rec.result();
+    },
     planDip(shape: DipShape): DipPlan {
       // From the nominal steady state, one settled cycle before the dip (the window of sag.out_pp_before).
       const t0 = nominalStart.start + period;
@@ -240,7 +260,7 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
             keepTrace: false,
             onAccept: (t, ctx) => {
               stage.meter?.sample(t, ctx.x, ctx.state);
-              observe(t, railSign * vout(stage, ctx.x));
+              observe(t, railSign * vout(stage, ctx.x), ctx.x);
             },
             shared,
           });

@@ -49,6 +49,36 @@ export interface Stage {
   readonly celsius: number;
 }
 
+/** Collects a stage's waveforms point by point (bench.ts, StageWaveform): input source voltage, feed and output. */
+export class WaveRecorder {
+  readonly time: number[] = [];
+  readonly input: number[] = [];
+  readonly feed: number[] | undefined;
+  readonly output: number[] = [];
+  private readonly inPlus: number;
+  private readonly inMinus: number;
+
+  constructor(private readonly stage: Stage) {
+    this.feed = stage.feedIndex === undefined ? undefined : [];
+    const nodes = stage.input.nodes;
+    this.inPlus = nodes[0];
+    this.inMinus = nodes[1];
+  }
+
+  /** What was recorded, as plain arrays. */
+  result(): { time: number[]; input: number[]; feed: number[] | undefined; output: number[] } {
+    return { time: this.time, input: this.input, feed: this.feed, output: this.output };
+  }
+
+  /** Takes one accepted point: its time (s, shifted by `t0`) and solution. */
+  add(t: number, x: Float64Array, t0 = 0): void {
+    this.time.push(t - t0);
+    this.input.push(x[this.inPlus]! - x[this.inMinus]!);
+    if (this.feed) this.feed.push(x[this.stage.feedIndex!]! - x[this.stage.refIndex]!);
+    this.output.push(vout(this.stage, x));
+  }
+}
+
 /** Options of a settled cycle that hand each of its accepted points to the stage's stress meter (none without a meter). */
 export function meterPoints(stage: Stage): { onPoint?: (timeSeconds: number, ctx: LoadContext) => void } {
   const m = stage.meter;
