@@ -56,7 +56,7 @@ export function refuseOutput(path: string, protect: string): string | undefined 
  * the operating system's code and reason ("EACCES: permission denied"),
  * without the temporary name node's message carries.
  */
-function writeFailure(real: string, e: unknown): string {
+export function writeFailure(real: string, e: unknown): string {
   const text = e instanceof Error ? e.message : String(e);
   const m = /^([A-Z][A-Z0-9_]*): ([^,]+)/.exec(text);
   return `${real}: ${m ? `${m[1]}: ${m[2]}` : text}`;
