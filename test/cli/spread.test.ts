@@ -130,7 +130,7 @@ describe('railcheck spread: help and usage errors', () => {
       [['--seed', '3'], /--seed goes with --sample RUN/],
       [['--corners'], /--corners goes with --sample RUN/],
       [['--sample', 'x'], /--sample x: expected a run number/],
-      [['--sample', '1', '--csv', 'w.csv'], /--csv and --steps do not go with --sample/],
+      [['--sample', '1', '--csv', 'w.csv'], /--csv, --steps and --plot do not go with --sample/],
     ] as const) {
       const r = await cli(['run', file, ...args]);
       expect(r.status).toBe(2);

@@ -8,7 +8,7 @@
  * `check`, `merge`, `compare` and `model` say theirs in their own modules. A user
  * never sees a stack trace.
  */
-import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
+import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type FigureCurves, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
 import { match } from 'ts-pattern';
 import { isAbsolute, relative } from 'node:path';
 import { transientCsv } from './present/waves.js';
@@ -24,6 +24,8 @@ import { CHECK_HELP, checkCommand } from './commands/check.js';
 import { MERGE_HELP, mergeCommand } from './commands/merge.js';
 import { SAMPLE_FLAGS, SPREAD_HELP, sampleCommand, spreadCommand } from './commands/spread.js';
 import { MODEL_HELP, modelCommand } from './commands/model.js';
+import { PLOT_FLAG, curvesOf, writePlotFolder } from './plot/command.js';
+import { reportCaution, runSections } from './plot/from-report.js';
 
 /** Where output goes; tests pass their own. */
 export interface CliIo {
@@ -45,7 +47,8 @@ export const EXIT_ERROR = 2;
 
 const RUN_FLAGS: readonly FlagSpec[] = [
   { name: 'json', short: 'j', takesValue: false, help: 'print the result as one JSON object on standard output' },
-  { name: 'csv', short: 'c', takesValue: true, valueName: 'OUT.csv', help: 'write the transient waveforms (time and every node) to OUT.csv' },
+  { name: 'csv', short: 'c', takesValue: true, valueName: 'OUT.csv', help: 'write the transient waveforms (time and every node) to OUT.csv, and the ripple and sag figures\' waveforms beside it' },
+  PLOT_FLAG,
   { name: 'steps', short: 's', takesValue: false, help: 'with --json or --csv: every accepted time step instead of the tstep grid' },
   { name: 'allow-outside-includes', takesValue: false, help: 'let .include reach files outside the netlist\'s folder tree' },
   ...SAMPLE_FLAGS,
@@ -57,6 +60,7 @@ const SAMPLE_ONLY = SAMPLE_FLAGS.map((f) => f.name).filter((n) => n !== 'sample'
 
 const DEMO_FLAGS: readonly FlagSpec[] = [
   { name: 'json', short: 'j', takesValue: false, help: 'print the result as JSON' },
+  PLOT_FLAG,
   { name: 'help', short: 'h', takesValue: false, help: 'show this help' },
 ];
 
@@ -150,9 +154,19 @@ function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string
   }
   const steps = flags.has('steps');
   const csv = flags.get('csv');
+  const plot = flags.get('plot');
+  // The curves and waveforms behind the figures are measured once, for the plots and the CSV files.
+  const notes: string[] = [];
+  const curves = typeof plot === 'string' || typeof csv === 'string' ? curvesOf(result.report, notes) : undefined;
   if (typeof csv === 'string') {
-    const written = writeCsv(io, result.report, csv, steps, file);
+    const written = writeCsv(io, result.report, csv, steps, file, curves);
     if (written !== EXIT_OK) return written;
+  }
+  if (typeof plot === 'string') {
+    const r = result.report;
+    const caution = reportCaution(r);
+    const status = writePlotFolder(plot, { title: r.title, ...(caution ? { caution } : {}), sections: runSections(r, curves) }, file, 'run', notes, (l) => io.err(l));
+    if (status !== EXIT_OK) return status;
   }
   if (flags.has('json')) io.out(JSON.stringify(reportJson(result.report, steps), null, 2));
   else io.out(formatReport(result.report));
@@ -183,9 +197,13 @@ function csvName(path: string, k: number): string {
  * temperatures, other .tran lines) beside it: all of them or none, never
  * over the netlist `file`.
  */
-function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean, file: string): number {
-  if (report.transients.length === 0) {
-    io.err('railcheck run: --csv needs a .tran analysis in the netlist; none was run');
+function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean, file: string, curves: FigureCurves | undefined): number {
+  const waves = [
+    ...(curves?.ripple ? [{ suffix: 'ripple', w: curves.ripple }] : []),
+    ...(curves?.sag ? [{ suffix: 'sag', w: curves.sag }] : []),
+  ];
+  if (report.transients.length === 0 && waves.length === 0) {
+    io.err('railcheck run: --csv needs a .tran analysis, or a ripple or sag figure, in the netlist; none was run');
     return EXIT_ERROR;
   }
   const files = report.transients.map((t, k) => {
@@ -193,6 +211,8 @@ function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean, fi
     const nodes = steps ? sampleTrace(report.compiled, t.trace, times).nodes : t.nodes;
     return { path: csvName(path, k), text: transientCsv(times, nodes) };
   });
+  // The figures' own waveforms (docs/output.md): OUT-ripple.csv and OUT-sag.csv, every accepted point.
+  for (const { suffix, w } of waves) files.push({ path: path.replace(/(\.csv)?$/i, `-${suffix}$1`), text: transientCsv(w.time, { input: w.input, ...(w.feed ? { feed: w.feed } : {}), output: w.output }) });
   const written = writeOutputFiles(files, file);
   if (!written.ok) {
     io.err(`railcheck run: --csv: ${written.message}`);
@@ -210,8 +230,8 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
     io.err(`railcheck run: --${without} goes with --sample RUN (repeating one run of a spread)`);
     return EXIT_ERROR;
   }
-  if (flags.has('sample') && (flags.has('csv') || flags.has('steps'))) {
-    io.err('railcheck run: --csv and --steps do not go with --sample: a repeated run reports its sample, figures and limits');
+  if (flags.has('sample') && (flags.has('csv') || flags.has('steps') || flags.has('plot'))) {
+    io.err('railcheck run: --csv, --steps and --plot do not go with --sample: a repeated run reports its sample, figures and limits');
     return EXIT_ERROR;
   }
   const expected = demo ? 0 : 1;

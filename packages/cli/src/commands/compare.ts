@@ -9,6 +9,8 @@
  * limit it applies, 1 when it fails one, 2 on an error in either file (the
  * message names which) or a limit of the modified stage not evaluated.
  */
+import { PLOT_FLAG, curvesOf, writePlotFolder } from '../plot/command.js';
+import { compareSections, reportCaution, reportFacts } from '../plot/from-report.js';
 import {
   formatDiagnostic, formatSI, MAINS_CAUTION, compareNetlistFiles,
   type CompareReport, type ConditionsUsed, type ConditionSource, type DissipationSide, type ElementChange, type FigureComparison,
@@ -29,6 +31,7 @@ const EXIT_ERROR = 2;
 const COMPARE_FLAGS: readonly FlagSpec[] = [
   { name: 'json', short: 'j', takesValue: false, help: 'print the comparison as one JSON object on standard output' },
   { name: 'allow-outside-includes', takesValue: false, help: "let .include reach files outside each netlist's folder tree" },
+  PLOT_FLAG,
   { name: 'help', short: 'h', takesValue: false, help: 'show this help' },
 ];
 
@@ -314,6 +317,17 @@ export function compareCommand(argv: readonly string[], io: CliIo): number {
   }
   const report = result.report;
   const status = compareStatus(report);
+  const plot = flags.get('plot');
+  if (typeof plot === 'string') {
+    // Both stages' curves on the same axes; the modified stage's figures and limits beside them.
+    const notes: string[] = [];
+    const a = curvesOf(report.original, notes);
+    const b = curvesOf(report.modified, notes);
+    const caution = reportCaution(report.modified) ?? reportCaution(report.original);
+    const folder = { title: `${report.original.title} — original and modified`, ...(caution ? { caution } : {}), sections: compareSections(a, b, reportFacts(report.modified)) };
+    const written = writePlotFolder(plot, folder, modifiedPath, 'compare', notes, (l) => io.err(l));
+    if (written !== EXIT_OK) return written;
+  }
   if (flags.has('json')) io.out(JSON.stringify(comparisonJson(report, status), null, 2));
   else io.out(formatComparison(report));
   const unevaluated = notEvaluatedErrors(report.modified.figures?.limits ?? []);

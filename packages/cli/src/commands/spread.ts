@@ -6,6 +6,8 @@
  * fails a limit, a limit's figure was not measured in a run, or a run did
  * not run at all, 2 for a netlist error or a usage error.
  */
+import { PLOT_FLAG, writePlotFolder } from '../plot/command.js';
+import { spreadSections } from '../plot/from-report.js';
 import {
   DEFAULT_MAX_CORNER_RUNS, DEFAULT_SPREAD_PERCENTILES, DEFAULT_SPREAD_RUNS, DEFAULT_SPREAD_SEED, elaborate, formatDiagnostic, readNetlistFile, runNetlistFile, runSampleNetlistFile, spreadNetlistFile,
   type Diagnostic, type FlatCircuit, type ModelSampling, type SpreadOptions, type SpreadResult,
@@ -29,6 +31,7 @@ const SPREAD_FLAGS: readonly FlagSpec[] = [
   { name: 'jobs', takesValue: true, valueName: 'N', help: 'run on N worker threads (default: the number of cores); the output is the same for any N' },
   { name: 'shard', takesValue: true, valueName: 'K/N', help: 'run only the K-th of N shares of the runs (run r with r mod N = K-1); combine the shares\' --json with railcheck merge' },
   { name: 'allow-outside-includes', takesValue: false, help: 'let .include reach files outside the netlist\'s folder tree' },
+  PLOT_FLAG,
   { name: 'help', short: 'h', takesValue: false, help: 'show this help' },
 ];
 
@@ -251,6 +254,13 @@ export async function spreadCommand(argv: readonly string[], io: CliIo): Promise
     return EXIT_ERROR;
   }
   const r = outcome.result;
+  const plot = flags.get('plot');
+  if (typeof plot === 'string') {
+    const caution = r.caution ?? undefined;
+    const folder = { title: `${r.title} — spread over ${r.runsDone} runs`, ...(caution ? { caution } : {}), sections: spreadSections(r, a.histograms === 'all') };
+    const written = writePlotFolder(plot, folder, positionals[0]!, 'spread', [], (l) => io.err(l));
+    if (written !== EXIT_OK) return written;
+  }
   if (r.shard.count > 1 && !a.json) io.err(`railcheck spread: shard ${r.shard.index}/${r.shard.count}: this report covers ${r.runsDone} of ${r.runCount} runs; write each share with --json and combine them with railcheck merge`);
   return presentSpread(io, r, a.json, a.allRuns, a.histograms);
 }

@@ -207,7 +207,8 @@ export function compareSections(original: FigureCurves | undefined, modified: Fi
       id: `compare-${pa.id}`,
       subtitle: pb ? 'original and modified' : 'original only: the modified stage has no such curve',
       series: [...pa.series.map((s) => tag(s, 'original')), ...(pb ? pb.series.map((s) => tag(s, 'modified')) : [])],
-      markers: [...(pa.markers ?? []).map((m) => ({ ...m, label: `${m.label} (original)` })), ...(pb?.markers ?? []).map((m) => ({ ...m, label: `${m.label} (modified)` }))],
+      // The nominal points of the two sit close together: only the other markers (dropout) are drawn, each named.
+      markers: [...(pa.markers ?? []).filter((m) => !m.label.startsWith('nominal')).map((m) => ({ ...m, label: `${m.label} (original)` })), ...(pb?.markers ?? []).filter((m) => !m.label.startsWith('nominal')).map((m) => ({ ...m, label: `${m.label} (modified)` }))],
       ...(pa.y2 ? { y2: pa.y2 } : {}),
     });
   }

@@ -138,7 +138,7 @@ function lineCurve(bench: Bench, figures: readonly FlatFigure[], notes: string[]
     notes.push(`line curve: no dropout point: ${reasonOf(e)}`);
   }
   const mag = Math.abs(n);
-  const low = d ? Math.max(0.05 * mag, d.x - 0.4 * (mag - d.x)) : 0.5 * mag;
+  const low = d ? Math.max(0.05 * mag, d.x - 0.6 * (mag - d.x)) : 0.5 * mag;
   const xs = spaced(low, Math.max(high, mag), LINE_POINTS[bench.kind]);
   if (!xs.includes(mag)) xs.push(mag);
   xs.sort((a, b) => a - b);
