@@ -8,8 +8,8 @@
  * 1990); log axes are labelled at decades, with 2 and 5 where they fit.
  * Tick labels carry SI prefixes as reports do (formatSI; SI Brochure, 9th
  * ed., §3). Every number written is finite and rounded to 1/100 px; a
- * value that cannot be drawn (not finite, beyond ±1e100, or ≤ 0 on a log
- * axis) is skipped, and a range with no width is widened about its value.
+ * value that cannot be drawn (not finite, beyond ±1e100, or below 1e-100 on
+ * a log axis, so any value ≤ 0) is skipped, and a range with no width is widened about its value.
  */
 import { formatSI } from '@railcheck/core';
 import { match } from 'ts-pattern';
@@ -89,7 +89,7 @@ function dataNumber(v: number): string {
 
 /** Text escaped for XML content and attribute values. */
 export function escapeXml(s: string): string {
-  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
+  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&apos;');
 }
 
 /** Estimated width of `s` at `size` px in a sans-serif face (average advance about 0.56 em). */
@@ -143,9 +143,9 @@ interface Scale {
   readonly minor: readonly number[];
 }
 
-/** Whether `v` can be drawn on an axis (`log`: only above zero). */
+/** Whether `v` can be drawn on an axis: finite and at most 1e100 in size; on a log axis also at least 1e-100 (so above zero). */
 function drawable(v: number, log: boolean): boolean {
-  return Number.isFinite(v) && Math.abs(v) <= LIMIT && (!log || v > 0);
+  return Number.isFinite(v) && Math.abs(v) <= LIMIT && (!log || v >= 1 / LIMIT);
 }
 
 /** The range to show for values `vs`: padded by `pad` of the span, widened when it has no width; `floor` keeps a bound (counts start at 0). */
@@ -168,8 +168,9 @@ function rangeOf(vs: readonly number[], log: boolean, pad: number, floor?: numbe
     return [10 ** a, 10 ** b];
   }
   const mag = Math.max(Math.abs(lo), Math.abs(hi));
-  if (hi - lo <= mag * 1e-9) {
-    const w = mag === 0 ? 1 : mag * 0.05;
+  // No width (or one too small to divide into ticks): widen about the value by 5 %, at least 1e-100 (1 for zero).
+  if (hi - lo <= mag * 1e-9 || hi - lo < 1e-100) {
+    const w = mag === 0 ? 1 : Math.max(mag * 0.05, 1e-100);
     lo -= w;
     hi += w;
   } else {
