@@ -45,7 +45,7 @@ main { max-width: 1180px; margin: 0 auto; }
 h1 { font-size: 1.55rem; margin: 0 0 16px; }
 h2 { font-size: 1.2rem; margin: 28px 0 12px; }
 .caution { border: 2px solid #B34700; border-left-width: 8px; background: #FFF3E6; color: #5C2400; padding: 12px 16px; margin: 0 0 20px; font-weight: 600; border-radius: 4px; }
-.caution strong { display: block; font-size: 1.05rem; margin-bottom: 2px; }
+.caution strong { font-size: 1.05rem; }
 .section { display: flex; flex-wrap: wrap; gap: 20px; align-items: flex-start; }
 .plots { flex: 1 1 640px; min-width: 0; display: grid; gap: 16px; }
 figure { margin: 0; background: #FFFFFF; border: 1px solid #D9D9D6; border-radius: 6px; padding: 8px; }
@@ -96,7 +96,7 @@ export function renderPage(input: PageInput): string {
   out.push('<body>');
   out.push('<main>');
   out.push(`<h1>${e(input.title)}</h1>`);
-  if (input.caution) out.push(`<div class="caution" role="alert"><strong>Caution</strong>${e(input.caution)}</div>`);
+  if (input.caution) out.push(`<div class="caution" role="alert"><strong>Caution:</strong> ${e(input.caution)}</div>`);
   for (const [k, section] of input.sections.entries()) {
     out.push(`<section aria-labelledby="section-${k + 1}">`);
     out.push(`<h2 id="section-${k + 1}">${e(section.heading)}</h2>`);

@@ -8,8 +8,8 @@
  * 1990); log axes are labelled at decades, with 2 and 5 where they fit.
  * Tick labels carry SI prefixes as reports do (formatSI; SI Brochure, 9th
  * ed., §3). Every number written is finite and rounded to 1/100 px; a
- * value that cannot be drawn (not finite, beyond ±1e100, or ≤ 0 on a log
- * axis) is skipped, and a range with no width is widened about its value.
+ * value that cannot be drawn (not finite, beyond ±1e100, or below 1e-100 on
+ * a log axis, so any value ≤ 0) is skipped, and a range with no width is widened about its value.
  */
 import { formatSI } from '@railcheck/core';
 import { match } from 'ts-pattern';
@@ -89,7 +89,7 @@ function dataNumber(v: number): string {
 
 /** Text escaped for XML content and attribute values. */
 export function escapeXml(s: string): string {
-  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
+  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&apos;');
 }
 
 /** Estimated width of `s` at `size` px in a sans-serif face (average advance about 0.56 em). */
@@ -109,6 +109,31 @@ function tickLabel(value: number, unit: string, digits: number): string {
   return unit === '%' || unit === '' ? `${text}${unit === '%' ? ' %' : ''}` : `${text} ${unit}`;
 }
 
+const PREFIX: Readonly<Record<number, string>> = { 12: 'T', 9: 'G', 6: 'M', 3: 'k', 0: '', [-3]: 'm', [-6]: 'µ', [-9]: 'n', [-12]: 'p', [-15]: 'f' };
+
+/**
+ * Labels of linear ticks `values` spaced `step`: one SI prefix for all
+ * (the one formatSI would give the largest magnitude) and as many decimals
+ * as the step needs, so `4.9995 V, 5.0000 V, 5.0005 V` line up; dB, % and
+ * bare numbers take no prefix. Outside the prefixes' range each label is
+ * formatSI's own.
+ */
+function linearLabels(values: readonly number[], step: number, unit: string): string[] {
+  const mag = Math.max(...values.map(Math.abs), step);
+  const plain = PLAIN_UNITS.has(unit);
+  const e3 = plain ? 0 : 3 * Math.floor(Math.log10(mag) / 3 + 1e-9);
+  const prefix = PREFIX[e3];
+  const scaledStep = step / 10 ** e3;
+  const decimals = Math.max(0, -Math.floor(Math.log10(scaledStep) + 1e-9));
+  if (prefix === undefined || (plain && (mag >= 1e9 || decimals > 9))) return values.map((v) => (plain ? tickLabel(v, unit, digitsFor(mag, step)) : formatSI(v, unit, digitsFor(mag, step))));
+  const sep = unit === '' && prefix === '' ? '' : ' ';
+  return values.map((v) => {
+    const m = v / 10 ** e3;
+    const text = Math.abs(m) < 0.5 * 10 ** -decimals ? (0).toFixed(decimals) : m.toFixed(decimals);
+    return `${text}${sep}${prefix}${unit}`;
+  });
+}
+
 /** One axis as drawn: its shown range, scale, ticks (labelled and minor). */
 interface Scale {
   readonly min: number;
@@ -118,9 +143,9 @@ interface Scale {
   readonly minor: readonly number[];
 }
 
-/** Whether `v` can be drawn on an axis (`log`: only above zero). */
+/** Whether `v` can be drawn on an axis: finite and at most 1e100 in size; on a log axis also at least 1e-100 (so above zero). */
 function drawable(v: number, log: boolean): boolean {
-  return Number.isFinite(v) && Math.abs(v) <= LIMIT && (!log || v > 0);
+  return Number.isFinite(v) && Math.abs(v) <= LIMIT && (!log || v >= 1 / LIMIT);
 }
 
 /** The range to show for values `vs`: padded by `pad` of the span, widened when it has no width; `floor` keeps a bound (counts start at 0). */
@@ -143,8 +168,9 @@ function rangeOf(vs: readonly number[], log: boolean, pad: number, floor?: numbe
     return [10 ** a, 10 ** b];
   }
   const mag = Math.max(Math.abs(lo), Math.abs(hi));
-  if (hi - lo <= mag * 1e-9) {
-    const w = mag === 0 ? 1 : mag * 0.05;
+  // No width (or one too small to divide into ticks): widen about the value by 5 %, at least 1e-100 (1 for zero).
+  if (hi - lo <= mag * 1e-9 || hi - lo < 1e-100) {
+    const w = mag === 0 ? 1 : Math.max(mag * 0.05, 1e-100);
     lo -= w;
     hi += w;
   } else {
@@ -156,16 +182,18 @@ function rangeOf(vs: readonly number[], log: boolean, pad: number, floor?: numbe
   return [lo, hi];
 }
 
-/** 1, 2 or 5 times a power of ten, the smallest of them at least `raw`. */
+/** 1, 2 or 5 times a power of ten, the one nearest `raw` (Heckbert's rounding: below 1.5 → 1, 3 → 2, 7 → 5). */
 function niceStep(raw: number): number {
   const p = 10 ** Math.floor(Math.log10(raw));
   const m = raw / p;
-  return (m <= 1 ? 1 : m <= 2 ? 2 : m <= 5 ? 5 : 10) * p;
+  return (m < 1.5 ? 1 : m < 3 ? 2 : m < 7 ? 5 : 10) * p;
 }
 
-/** The next larger nice step after `step`. */
+/** The next larger nice step after `step` (1 → 2 → 5 → 10). */
 function nextStep(step: number): number {
-  return niceStep(step * 1.01);
+  const p = 10 ** Math.floor(Math.log10(step) + 1e-9);
+  const m = Math.round(step / p);
+  return (m < 2 ? 2 : m < 5 ? 5 : 10) * p;
 }
 
 /** Significant digits that tell ticks `step` apart up to magnitude `mag`. */
@@ -184,13 +212,10 @@ function linearTicks(min: number, max: number, unit: string, target: number, len
   for (let tries = 0; tries < 12; tries++) {
     const first = Math.ceil(min / step - 1e-9);
     const last = Math.floor(max / step + 1e-9);
-    const ticks: { at: number; label: string }[] = [];
-    const mag = Math.max(Math.abs(min), Math.abs(max));
-    const digits = digitsFor(mag, step);
-    for (let i = first; i <= last && ticks.length < 60; i++) {
-      const at = i * step;
-      ticks.push({ at: at === 0 ? 0 : at, label: tickLabel(at, unit, digits) });
-    }
+    const at: number[] = [];
+    for (let i = first; i <= last && at.length < 60; i++) at.push(i === 0 ? 0 : i * step);
+    const names = at.length ? linearLabels(at, step, unit) : [];
+    const ticks = at.map((v, k) => ({ at: v, label: names[k]! }));
     const spacing = (step / (max - min)) * length;
     const widest = Math.max(0, ...ticks.map((t) => room(t.label)));
     if (spacing >= widest + 10 || tries === 11) return { min, max, log: false, ticks, minor: [] };
@@ -332,9 +357,15 @@ export function renderSvg(spec: PlotSpec, size: SvgSize = {}): string {
   }
   const countsOnly = hist !== undefined && leftSeries.length === 0;
   const [x0v, x1v] = rangeOf(xValues, xLog, bins.length > 0 && spec.series.length === 0 ? 0.02 : 0.03);
-  const [y0v, y1v] = rangeOf(leftValues, yLog, 0.06, bins.length > 0 ? 0 : undefined);
+  // Markers get more room, so their labels fit above or below them inside the frame.
+  let [y0v, y1v] = rangeOf(leftValues, yLog, (spec.markers ?? []).length > 0 ? 0.1 : 0.06, bins.length > 0 ? 0 : undefined);
   const rightValues = [...rightSeries.flatMap((s) => s.y.slice(0, Math.min(s.x.length, s.y.length))), ...(spec.y2?.include ?? [])];
-  const [r0v, r1v] = rangeOf(rightValues, y2Log, 0.06);
+  let [r0v, r1v] = rangeOf(rightValues, y2Log, 0.06);
+  // With series on both sides, the left ones take the upper part of the plot and the right ones the lower, so neither hides the other.
+  if (hasRight && leftSeries.length > 0 && !yLog && !y2Log && bins.length === 0) {
+    y0v -= (y1v - y0v) * 0.7;
+    r1v += (r1v - r0v) * 0.7;
+  }
 
   // Legend entries.
   const legend: LegendEntry[] = [];
@@ -381,9 +412,19 @@ export function renderSvg(spec: PlotSpec, size: SvgSize = {}): string {
   const widestR = hasRight ? Math.max(0, ...rScale.ticks.map((t) => textWidth(t.label, L.tickSize))) : 0;
   const left = pad + L.labelSize + 10 + widestY + 8;
   const right = W - (hasRight ? pad + L.labelSize + 10 + widestR + 8 : pad + 8);
-  const plotW = Math.max(60, right - left);
   const wide = (s: string): number => textWidth(s, L.tickSize);
-  const xScale = xLog ? logTicks(x0v, x1v, spec.x.unit, plotW, wide) : linearTicks(x0v, x1v, spec.x.unit, Math.max(2, Math.round(plotW / 90)), plotW, wide, false);
+  const xTicks = (w: number): Scale => (xLog ? logTicks(x0v, x1v, spec.x.unit, w, wide) : linearTicks(x0v, x1v, spec.x.unit, Math.max(2, Math.round(w / 90)), w, wide, false));
+  let plotW = Math.max(60, right - left);
+  let xScale = xTicks(plotW);
+  // The last tick label must not run past the edge of the drawing: narrow the plot once if it does.
+  const last = xScale.ticks[xScale.ticks.length - 1];
+  if (last) {
+    const over = left + place(xScale, last.at, 0, plotW) + wide(last.label) / 2 - (W - 4);
+    if (over > 0) {
+      plotW = Math.max(60, plotW - over);
+      xScale = xTicks(plotW);
+    }
+  }
 
   const X = (v: number): number => place(xScale, v, left, left + plotW);
   const Y = (v: number): number => place(yScale, v, top + plotH, top);
@@ -448,30 +489,73 @@ export function renderSvg(spec: PlotSpec, size: SvgSize = {}): string {
     out.push('</g>');
   }
 
-  // Rules (dashed) under the series.
+  // The series in px, and the obstacles labels keep clear of: points along every series (every 5 px at most), bars, markers.
+  const drawn = spec.series.map((s) => {
+    const onRight = s.axis === 'right';
+    const ys = onRight ? rScale : yScale;
+    return { s, onRight, pts: pointsOf(s, xScale, ys).map(([a, b]): [number, number] => [X(a), onRight ? R(b) : Y(b)]) };
+  });
+  const obstacles: [number, number][] = [];
+  for (const { s, pts } of drawn) {
+    const style = s.style ?? 'line';
+    const stride = Math.max(1, Math.ceil(pts.length / 4000));
+    for (let k = 0; k < pts.length; k += stride) {
+      const [a, b] = pts[k]!;
+      obstacles.push([a, b]);
+      const next = pts[Math.min(pts.length - 1, k + stride)]!;
+      if (style === 'points' || k + stride >= pts.length) continue;
+      const corner: [number, number] = style === 'step' ? [next[0], b] : next;
+      const steps = Math.min(200, Math.ceil(Math.hypot(corner[0] - a, corner[1] - b) / 5));
+      for (let j = 1; j < steps; j++) obstacles.push([a + ((corner[0] - a) * j) / steps, b + ((corner[1] - b) * j) / steps]);
+      if (style === 'step') for (let j = 1; j < 20; j++) obstacles.push([next[0], b + ((next[1] - b) * j) / 20]);
+    }
+  }
+  const blocked: Box[] = bins.map((b) => ({ x0: X(b.lo), x1: X(b.hi), y0: Y(b.count), y1: top + plotH }));
+  const markers = (spec.markers ?? []).filter((m) => drawable(m.x, xLog) && drawable(m.y, yLog)).map((m) => ({ m, x: X(m.x), y: Y(m.y) }));
+  for (const m of markers) blocked.push({ x0: m.x - 6, x1: m.x + 6, y0: m.y - 6, y1: m.y + 6 });
+
+  // Labels go where they cover the least: clear of other labels first, then of markers and bars, then of the series.
   const placed: Box[] = [];
   const labels: string[] = [];
   const label = (text: string, tries: readonly [number, number, 'start' | 'end'][], colour: string): void => {
     const w = textWidth(text, L.tickSize) + 4;
     const h = L.tickSize + 2;
     const inside = (b: Box): boolean => b.x0 >= left + 2 && b.x1 <= left + plotW - 2 && b.y0 >= top + 2 && b.y1 <= top + plotH - 2;
-    const boxes = tries.map(([x, yb, anchor]) => ({ x, yb, anchor, box: { x0: anchor === 'start' ? x - 2 : x - w + 2, x1: anchor === 'start' ? x + w - 2 : x + 2, y0: yb - h + 2, y1: yb + 3 } }));
-    const pick = boxes.find((c) => inside(c.box) && placed.every((p) => !overlaps(p, c.box))) ?? boxes.find((c) => inside(c.box)) ?? boxes[0]!;
-    placed.push(pick.box);
-    labels.push(`<text x="${n(pick.x)}" y="${n(pick.yb)}" text-anchor="${pick.anchor}" fill="${colour}" stroke="#FFFFFF" stroke-width="3.5" stroke-linejoin="round" paint-order="stroke">${escapeXml(text)}</text>`);
+    const score = (b: Box): number =>
+      (inside(b) ? 0 : 1e9) +
+      placed.filter((p) => overlaps(p, b)).length * 1e6 +
+      blocked.filter((p) => overlaps(p, b)).length * 1e3 +
+      obstacles.filter(([a, c]) => a >= b.x0 - 2 && a <= b.x1 + 2 && c >= b.y0 - 2 && c <= b.y1 + 2).length;
+    let best: { x: number; yb: number; anchor: 'start' | 'end'; box: Box } | undefined;
+    let bestScore = Infinity;
+    for (const [x, yb, anchor] of tries) {
+      const box = { x0: anchor === 'start' ? x - 2 : x - w + 2, x1: anchor === 'start' ? x + w - 2 : x + 2, y0: yb - h + 2, y1: yb + 3 };
+      const sc = score(box);
+      if (sc < bestScore) {
+        best = { x, yb, anchor, box };
+        bestScore = sc;
+      }
+    }
+    if (!best) return;
+    placed.push(best.box);
+    labels.push(`<text x="${n(best.x)}" y="${n(best.yb)}" text-anchor="${best.anchor}" fill="${colour}" stroke="#FFFFFF" stroke-width="3" stroke-linejoin="round" paint-order="stroke">${escapeXml(text)}</text>`);
   };
+
+  // Rules (dashed), under the series.
+  const ruleLabels: (() => void)[] = [];
   const drawRules = (rules: readonly PlotRule[], vertical: boolean): void => {
     for (const r of rules) {
       if (!drawable(r.at, vertical ? xLog : yLog)) continue;
       if (vertical) {
         const x = X(r.at);
         out.push(`<line class="rule rule-x" x1="${n(x)}" y1="${n(top)}" x2="${n(x)}" y2="${n(top + plotH)}" stroke="${L.rule}" stroke-width="1.3" stroke-dasharray="6 4"/>`);
-        const yb = top + L.tickSize + 6;
-        label(r.label, [[x + 5, yb, 'start'], [x - 5, yb, 'end'], [x + 5, yb + L.tickSize + 6, 'start'], [x - 5, yb + L.tickSize + 6, 'end'], [x + 5, top + plotH - 8, 'start'], [x - 5, top + plotH - 8, 'end']], L.rule);
+        const rows = [top + L.tickSize + 6, top + 2 * L.tickSize + 12, top + plotH / 2, top + plotH - 8];
+        ruleLabels.push(() => label(r.label, rows.flatMap((yb): [number, number, 'start' | 'end'][] => [[x + 5, yb, 'start'], [x - 5, yb, 'end']]), L.rule));
       } else {
         const yv = Y(r.at);
         out.push(`<line class="rule rule-y" x1="${n(left)}" y1="${n(yv)}" x2="${n(left + plotW)}" y2="${n(yv)}" stroke="${L.rule}" stroke-width="1.3" stroke-dasharray="6 4"/>`);
-        label(r.label, [[left + plotW - 6, yv - 5, 'end'], [left + plotW - 6, yv + L.tickSize + 4, 'end'], [left + 6, yv - 5, 'start'], [left + 6, yv + L.tickSize + 4, 'start']], L.rule);
+        const cols: [number, 'start' | 'end'][] = [[left + plotW - 6, 'end'], [left + 6, 'start'], [left + plotW / 2, 'start']];
+        ruleLabels.push(() => label(r.label, cols.flatMap(([x, anchor]): [number, number, 'start' | 'end'][] => [[x, yv - 5, anchor], [x, yv + L.tickSize + 4, anchor]]), L.rule));
       }
     }
   };
@@ -479,11 +563,8 @@ export function renderSvg(spec: PlotSpec, size: SvgSize = {}): string {
   drawRules(spec.yRules ?? [], false);
 
   // Series.
-  for (const s of spec.series) {
+  for (const { s, onRight, pts } of drawn) {
     const colour = colourOf.get(s)!;
-    const onRight = s.axis === 'right';
-    const ys = onRight ? rScale : yScale;
-    const pts = pointsOf(s, xScale, ys).map(([a, b]): [number, number] => [X(a), onRight ? R(b) : Y(b)]);
     const style = s.style ?? 'line';
     const common = `class="series series-${style}" data-series="${escapeXml(s.name)}" data-points="${pts.length}"${onRight ? ' data-axis="y2"' : ''} clip-path="url(#${clipId})"`;
     const d = match(style)
@@ -495,14 +576,13 @@ export function renderSvg(spec: PlotSpec, size: SvgSize = {}): string {
     out.push(`<path ${common} ${paint} d="${d || 'M0 0'}"${d ? '' : ' visibility="hidden"'}/>`);
   }
 
-  // Markers, over the series.
-  for (const m of spec.markers ?? []) {
-    if (!drawable(m.x, xLog) || !drawable(m.y, yLog)) continue;
-    const x = X(m.x);
-    const yv = Y(m.y);
-    out.push(`<circle class="marker" cx="${n(x)}" cy="${n(yv)}" r="5" fill="${L.rule}" stroke="#FFFFFF" stroke-width="1.5"/>`);
-    label(m.label, [[x + 9, yv - 8, 'start'], [x - 9, yv - 8, 'end'], [x + 9, yv + L.tickSize + 6, 'start'], [x - 9, yv + L.tickSize + 6, 'end'], [x + 9, yv - 8 - L.tickSize - 4, 'start'], [x - 9, yv + 2 * L.tickSize + 10, 'end']], L.text);
+  // Markers over the series; their labels first (they belong to one point), then the rules'.
+  for (const { x, y: yv } of markers) out.push(`<circle class="marker" cx="${n(x)}" cy="${n(yv)}" r="5" fill="${L.rule}" stroke="#FFFFFF" stroke-width="1.5"/>`);
+  for (const { m, x, y: yv } of markers) {
+    const near = L.tickSize + 6;
+    label(m.label, [[x + 9, yv - 8, 'start'], [x - 9, yv - 8, 'end'], [x + 9, yv + near, 'start'], [x - 9, yv + near, 'end'], [x + 9, yv - 8 - near, 'start'], [x - 9, yv - 8 - near, 'end'], [x + 9, yv + 2 * near, 'start'], [x - 9, yv + 2 * near, 'end']], L.text);
   }
+  for (const f of ruleLabels) f();
   out.push(`<g class="labels" font-size="${L.tickSize}">${labels.join('')}</g>`);
 
   // Frame over the grid and data edges.
