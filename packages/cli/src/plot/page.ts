@@ -52,9 +52,10 @@ figure { margin: 0; background: #FFFFFF; border: 1px solid #D9D9D6; border-radiu
 figure svg { display: block; width: 100%; height: auto; max-width: ${PLOT_LOOK.width}px; }
 figcaption { font-size: 0.85rem; color: ${PLOT_LOOK.muted}; padding: 4px 4px 0; }
 figcaption a { color: #005A8C; }
-.facts { flex: 0 1 340px; min-width: 240px; background: #FFFFFF; border: 1px solid #D9D9D6; border-radius: 6px; padding: 8px 12px; }
+.facts { flex: 0 1 380px; min-width: 260px; overflow-x: auto; background: #FFFFFF; border: 1px solid #D9D9D6; border-radius: 6px; padding: 8px 12px; }
 table { border-collapse: collapse; width: 100%; font-size: 0.9rem; font-variant-numeric: tabular-nums; }
 th, td { text-align: left; padding: 5px 6px; border-bottom: 1px solid #E8E8E5; vertical-align: top; }
+td:first-child { overflow-wrap: anywhere; }
 th { font-weight: 600; color: ${PLOT_LOOK.muted}; }
 td.value { white-space: nowrap; }
 .status { font-weight: 700; white-space: nowrap; }

@@ -98,7 +98,7 @@ function textWidth(s: string, size: number): number {
 }
 
 /** Units written without prefixes (a "k" before dB or % reads wrongly). */
-const PLAIN_UNITS = new Set(['dB', '%', '°C', '']);
+const PLAIN_UNITS = new Set(['dB', '%', '%/V', '°C', '']);
 
 /** A tick label: `value` with `digits` significant digits, prefixed as formatSI does, or plain for dB, %, °C and bare numbers. */
 function tickLabel(value: number, unit: string, digits: number): string {
