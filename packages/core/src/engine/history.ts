@@ -57,6 +57,41 @@ export class SolutionHistory {
   }
 
   /**
+   * The predictor of a step's first Newton iterate: the polynomial through
+   * the newest accepted points (Lagrange's quadratic through three, the
+   * straight line through two), extrapolated to `t`, written into `out`
+   * (the explicit extrapolation of a predictor-corrector pair; Gear,
+   * Numerical Initial Value Problems in ODEs, 1971, ch. 9, from memory).
+   * False, and `out` untouched, with fewer than two points since the last
+   * reset. It moves only Newton's starting point: the solution is the one
+   * the corrector converges to, within the Newton tolerances.
+   */
+  predict(t: number, out: Float64Array): boolean {
+    if (this.count < 2) return false;
+    const t0 = this.times[0]!;
+    const dt = t0 - this.times[1]!;
+    if (!(dt > 0)) return false;
+    const p0 = this.points[0]!;
+    const p1 = this.points[1]!;
+    if (this.count >= 3) {
+      // Lagrange's quadratic through the three newest points.
+      const t1 = this.times[1]!;
+      const t2 = this.times[2]!;
+      const p2 = this.points[2]!;
+      const l0 = ((t - t1) * (t - t2)) / ((t0 - t1) * (t0 - t2));
+      const l1 = ((t - t0) * (t - t2)) / ((t1 - t0) * (t1 - t2));
+      const l2 = ((t - t0) * (t - t1)) / ((t2 - t0) * (t2 - t1));
+      if (Number.isFinite(l0 + l1 + l2)) {
+        for (let k = 1; k < this.size; k++) out[k] = l0 * p0[k]! + l1 * p1[k]! + l2 * p2[k]!;
+        return true;
+      }
+    }
+    const s = (t - t0) / dt;
+    for (let k = 1; k < this.size; k++) out[k] = p0[k]! + s * (p0[k]! - p1[k]!);
+    return true;
+  }
+
+  /**
    * Largest ratio LTE / tolerance over unknowns 1..n where `isVoltage`, for
    * a candidate (t, x) solved with a method of `order` (1 or 2); tolerance
    * reltol·max(|x|, |x_prev|) + abstol. Returns 0 with a single point of

@@ -17,6 +17,9 @@ import { FINAL_GMIN, solveOperatingPoint, stragglers, type Straggler } from './d
 import { match } from 'ts-pattern';
 import { MAX_BREAKPOINTS, MAX_TRACE_VALUES, MAX_TRAN_STEPS } from '../budgets.js';
 
+/** Whether each step's first Newton iterate is predicted (history.ts, predict); a switch for the benchmark's comparison, on by default. */
+export const PREDICTOR = { on: true };
+
 /** Integration method. */
 export type IntegrationMethod = 'be' | 'trap';
 
@@ -374,6 +377,8 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       ctx.coefficients.a1 = order === 1 ? 0 : -1;
       ctx.time = tNew;
       ctx.initJunctions = false;
+      // Newton starts from the line through the last two accepted points (a predictor), not from the last point alone.
+      if (!firstAfterBreak && PREDICTOR.on) history.predict(tNew, x);
       const r = newtonSolve(c, newton);
       stats.newtonIterations += r.iterations;
       if (!r.converged) {
