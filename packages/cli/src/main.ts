@@ -8,6 +8,7 @@
  * `check`, `merge`, `compare` and `model` say theirs in their own modules. A user
  * never sees a stack trace.
  */
+import { jsonText } from './present/json-text.js';
 import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type FigureCurves, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
 import { match } from 'ts-pattern';
 import { isAbsolute, relative } from 'node:path';
@@ -168,7 +169,7 @@ function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string
     const status = writePlotFolder(plot, { title: r.title, ...(caution ? { caution } : {}), sections: runSections(r, curves) }, file, 'run', notes, (l) => io.err(l));
     if (status !== EXIT_OK) return status;
   }
-  if (flags.has('json')) io.out(JSON.stringify(reportJson(result.report, steps), null, 2));
+  if (flags.has('json')) io.out(jsonText(reportJson(result.report, steps)));
   else io.out(formatReport(result.report));
   const limits = result.report.figures?.limits ?? [];
   const unevaluated = notEvaluatedErrors(limits);

@@ -5,6 +5,7 @@
  * fails, 2 only for a usage error (a bad option, no path, a path that does
  * not exist, a missing or malformed baseline).
  */
+import { jsonText } from '../present/json-text.js';
 import { writeFileSync } from 'node:fs';
 import { checkNetlists, formatDiagnostic, type CheckResult, type Diagnostic } from '@railcheck/core';
 import { commandArgs, flagHelp, type FlagSpec } from '../args.js';
@@ -162,7 +163,7 @@ function usageText(d: Diagnostic): string {
 /** The end of a check or a merge: the summary, the JSON, the JUnit file, the status. */
 export function finish(r: CheckResult, io: CliIo, json: boolean, junit: string | true | undefined, command: 'check' | 'merge'): number {
   (json ? io.err : io.out)(summaryText(r));
-  if (json) io.out(JSON.stringify(r, null, 2));
+  if (json) io.out(jsonText(r));
   if (typeof junit === 'string') {
     const failed = writeJunit(junit, r);
     if (failed) {

@@ -9,6 +9,7 @@
  * limit it applies, 1 when it fails one, 2 on an error in either file (the
  * message names which) or a limit of the modified stage not evaluated.
  */
+import { jsonText } from '../present/json-text.js';
 import { PLOT_FLAG, curvesOf, writePlotFolder } from '../plot/command.js';
 import { compareSections, reportCaution, reportFacts } from '../plot/from-report.js';
 import {
@@ -328,7 +329,7 @@ export function compareCommand(argv: readonly string[], io: CliIo): number {
     const written = writePlotFolder(plot, folder, modifiedPath, 'compare', notes, (l) => io.err(l));
     if (written !== EXIT_OK) return written;
   }
-  if (flags.has('json')) io.out(JSON.stringify(comparisonJson(report, status), null, 2));
+  if (flags.has('json')) io.out(jsonText(comparisonJson(report, status)));
   else io.out(formatComparison(report));
   const unevaluated = notEvaluatedErrors(report.modified.figures?.limits ?? []);
   if (unevaluated.length > 0) {

@@ -13,6 +13,7 @@
  * Exit status 0 on success, 2 for a usage error or a model that cannot be
  * resolved or simulated.
  */
+import { jsonText } from '../present/json-text.js';
 import { formatDiagnostic, impliedDatasheet, parseNetlist, parseScaledNumber, readModelLine, readNetlistFile, resolveModelCard, resolveNetlistModel, modelLine, type Diagnostic, type ModelCard, type ParseResult, type ResolvedModel, type SheetConditions, type SheetValue } from '@railcheck/core';
 import { MODEL_TYPES, type ModelType } from '@railcheck/devices';
 import { commandArgs, flagHelp, type FlagSpec } from '../args.js';
@@ -192,7 +193,7 @@ function present(io: CliIo, source: ModelSource, from: { file: string; card: Mod
   if (!sheet.ok) return fail(io, sheet.errors, `the model ${resolved.name} cannot be simulated in its test circuits`);
   const rows: SheetRow[] = sheet.values.map((v) => ({ ...v, given: givenFor(v, resolved.given) }));
   if (json) {
-    io.out(JSON.stringify(modelJson(source, from, written, resolved, rows, MODEL_FORMAT, MODEL_VERSION), null, 2));
+    io.out(jsonText(modelJson(source, from, written, resolved, rows, MODEL_FORMAT, MODEL_VERSION)));
     return EXIT_OK;
   }
   io.out(formatModel(source, from, written, resolved, rows));

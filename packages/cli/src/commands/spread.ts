@@ -6,6 +6,7 @@
  * fails a limit, a limit's figure was not measured in a run, or a run did
  * not run at all, 2 for a netlist error or a usage error.
  */
+import { jsonText } from '../present/json-text.js';
 import { PLOT_FLAG, writePlotFolder } from '../plot/command.js';
 import { spreadSections } from '../plot/from-report.js';
 import {
@@ -209,7 +210,7 @@ function printErrors(io: CliIo, command: string, errors: readonly Diagnostic[], 
  */
 export function spreadJson(r: SpreadResult, allRuns: boolean): string {
   const keep = allRuns || r.shard.count > 1;
-  return JSON.stringify({ ...r, runs: keep ? r.runs : null, allRuns: keep, runsPerSecond: null }, null, 2);
+  return jsonText({ ...r, runs: keep ? r.runs : null, allRuns: keep, runsPerSecond: null });
 }
 
 /** Exit status of a result: 0 when every limit passed in every run at every temperature and every run ran; else 1. */
