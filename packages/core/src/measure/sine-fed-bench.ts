@@ -11,10 +11,10 @@
 import { JUNCTION_CMIN } from '@railcheck/devices';
 import type { WaveformSpec } from '@railcheck/devices';
 import { errorAt, RailcheckError } from '../errors.js';
-import { describeTransientFailure, runTransient, transientFailureCode } from '../engine/transient.js';
+import { describeTransientFailure, runTransient, transientFailureCode, type SharedStepBudget, type TransientOptions } from '../engine/transient.js';
 import { MAX_BREAKPOINTS } from '../budgets.js';
 import { formatSI } from '../units.js';
-import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type LoadStepShape, type NodeCycle, type StageWaveform, type OutputStats, type SettlingPlan, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
+import { dipCorners, type BenchStart, type CycleOperatingPoint, type DipPlan, type DipShape, type LoadStepShape, type NodeCycle, type StageWaveform, type OutputStats, type SettlingOutcome, type SettlingPlan, type SineFedBench, type StageSetting, type SteadyWalk } from './bench.js';
 import { SteadyCheck } from './settling.js';
 import { settleCycle, type Probe } from './periodic.js';
 import { applyDrive, loadCurrentOf, onRail, vout, WaveRecorder, type Stage } from './stage.js';
@@ -185,6 +185,45 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
       },
     };
   };
+  /**
+   * A settling run (bench.ts, SettlingPlan.run) of `what` from `t0` for
+   * `tEnd` s, begun as `begin` says (runTransient's start options, step
+   * count and tolerance), its state compared with `target` at every whole
+   * source cycle from `t0`, each landed on (counted first, against
+   * MAX_BREAKPOINTS); times handed to `observe` and the settling time are
+   * from `t0`. Throws RailcheckError.
+   */
+  const settleOnCycles = (what: string, t0: number, tEnd: number, begin: Partial<TransientOptions>, extraBreakpoints: readonly number[], target: Float64Array, voltTol: number, observe: (t: number, x: Float64Array, state: Float64Array) => void, shared: SharedStepBudget): SettlingOutcome => {
+    const cycles = tEnd / period;
+    if (!(cycles <= MAX_BREAKPOINTS)) {
+      throw new RailcheckError([errorAt('budget-breakpoints', `${what} of the sine-fed stage: tmax spans ${cycles.toPrecision(3)} cycles of the source, each landed on, over the budget MAX_BREAKPOINTS = ${MAX_BREAKPOINTS}`, origin.pos, origin.lineText, 'a shorter tmax= or a lower source frequency')]);
+    }
+    const boundaries: number[] = [];
+    for (let k = 1; k * period < tEnd; k++) boundaries.push(t0 + k * period);
+    const check = new SteadyCheck(stage.compiled, target, voltTol);
+    let next = 0;
+    let at: number | undefined;
+    const r = runTransient(stage.compiled, {
+      tstep: period / 50,
+      tstop: t0 + tEnd,
+      junctionCmin: JUNCTION_CMIN,
+      ...begin,
+      extraBreakpoints: [...extraBreakpoints, ...boundaries],
+      keepTrace: false,
+      onAccept: (t, ctx) => {
+        observe(t - t0, ctx.x, ctx.state);
+        check.observe(ctx.x);
+        if (next >= boundaries.length || t < boundaries[next]! - 1e-9 * period) return false;
+        next++;
+        if (!check.near(ctx.x)) return false;
+        at = t - t0;
+        return true;
+      },
+      shared,
+    });
+    if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `${what} of the sine-fed stage: the transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))}`, origin.pos, origin.lineText)]);
+    return at === undefined ? { settled: false, furthest: check.furthest() } : { settled: true, at };
+  };
   return {
     kind: 'sine-fed',
     stage,
@@ -277,41 +316,11 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
         before: 0,
         checkEvery: period,
         run(tEnd, voltTol, observe, shared) {
-          // The state is compared with the settled cycle's at every whole cycle, each landed on: count them first.
-          const cycles = tEnd / period;
-          if (!(cycles <= MAX_BREAKPOINTS)) {
-            throw new RailcheckError([errorAt('budget-breakpoints', `startup of the sine-fed stage: tmax spans ${cycles.toPrecision(3)} cycles of the source, each landed on, over the budget MAX_BREAKPOINTS = ${MAX_BREAKPOINTS}`, origin.pos, origin.lineText, 'a shorter tmax= or a lower source frequency')]);
-          }
           // The sine from t = 0, the load at its own value: the nominal run's setting, from everything discharged.
           applyDrive(stage, { dc: stage.inputDc, waveform: sine, loadAmps: undefined }, voutNominal);
-          const boundaries: number[] = [];
-          for (let k = 1; k * period < tEnd; k++) boundaries.push(k * period);
           // The settled cycle starts at a whole number of periods after t = 0, as every cycle boundary here does.
-          const check = new SteadyCheck(stage.compiled, nominalStart.solution, voltTol);
-          let next = 0;
-          let at: number | undefined;
-          const r = runTransient(stage.compiled, {
-            tstep: period / 50,
-            tstop: tEnd,
-            discharged: true,
-            stepsPerCycle: STARTUP_STEPS_PER_CYCLE,
-            lteReltol: STARTUP_LTE_RELTOL,
-            junctionCmin: JUNCTION_CMIN,
-            extraBreakpoints: boundaries,
-            keepTrace: false,
-            onAccept: (t, ctx) => {
-              observe(t, ctx.x, ctx.state);
-              check.observe(ctx.x);
-              if (next >= boundaries.length || t < boundaries[next]! - 1e-9 * period) return false;
-              next++;
-              if (!check.near(ctx.x)) return false;
-              at = t;
-              return true;
-            },
-            shared,
-          });
-          if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `startup of the sine-fed stage: the transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))}`, origin.pos, origin.lineText)]);
-          return at === undefined ? { settled: false, furthest: check.furthest() } : { settled: true, at };
+          const begin: Partial<TransientOptions> = { discharged: true, stepsPerCycle: STARTUP_STEPS_PER_CYCLE, lteReltol: STARTUP_LTE_RELTOL };
+          return settleOnCycles('startup', 0, tEnd, begin, [], nominalStart.solution, voltTol, observe, shared);
         },
       };
     },
@@ -334,41 +343,12 @@ export function createSineFedBench(given: Stage, from?: BenchStart): SineFedBenc
         before: rising ? first.stats.min : first.stats.max,
         checkEvery: period,
         run(tEnd, voltTol, observe, shared) {
-          const cycles = tEnd / period;
-          if (!(cycles <= MAX_BREAKPOINTS)) {
-            throw new RailcheckError([errorAt('budget-breakpoints', `load step of the sine-fed stage: tmax spans ${cycles.toPrecision(3)} cycles of the source, each landed on, over the budget MAX_BREAKPOINTS = ${MAX_BREAKPOINTS}`, origin.pos, origin.lineText, 'a shorter tmax= or a lower source frequency')]);
-          }
           // The step starts at the start of a source cycle (the sine's phase as written) and ramps over `rise`, in the source's own sense.
           const ramp: WaveformSpec = { kind: 'pwl', times: [t0, t0 + step.rise], values: [l.direction * step.from, l.direction * step.to] };
           applyDrive(stage, { dc: stage.inputDc, waveform: sine, loadAmps: step.from, loadWaveform: ramp }, voutNominal);
-          const boundaries: number[] = [];
-          for (let k = 1; k * period < tEnd; k++) boundaries.push(t0 + k * period);
-          const check = new SteadyCheck(stage.compiled, second.next.solution, voltTol);
-          let next = 0;
-          let at: number | undefined;
-          const r = runTransient(stage.compiled, {
-            tstep: period / 50,
-            tstop: t0 + tEnd,
-            startTime: t0,
-            initialSolution: first.next.solution,
-            stepsPerCycle: DIP_STEPS_PER_CYCLE,
-            junctionCmin: JUNCTION_CMIN,
-            extraBreakpoints: [t0 + step.rise, ...boundaries],
-            keepTrace: false,
-            onAccept: (t, ctx) => {
-              // Times from the start of the step.
-              observe(t - t0, ctx.x, ctx.state);
-              check.observe(ctx.x);
-              if (next >= boundaries.length || t < boundaries[next]! - 1e-9 * period) return false;
-              next++;
-              if (!check.near(ctx.x)) return false;
-              at = t - t0;
-              return true;
-            },
-            shared,
-          });
-          if (!r.ok) throw new RailcheckError([errorAt(transientFailureCode(r), `load step of the sine-fed stage: the transient failed ${describeTransientFailure(r, (t) => formatSI(t, 's'))}`, origin.pos, origin.lineText)]);
-          return at === undefined ? { settled: false, furthest: check.furthest() } : { settled: true, at };
+          // Times from the start of the step.
+          const begin: Partial<TransientOptions> = { startTime: t0, initialSolution: first.next.solution, stepsPerCycle: DIP_STEPS_PER_CYCLE };
+          return settleOnCycles('load step', t0, tEnd, begin, [t0 + step.rise], second.next.solution, voltTol, observe, shared);
         },
       };
     },
