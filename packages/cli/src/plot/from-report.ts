@@ -4,25 +4,12 @@
  * (measureCurves), every `.tran`, `.dc` and `.ac` analysis of the netlist,
  * and beside them the figures and limits as the text report words them.
  */
-import { figureEntry, formatSI, histogram, phasorDb, type FigureCurves, type FigureUnit, type RunReport, type SpreadResult } from '@railcheck/core';
+import { figureEntry, figureUnit, formatSI, histogram, phasorDb, type FigureCurves, type RunReport, type SpreadResult } from '@railcheck/core';
 import { formatFigureValue } from '../present/figures.js';
 import { valuesOf } from '../present/spread.js';
+import type { PageFact } from './page.js';
 import type { PlotAxis, PlotSeries, PlotSpec } from './spec.js';
-
-/** One fact beside the plots: a figure's value or a limit's outcome. */
-export interface PlotFact {
-  readonly name: string;
-  readonly value: string;
-  /** `pass`, `FAIL`, `not evaluated` for a limit; absent for a figure. */
-  readonly status?: string;
-}
-
-/** A section of the page: a heading, its plots and the facts beside them. */
-export interface PlotSection {
-  readonly heading: string;
-  readonly specs: readonly PlotSpec[];
-  readonly facts: readonly PlotFact[];
-}
+import type { PlotSection } from './write.js';
 
 /** Most node series drawn in one analysis plot (the supply's nodes first); the CSV and JSON have them all. */
 const MAX_NODE_SERIES = 6;
@@ -158,21 +145,24 @@ export function analysisPlots(report: RunReport): PlotSpec[] {
   return out;
 }
 
+/** The registry entries of the stress tables' per-part ratios (figure registry). */
+const STRESS_ROWS: ReadonlySet<string> = new Set(['stress.<element>.<quantity>', 'short.<element>.<quantity>']);
+
 /** The figures and limits of a report, worded as the text report words them. */
-export function reportFacts(report: RunReport): PlotFact[] {
+export function reportFacts(report: RunReport): PageFact[] {
   const f = report.figures;
   if (!f) return [];
-  const facts: PlotFact[] = [];
+  const facts: PageFact[] = [];
   for (const g of f.figures) {
     if (!g.ok) continue;
     for (const [n, v] of Object.entries(g.values)) {
       // A stress table's ratios are many: the page shows the worst, the report has the table.
-      if (/^(stress|short)\.[^.]+(\.[^.]+)*\.(v|vr|vce|vcb|iavg|ipk|irms|ic|p)$/.test(n)) continue;
+      if (STRESS_ROWS.has(figureEntry(n)?.name ?? '')) continue;
       facts.push({ name: n, value: formatFigureValue(n, v, g.units[n]!) });
     }
   }
   for (const l of f.limits) {
-    const unit = figureEntry(l.figure)?.units[f.bench ?? 'dc'] as FigureUnit | undefined;
+    const unit = figureUnit(l.figure, f.bench ?? 'dc');
     const value = l.actual === undefined || unit === undefined ? '—' : formatFigureValue(l.figure, l.actual, unit);
     facts.push({ name: `${l.figure} ${l.op} ${l.value}`, value, status: l.status === 'pass' ? 'pass' : l.status === 'fail' ? 'FAIL' : 'not evaluated' });
   }
@@ -195,7 +185,7 @@ export function runSections(report: RunReport, curves: FigureCurves | undefined)
 }
 
 /** The sections of a compare: each curve of the two stages on the same axes, original and modified. */
-export function compareSections(original: FigureCurves | undefined, modified: FigureCurves | undefined, facts: readonly PlotFact[]): PlotSection[] {
+export function compareSections(original: FigureCurves | undefined, modified: FigureCurves | undefined, facts: readonly PageFact[]): PlotSection[] {
   const a = original ? curvePlots(original) : [];
   const b = modified ? curvePlots(modified) : [];
   const specs: PlotSpec[] = [];

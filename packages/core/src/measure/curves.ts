@@ -27,6 +27,9 @@ import type { SharedStepBudget } from '../engine/transient.js';
 import { BENCHES, dipCorners, type Bench, type StageWaveform } from './bench.js';
 import { dropout, fallVolts } from './dropout.js';
 import { WaveRecorder } from './stage.js';
+import { SAG_DEFAULTS } from './sag.js';
+import { DEFAULT_RIPPLE_FREQ, defaultRippleAmp } from './ripple.js';
+import { LINE_TO_RATIO } from './regulation.js';
 
 /** A point of a curve: x in the curve's unit, y in volts (or dB). */
 export interface CurvePoint {
@@ -129,7 +132,7 @@ function lineCurve(bench: Bench, figures: readonly FlatFigure[], notes: string[]
   const n = bench.input.nominal;
   const s = bench.input.sign;
   const line = figures.find((f) => f.figure === 'line');
-  const high = Math.abs(line?.keys.get('to') ?? 1.1 * n);
+  const high = Math.abs(line?.keys.get('to') ?? LINE_TO_RATIO * n);
   let d: CurvePoint | undefined;
   try {
     const r = dropout(bench, fallVolts(figures.find((f) => f.figure === 'dropout'), bench.voutNominal));
@@ -189,10 +192,10 @@ function rejectionCurve(bench: Bench, marked: number, notes: string[]): Rejectio
 /** The sag figure's dip at its depth, its waveforms recorded. */
 function sagWaveform(bench: Bench, f: FlatFigure): SagWaveform {
   const k = f.keys;
-  const depth = k.get('depth') ?? 0.2;
-  const edge = k.get('edge') ?? 1e-3;
-  const dur = k.get('dur') ?? 0.1;
-  const plan = bench.planDip({ edge, dur, ripple: k.get('ripple') ?? 0, freq: k.get('freq') ?? 100 });
+  const depth = k.get('depth') ?? SAG_DEFAULTS.depth;
+  const edge = k.get('edge') ?? SAG_DEFAULTS.edge;
+  const dur = k.get('dur') ?? SAG_DEFAULTS.dur;
+  const plan = bench.planDip({ edge, dur, ripple: k.get('ripple') ?? SAG_DEFAULTS.ripple, freq: k.get('freq') ?? SAG_DEFAULTS.freq });
   // One settled ripple cycle before the dip and five edges after the recovery, as the sag figure watches it.
   const start = Math.max(0, plan.t0 - plan.period);
   const tEnd = plan.t0 + 2 * edge + plan.dur + 5 * edge;
@@ -224,8 +227,8 @@ export function figureCurves(bench: Bench, figures: readonly FlatFigure[]): Figu
     }
   };
   const ripple = figures.find((f) => f.figure === 'ripple');
-  const hertz = ripple?.keys.get('freq') ?? 100;
-  const amp = ripple?.keys.get('amp') ?? 0.01 * Math.abs(bench.input.nominal);
+  const hertz = ripple?.keys.get('freq') ?? DEFAULT_RIPPLE_FREQ;
+  const amp = ripple?.keys.get('amp') ?? defaultRippleAmp(bench);
   const sag = figures.find((f) => f.figure === 'sag');
   return {
     bench: bench.kind,

@@ -32,6 +32,10 @@ export interface LineRegulation {
   readonly pct: number | undefined;
 }
 
+/** Default ends of the line range as ratios of the nominal input (figures.md, line). */
+export const LINE_FROM_RATIO = 0.9;
+export const LINE_TO_RATIO = 1.1;
+
 /** Options of {@link lineRegulation}: input levels (defaults 0.9 and 1.1 × nominal). */
 export interface LineOptions {
   readonly from?: number | undefined;
@@ -43,8 +47,8 @@ export function lineRegulation(bench: Bench, opts: LineOptions = {}): LineRegula
   BENCHES.check('lineRegulation', 'bench', bench);
   checkOptions('lineRegulation', opts, { from: 'finite', to: 'finite' });
   const nominal = bench.input.nominal;
-  const from = opts.from ?? 0.9 * nominal;
-  const to = opts.to ?? 1.1 * nominal;
+  const from = opts.from ?? LINE_FROM_RATIO * nominal;
+  const to = opts.to ?? LINE_TO_RATIO * nominal;
   if (from === to) throw new RailcheckError([errorAt('bad-figure', `line regulation needs two different inputs (from = to = ${bench.input.describe(from)})`, bench.stage.supply.origin.pos)]);
   const load = bench.loadNominal;
   const voutFrom = bench.solve({ level: from, loadAmps: load }, 'line regulation, low input').mean;

@@ -47,6 +47,14 @@ export interface RippleRejection {
   readonly warnings: readonly Diagnostic[];
 }
 
+/** Default ripple frequency, Hz: full-wave rectified 50 Hz mains (figures.md, ripple). */
+export const DEFAULT_RIPPLE_FREQ = 100;
+
+/** Default ripple amplitude added to a DC input, V peak: 1 % of the nominal input (figures.md, ripple). */
+export function defaultRippleAmp(bench: Bench): number {
+  return 0.01 * Math.abs(bench.input.nominal);
+}
+
 /** Largest disagreement between the methods before a warning, dB (figures.md). */
 export const RIPPLE_AGREEMENT_DB = 0.5;
 
@@ -59,8 +67,8 @@ function dbText(db: number): string {
 export function rippleRejection(bench: Bench, opts: RippleOptions = {}): RippleRejection {
   BENCHES.check('rippleRejection', 'bench', bench);
   checkOptions('rippleRejection', opts, { freq: 'finite', amp: 'finite', method: ['ac', 'tran', 'both'] });
-  const freq = opts.freq ?? 100;
-  const amp = opts.amp ?? 0.01 * Math.abs(bench.input.nominal);
+  const freq = opts.freq ?? DEFAULT_RIPPLE_FREQ;
+  const amp = opts.amp ?? defaultRippleAmp(bench);
   const method = opts.method ?? 'both';
   requireKey('ripple', 'freq', freq, positive, '> 0 Hz');
   requireKey('ripple', 'amp', amp, (v) => Number.isFinite(v) && v !== 0, '≠ 0 V');

@@ -136,16 +136,19 @@ export interface SagTrialFailure {
   readonly reason: string;
 }
 
+/** Defaults of the sag figure's keys (figures.md, sag): depth (ratio), edge and dur (s), ripple (V peak) and its freq (Hz). */
+export const SAG_DEFAULTS = { depth: 0.2, edge: 1e-3, dur: 0.1, ripple: 0, freq: 100 } as const;
+
 /** Measures ride-through of an input dip. Throws RailcheckError when the dip asked for cannot be simulated. */
 export function sagRideThrough(bench: Bench, opts: SagOptions = {}): SagRideThrough {
   BENCHES.check('sagRideThrough', 'bench', bench);
   checkOptions('sagRideThrough', opts, { depth: 'finite', dur: 'finite', edge: 'finite', fall: 'finite', ripple: 'finite', freq: 'finite' });
-  const depth = opts.depth ?? 0.2;
-  const edge = opts.edge ?? 1e-3;
+  const depth = opts.depth ?? SAG_DEFAULTS.depth;
+  const edge = opts.edge ?? SAG_DEFAULTS.edge;
   const criterion = opts.fall ?? DEFAULT_DROPOUT_FALL;
-  const dur = opts.dur ?? 0.1;
-  const ripple = opts.ripple ?? 0;
-  const freq = opts.freq ?? 100;
+  const dur = opts.dur ?? SAG_DEFAULTS.dur;
+  const ripple = opts.ripple ?? SAG_DEFAULTS.ripple;
+  const freq = opts.freq ?? SAG_DEFAULTS.freq;
   requireKey('sag', 'depth', depth, (v) => v > 0 && v <= 1, 'in (0, 1] (0 % to 100 % of the nominal input)');
   requireKey('sag', 'dur', dur, (v) => positive(v) && v <= MAX_SAG_DURATION, `in (0, ${MAX_SAG_DURATION}] s`);
   // edge=0 is left to the transient, which reports the abrupt dip as a step it cannot take (a located reason).
