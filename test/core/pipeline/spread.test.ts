@@ -17,7 +17,7 @@ import { fileURLToPath } from 'node:url';
 import { build } from 'esbuild';
 import { beforeAll, describe, expect, test } from 'vitest';
 import normalCdf from '@stdlib/stats-base-dists-normal-cdf';
-import { mergeSpreadResults, parseNetlist, runSampleNetlist, runSampleNetlistFile, spreadNetlist, spreadNetlistFile, type SpreadResult } from '@railcheck/core';
+import { mergeSpreadResults, parseNetlist, runNetlist, runSampleNetlist, runSampleNetlistFile, spreadNetlist, spreadNetlistFile, type SpreadResult } from '@railcheck/core';
 import { elaborate, sampledCircuit, spreadSetup } from '@railcheck/core/internal';
 
 const root = fileURLToPath(new URL('../../../', import.meta.url));
@@ -307,5 +307,21 @@ describe('a spread on a model no element uses', () => {
     expect(res.warnings.filter((w) => w.code === 'spread-unused-model').map((w) => w.pos?.line)).toEqual([8]);
     const alone = await spreadNetlist(divider(unused), { runs: 3, jobs: 1 });
     expect(!alone.ok && alone.errors[0]!.code).toBe('spread-none');
+  });
+});
+
+describe('a spread on a model in its datasheet form (docs/models.md)', () => {
+  const lines = (model: string, spread: string): string => ['t', 'V1 a 0 12', 'R1 a k 1k', 'D1 0 k Z', model, spread, '.op', '.end', ''].join('\n');
+
+  test('is checked on the parameter the datasheet keys resolve to: BV = VZ − IZT·RS is there to spread, and its ends within range', () => {
+    expect(runNetlist(lines('.model Z D (VZ=5.6 IZT=5m ZZT=10)', '.spread Z.BV 5%')).ok).toBe(true);
+    // A model of forward points only has no BV: a spread of it is refused, as on a model written with IS and N.
+    const none = runNetlist(lines('.model Z D (VF=0.7 IF=10m)', '.spread Z.BV 5%'));
+    expect(!none.ok && none.errors.map((e) => e.code)).toEqual(['bad-spread-target']);
+  });
+
+  test('a datasheet line with an error is that one error, not a second one about the spread', () => {
+    const r = runNetlist(lines('.model Z D (VZ={nope} IZT=5m)', '.spread Z.BV 5%'));
+    expect(!r.ok && r.errors.map((e) => e.code)).toEqual(['undefined-parameter']);
   });
 });

@@ -6,7 +6,7 @@
  * element or model parameter exists and has a value to spread) and its
  * ratio range. Each error is at the key's or the line's own place.
  */
-import { DEVICES, describeRange, inRange, modelKindOf, paramTable, resolveSheet, sheetKeys, type ValueRange } from '@railcheck/devices';
+import { DEVICES, describeRange, inRange, modelKindOf, paramTable, sheetKeys, type ValueRange } from '@railcheck/devices';
 import { match } from 'ts-pattern';
 import { describeKeyBounds, FIGURE_KIND_INFO, withinKeyBounds, type BenchKind, type FigureNumberKey } from '../figure-registry.js';
 import type { CardOrigin, SupplyCard } from '../netlist/ast.js';
@@ -120,12 +120,14 @@ export function checkSpread(ev: Evaluator, card: SpreadCard, spread: FlatSpread,
     ev.fail(card, 'bad-spread-target', `.spread ${card.target}: ${param} is a rating, not a value a part varies by`, 'a parameter of the device equations');
     return;
   }
-  // A model in its datasheet form is spread on the parameters its keys resolve to (docs/models.md, "Datasheet form").
-  const kind = modelKindOf(model.type);
-  const sheet = model.params.some((a) => sheetKeys(kind).some((k) => k.name === a.name.toUpperCase()));
-  const resolved = sheet ? resolveSheet(kind, new Map(model.params.map((a) => [a.name.toUpperCase(), ev.num(a.value, top)] as const))) : undefined;
+  // The value the model gives is the one its elements hold, as elaborated: a datasheet form resolved (docs/models.md,
+  // "Datasheet form"), its errors already reported. A datasheet-form model no element uses (or whose line has an
+  // error) has nothing to check: such a spread varies nothing, and spread-sample.ts notes it.
+  const user = [...names.values()].find((el) => (el.kind === 'diode' || el.kind === 'bjt') && el.modelName.toLowerCase() === model.name.toLowerCase());
+  const sheet = model.params.some((a) => sheetKeys(modelKindOf(model.type)).some((k) => k.name === a.name.toUpperCase()));
+  if (!user && sheet) return;
   const given = model.params.find((a) => a.name.toUpperCase() === param);
-  const value = resolved?.ok ? (resolved.params.get(param) ?? spec.default) : given ? ev.num(given.value, top) : spec.default;
+  const value = user && (user.kind === 'diode' || user.kind === 'bjt') ? (user.model as unknown as Record<string, number | undefined>)[param] : given ? ev.num(given.value, top) : spec.default;
   if (value === undefined) {
     ev.fail(card, 'bad-spread-target', `.spread ${card.target}: model ${model.name} gives no ${param} (${spec.doc}: none), so there is no value to spread`, `${param}=<value> on .model ${model.name}`);
     return;
