@@ -73,20 +73,16 @@ export function modelLine(card: ModelCard, name?: string): string {
 }
 
 
-/** An operating point of a test circuit: node voltages and element currents, or the errors. */
-function op(lines: readonly string[], temps?: readonly number[]): { nodes: Record<string, number>; currents: Record<string, number> }[] | Diagnostic[] {
+/** The operating points of a test circuit, one per temperature: node voltages and element currents. Throws SheetFailure with the errors of a circuit that does not solve. */
+function op(lines: readonly string[], temps?: readonly number[]): { nodes: Readonly<Record<string, number>>; currents: Readonly<Record<string, number>> }[] {
   const r = runNetlist([...lines, ...(temps ? [`.temp ${temps.join(' ')}`] : []), '.op', '.end', ''].join('\n'), { file: '(model test circuit)' });
-  if (!r.ok) return [...r.errors];
-  return r.report.operatingPoints.map((p) => ({ nodes: { ...p.nodes }, currents: { ...p.currents } }));
+  if (!r.ok) throw new SheetFailure(r.errors);
+  return r.report.operatingPoints.map((p) => ({ nodes: p.nodes, currents: p.currents }));
 }
-
-const isErrors = (x: unknown[]): x is Diagnostic[] => x.length > 0 && typeof (x[0] as Diagnostic).message === 'string' && 'severity' in (x[0] as object);
 
 /** Number text that reads back exactly. */
 const n = (x: number): string => String(x);
 
-/** A condition as people read it (4 significant digits, SI prefix). */
-const si = (x: number, unit: string): string => formatSI(x, unit);
 
 /** The values of the resolved `card` (physical parameters, plain numbers), the test conditions defaulting to the datasheet keys `given` (evaluated, upper-case); throws SheetFailure from a test circuit. */
 function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, conditions: SheetConditions): ImpliedSheet {
@@ -98,8 +94,7 @@ function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, condi
     const forward = ifs.length > 0 ? ifs : [DEFAULT_IC_TEST];
     forward.forEach((i, k) => {
       const r = op(['diode forward point', `I1 0 a ${n(i)}`, 'D1 a 0 M', model]);
-      if (isErrors(r)) throw new SheetFailure(r);
-      values.push({ key: k === 0 ? 'VF' : `VF${k + 1}`, value: r[0]!.nodes['a']!, unit: 'V', at: `IF = ${si(i, 'A')}`, conditions: { IF: i } });
+      values.push({ key: k === 0 ? 'VF' : `VF${k + 1}`, value: r[0]!.nodes['a']!, unit: 'V', at: `IF = ${formatSI(i, 'A')}`, conditions: { IF: i } });
     });
     // A model with breakdown: the Zener's values.
     const hasBv = card.params.some((p) => p.name.toUpperCase() === 'BV');
@@ -107,17 +102,16 @@ function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, condi
       const izt = conditions.izt ?? given.get('IZT') ?? (given.has('VZ') ? DEFAULT_IZT : (given.get('IBV') ?? 1e-3));
       const zener = (i: number, temps?: readonly number[]): number[] => {
         const r = op(['zener point', `I1 0 k ${n(i)}`, 'D1 0 k M', model], temps);
-        if (isErrors(r)) throw new SheetFailure(r);
-        return r.map((p) => p.nodes['k']!);
+          return r.map((p) => p.nodes['k']!);
       };
       const [vz] = zener(izt);
-      values.push({ key: 'VZ', value: vz!, unit: 'V', at: `IZT = ${si(izt, 'A')}`, conditions: { IZT: izt } });
+      values.push({ key: 'VZ', value: vz!, unit: 'V', at: `IZT = ${formatSI(izt, 'A')}`, conditions: { IZT: izt } });
       const slope = (i: number): number => (zener(1.01 * i)[0]! - zener(0.99 * i)[0]!) / (0.02 * i);
-      values.push({ key: 'ZZT', value: slope(izt), unit: 'Ω', at: `IZT = ${si(izt, 'A')}, a step of ±1 %`, conditions: { IZT: izt } });
+      values.push({ key: 'ZZT', value: slope(izt), unit: 'Ω', at: `IZT = ${formatSI(izt, 'A')}, a step of ±1 %`, conditions: { IZT: izt } });
       const izk = conditions.izk ?? given.get('IZK');
-      if (izk !== undefined) values.push({ key: 'ZZK', value: slope(izk), unit: 'Ω', at: `IZK = ${si(izk, 'A')}, a step of ±1 %`, conditions: { IZK: izk } });
+      if (izk !== undefined) values.push({ key: 'ZZK', value: slope(izk), unit: 'Ω', at: `IZK = ${formatSI(izk, 'A')}, a step of ±1 %`, conditions: { IZK: izk } });
       const [cold, warm] = zener(izt, [26, 28]);
-      values.push({ key: 'TCVZ', value: (warm! - cold!) / 2, unit: 'V/K', at: `IZT = ${si(izt, 'A')}, 26 °C to 28 °C`, conditions: { IZT: izt, T1: 26, T2: 28 } });
+      values.push({ key: 'TCVZ', value: (warm! - cold!) / 2, unit: 'V/K', at: `IZT = ${formatSI(izt, 'A')}, 26 °C to 28 °C`, conditions: { IZT: izt, T1: 26, T2: 28 } });
     }
     return { ok: true, type: card.type, values };
   }
@@ -128,7 +122,6 @@ function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, condi
   // Magnitudes: a PNP's collector sits at −VCE and its base current flows out.
   const point = (ib: number, v: number): { ic: number; vbe: number } => {
     const r = op(['transistor point', `VC c 0 ${n(pnp ? -v : v)}`, pnp ? `IB b 0 ${n(ib)}` : `IB 0 b ${n(ib)}`, 'Q1 c b 0 M', model]);
-    if (isErrors(r)) throw new SheetFailure(r);
     return { ic: Math.abs(r[0]!.currents['Q1.c']!), vbe: Math.abs(r[0]!.nodes['b']!) };
   };
   /** The base current (A) that gives a collector current of `ic` A at VCE: secant on ln IB against ln IC. */
@@ -145,11 +138,11 @@ function measureSheet(card: ModelCard, given: ReadonlyMap<string, number>, condi
     throw new SheetFailure([errorAt('model-test', `no base current gives IC = ${ic} A at VCE = ${vce} V`, undefined, undefined, 'a transistor model in forward operation at the test point')]);
   };
   const ibh = baseFor(ichfe);
-  values.push({ key: 'HFE', value: ichfe / ibh, unit: '', at: `IC = ${si(ichfe, 'A')}, VCE = ${si(vce, 'V')}`, conditions: { IC: ichfe, VCE: vce } });
+  values.push({ key: 'HFE', value: ichfe / ibh, unit: '', at: `IC = ${formatSI(ichfe, 'A')}, VCE = ${formatSI(vce, 'V')}`, conditions: { IC: ichfe, VCE: vce } });
   const ibv = icvbe === ichfe ? ibh : baseFor(icvbe);
-  values.push({ key: 'VBE', value: point(ibv, vce).vbe, unit: 'V', at: `IC = ${si(icvbe, 'A')}, VCE = ${si(vce, 'V')}`, conditions: { IC: icvbe, VCE: vce } });
+  values.push({ key: 'VBE', value: point(ibv, vce).vbe, unit: 'V', at: `IC = ${formatSI(icvbe, 'A')}, VCE = ${formatSI(vce, 'V')}`, conditions: { IC: icvbe, VCE: vce } });
   const dv = Math.min(0.5, vce / 4);
-  values.push({ key: 'HOE', value: (point(ibh, vce + dv).ic - point(ibh, vce - dv).ic) / (2 * dv), unit: 'S', at: `IC = ${si(ichfe, 'A')}, VCE = ${si(vce, 'V')} ± ${si(dv, 'V')}, IB held`, conditions: { IC: ichfe, VCE: vce, DVCE: dv, IB: ibh } });
+  values.push({ key: 'HOE', value: (point(ibh, vce + dv).ic - point(ibh, vce - dv).ic) / (2 * dv), unit: 'S', at: `IC = ${formatSI(ichfe, 'A')}, VCE = ${formatSI(vce, 'V')} ± ${formatSI(dv, 'V')}, IB held`, conditions: { IC: ichfe, VCE: vce, DVCE: dv, IB: ibh } });
   return { ok: true, type: card.type, values };
 }
 
