@@ -27,7 +27,7 @@ import { dissipates } from './dissipation.js';
 import { requireKey } from './keys.js';
 import { MAX_SHORT_OHMS } from '../figure-registry.js';
 import { describeSteady } from './periodic.js';
-import { DEFAULT_TJMAX } from './thermal.js';
+import { junctionOf } from './thermal.js';
 
 /** Default resistance of the short, Ω: 10 mΩ, about a short wire and a clip's contact (common practice, no source). */
 export const DEFAULT_SHORT_OHMS = 0.01;
@@ -124,7 +124,8 @@ export function outputShort(bench: Bench, opts: ShortOptions = {}): OutputShort 
   const junctions = main.compiled.elements.flatMap((el) => {
     const rth = el.part.rth;
     if (rth === undefined || (el.kind !== 'diode' && el.kind !== 'bjt')) return [];
-    return [{ element: el.name, tj: ambient + (pd[el.name] ?? 0) * (rth + (el.part.rthsink ?? 0)), tjmax: el.part.tjmax ?? DEFAULT_TJMAX[el.kind] }];
+    const { tj, tjmax } = junctionOf(el, rth, pd[el.name] ?? 0, ambient);
+    return [{ element: el.name, tj, tjmax }];
   });
   return { ohms, current: vout / ohms, vout, pin: -(power[main.input.name] ?? 0), pd, junctions, ambient, rows, how };
 }

@@ -115,6 +115,17 @@ const isSemiconductor = (el: FlatElement): el is Semiconductor => el.kind === 'd
 /** Total thermal resistance junction to ambient, K/W. */
 const totalRth = (rth: number, rthsink: number | undefined): number => rth + (rthsink ?? 0);
 
+/**
+ * The junction of a diode or transistor of thermal resistance `rth` (K/W,
+ * its `rth=`) dissipating `power` W in `ambient` °C: Tj = Ta + P·(rth +
+ * rthsink) (JEDEC JESD51-1: the rise is
+ * P·(R_th(j-c) + R_th(c-a)), or P·R_th(j-a)), a negative P counting as 0,
+ * and its tjmax (`tjmax=`, else {@link DEFAULT_TJMAX}), °C.
+ */
+export function junctionOf(el: Extract<FlatElement, { kind: 'diode' | 'bjt' }>, rth: number, power: number, ambient: number): { tj: number; tjmax: number; tjmaxFrom: 'part' | 'default' } {
+  return { tj: ambient + Math.max(power, 0) * totalRth(rth, el.part.rthsink), tjmax: el.part.tjmax ?? DEFAULT_TJMAX[el.kind], tjmaxFrom: el.part.tjmax === undefined ? 'default' : 'part' };
+}
+
 /** The largest heatsink (or, without rthsink=, total) thermal resistance that keeps the junction at tjmax, with the reason when it has no finite positive value. */
 function rthsinkMaxOf(power: number, rth: number, rthsink: number | undefined, tjmax: number, ambient: number): ThermalRow['rthsinkMax'] {
   if (!(power > THERMAL_MIN_POWER)) return { ok: false, reason: `it dissipates ${formatSI(Math.max(power, 0), 'W')} (below ${formatSI(THERMAL_MIN_POWER, 'W')}): any heatsink keeps the junction at ambient` };
@@ -153,10 +164,8 @@ export function thermal(bench: Bench, opts: ThermalOptions = {}): Thermal {
       const rth = el.part.rth!;
       const rthsink = el.part.rthsink;
       const power = d.pd[el.name] ?? 0;
-      const tjmax = el.part.tjmax ?? DEFAULT_TJMAX[el.kind];
-      // JESD51-1: junction rise = P · (R_th(j-c) + R_th(c-a)), or P · R_th(j-a).
-      const tj = ambient + Math.max(power, 0) * totalRth(rth, rthsink);
-      return { element: el.name, kind: el.kind, power, rth, rthsink, tj, tjmax, tjmaxFrom: el.part.tjmax === undefined ? 'default' : 'part', margin: tjmax - tj, rthsinkMax: rthsinkMaxOf(power, rth, rthsink, tjmax, ambient) };
+      const { tj, tjmax, tjmaxFrom } = junctionOf(el, rth, power, ambient);
+      return { element: el.name, kind: el.kind, power, rth, rthsink, tj, tjmax, tjmaxFrom, margin: tjmax - tj, rthsinkMax: rthsinkMaxOf(power, rth, rthsink, tjmax, ambient) };
     });
     const selfHeat = opts.selfHeat ? selfHeatedPoint(bench, rated, ambient) : undefined;
     return { ambient, rows, corners: d.corners, selfHeat, notes };
