@@ -158,10 +158,12 @@ function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string
   const plot = flags.get('plot');
   // The curves and waveforms behind the figures are measured once, for the plots and the CSV files.
   const notes: string[] = [];
-  const curves = typeof plot === 'string' || typeof csv === 'string' ? curvesOf(result.report, notes) : undefined;
+  const curves = typeof plot === 'string' ? curvesOf(result.report, notes) : typeof csv === 'string' ? curvesOf(result.report, notes, ['ripple', 'sag']) : undefined;
   if (typeof csv === 'string') {
     const written = writeCsv(io, result.report, csv, steps, file, curves);
     if (written !== EXIT_OK) return written;
+    // Without --plot, which prints them, a waveform left out says why here.
+    if (typeof plot !== 'string') for (const n of notes) io.err(`railcheck run: --csv: ${n}`);
   }
   if (typeof plot === 'string') {
     const r = result.report;

@@ -98,7 +98,7 @@ export { outputShort, DEFAULT_SHORT_OHMS } from './measure/short.js';
 export { measureCurves } from './pipeline/curves.js';
 export type { CurveOptions, CurvesResult } from './pipeline/curves.js';
 export { figureCurves } from './measure/curves.js';
-export type { FigureCurves, LineCurve, LoadCurve, RejectionCurve, RippleWaveform, SagWaveform, Curve, CurvePoint } from './measure/curves.js';
+export type { CurveKind, FigureCurves, LineCurve, LoadCurve, RejectionCurve, RippleWaveform, SagWaveform, Curve, CurvePoint } from './measure/curves.js';
 export type { StageWaveform } from './measure/bench.js';
 export type { OutputShort, ShortOptions } from './measure/short.js';
 export { BandWatch, SteadyCheck } from './measure/settling.js';

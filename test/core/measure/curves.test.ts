@@ -11,7 +11,7 @@
  * input follows the dip's corners exactly (figures.md, sag).
  */
 import { describe, expect, test } from 'vitest';
-import { createBench, runNetlist } from '@railcheck/core';
+import { createBench, measureCurves, runNetlist } from '@railcheck/core';
 import { figureCurves } from '@railcheck/core/internal';
 
 const V = 12;
@@ -110,5 +110,18 @@ describe('the dip waveform', () => {
     // Piecewise-linear input and a resistive stage: observed 1.2e-14 V; bound 4e-14 V.
     expect(worst).toBeLessThan(4e-14);
     expect(Math.max(...w.time)).toBeGreaterThan(0.022);
+  });
+});
+
+describe('asking for some of the curves', () => {
+  test('only the kinds asked for are measured; a kind that is not one is a bad argument', () => {
+    const { bench, flat } = benchOf(divider(['.figure line', '.figure ripple freq=100 amp=0.1'], '100u'));
+    const c = figureCurves(bench, flat.figures, ['ripple']);
+    expect([c.line, c.load, c.rejection, c.sag]).toEqual([undefined, undefined, undefined, undefined]);
+    expect(c.ripple!.time.length).toBeGreaterThan(0);
+    const r = runNetlist([...divider(['.figure line']), '.end', ''].join('\n'));
+    if (!r.ok) throw new Error('the divider does not run');
+    const bad = measureCurves(r.report.compiled, { kinds: ['nope' as never] });
+    expect(!bad.ok && bad.errors[0]!.code).toBe('bad-argument');
   });
 });

@@ -3,16 +3,16 @@
  * curves measured on their own bench, turned into plot specs and written
  * as SVG files and one page; a failure is a message, never a throw.
  */
-import { measureCurves, type FigureCurves, type RunReport } from '@railcheck/core';
+import { measureCurves, type CurveKind, type FigureCurves, type RunReport } from '@railcheck/core';
 import { writePlots, type PlotFolder } from './write.js';
 
 /** The option as every command lists it. */
 export const PLOT_FLAG = { name: 'plot', short: 'p', takesValue: true, valueName: 'DIR', help: 'write the plots (SVG) and one HTML page of them into the folder DIR (docs/plots.md)' } as const;
 
-/** The curves of a run's figures, or undefined with the reason added to `notes` when no bench can be built. */
-export function curvesOf(report: RunReport, notes: string[]): FigureCurves | undefined {
+/** The curves of a run's figures (`kinds`, default all), or undefined with the reason added to `notes` when no bench can be built. */
+export function curvesOf(report: RunReport, notes: string[], kinds?: readonly CurveKind[]): FigureCurves | undefined {
   if (!report.circuit.supply || report.circuit.figures.length === 0) return undefined;
-  const r = measureCurves(report.compiled);
+  const r = measureCurves(report.compiled, kinds ? { kinds } : {});
   if (!r.ok) {
     notes.push(`the curves behind the figures were not measured: ${r.errors.map((e) => e.message).join('; ')}`);
     return undefined;

@@ -73,6 +73,12 @@ export interface SagWaveform extends StageWaveform {
   readonly corners: readonly number[];
 }
 
+/** The curves and waveforms {@link figureCurves} can measure. */
+export type CurveKind = 'line' | 'load' | 'rejection' | 'ripple' | 'sag';
+
+/** Every curve kind, in the order figureCurves measures them. */
+export const CURVE_KINDS: readonly CurveKind[] = ['line', 'load', 'rejection', 'ripple', 'sag'];
+
 /** Everything measured for the plots, and the curves that could not be, with the reason. */
 export interface FigureCurves {
   readonly bench: BenchKind;
@@ -211,13 +217,15 @@ function sagWaveform(bench: Bench, f: FlatFigure): SagWaveform {
  * Measures the curves and waveforms of the figures the netlist asks for
  * (line and dropout give the line curve, load the load curve, ripple the
  * rejection curve and the ripple waveform, sag the dip waveform), on the
- * bench. Never throws for a curve that cannot be measured: it is left out,
- * with the reason in `notes`.
+ * bench; `kinds` (default all) says which of them to measure. Never throws
+ * for a curve that cannot be measured: it is left out, with the reason in
+ * `notes`.
  */
-export function figureCurves(bench: Bench, figures: readonly FlatFigure[]): FigureCurves {
+export function figureCurves(bench: Bench, figures: readonly FlatFigure[], kinds: readonly CurveKind[] = CURVE_KINDS): FigureCurves {
   BENCHES.check('figureCurves', 'bench', bench);
   const notes: string[] = [];
   const has = (kind: FlatFigure['figure']): boolean => figures.some((f) => f.figure === kind);
+  const want = (k: CurveKind): boolean => kinds.includes(k);
   const guarded = <T>(what: string, body: () => T): T | undefined => {
     try {
       return body();
@@ -232,11 +240,11 @@ export function figureCurves(bench: Bench, figures: readonly FlatFigure[]): Figu
   const sag = figures.find((f) => f.figure === 'sag');
   return {
     bench: bench.kind,
-    line: has('line') || has('dropout') ? guarded('line curve', () => lineCurve(bench, figures, notes)) : undefined,
-    load: has('load') ? guarded('load curve', () => loadCurve(bench, figures, notes)) : undefined,
-    rejection: ripple ? guarded('rejection curve', () => rejectionCurve(bench, hertz, notes)) : undefined,
-    ripple: ripple ? guarded('ripple waveform', () => ({ ...bench.rippleWaveform(hertz, amp, bench.kind === 'dc' ? 3 : 2), hertz: bench.kind === 'dc' ? hertz : 0, amp: bench.kind === 'dc' ? amp : 0 })) : undefined,
-    sag: sag ? guarded('sag waveform', () => sagWaveform(bench, sag)) : undefined,
+    line: want('line') && (has('line') || has('dropout')) ? guarded('line curve', () => lineCurve(bench, figures, notes)) : undefined,
+    load: want('load') && has('load') ? guarded('load curve', () => loadCurve(bench, figures, notes)) : undefined,
+    rejection: want('rejection') && ripple ? guarded('rejection curve', () => rejectionCurve(bench, hertz, notes)) : undefined,
+    ripple: want('ripple') && ripple ? guarded('ripple waveform', () => ({ ...bench.rippleWaveform(hertz, amp, bench.kind === 'dc' ? 3 : 2), hertz: bench.kind === 'dc' ? hertz : 0, amp: bench.kind === 'dc' ? amp : 0 })) : undefined,
+    sag: want('sag') && sag ? guarded('sag waveform', () => sagWaveform(bench, sag)) : undefined,
     notes,
   };
 }

@@ -8,12 +8,14 @@ import { RailcheckError } from '../errors.js';
 import { COMPILED_CIRCUITS, type CompiledCircuit } from '../engine/compile.js';
 import { checkOptions, argumentDiagnostic, isRecord } from '../arguments.js';
 import { createBench } from '../measure/create-bench.js';
-import { figureCurves, type FigureCurves } from '../measure/curves.js';
+import { CURVE_KINDS, figureCurves, type CurveKind, type FigureCurves } from '../measure/curves.js';
 
 /** Options of {@link measureCurves}. */
 export interface CurveOptions {
   /** Temperature, °C (default the circuit's first `.temp`, 27 °C without one). */
   readonly celsius?: number | undefined;
+  /** Which curves to measure (default all the figures give): `--csv` alone needs only the waveforms. */
+  readonly kinds?: readonly CurveKind[] | undefined;
 }
 
 /** The curves, or why none could be measured (the stage's nominal point, or a bad argument). */
@@ -31,9 +33,10 @@ export function measureCurves(compiled: CompiledCircuit, options: CurveOptions =
   if (!isRecord(options)) return { ok: false, errors: [argumentDiagnostic('measureCurves', 'options', 'an object', options)] };
   try {
     checkOptions('measureCurves', options, { celsius: 'finite' });
-    const celsius = (options as CurveOptions).celsius;
+    const { celsius, kinds } = options as CurveOptions;
+    if (kinds !== undefined && !(Array.isArray(kinds) && kinds.every((k) => CURVE_KINDS.includes(k)))) return { ok: false, errors: [argumentDiagnostic('measureCurves', 'options.kinds', `a list of ${CURVE_KINDS.join(', ')}`, kinds)] };
     const bench = createBench(compiled, celsius === undefined ? {} : { celsius });
-    return { ok: true, curves: figureCurves(bench, compiled.flat.figures) };
+    return { ok: true, curves: figureCurves(bench, compiled.flat.figures, kinds) };
   } catch (e) {
     if (e instanceof RailcheckError) return { ok: false, errors: e.diagnostics };
     throw e;
