@@ -91,6 +91,12 @@ describe('railcheck run --plot', () => {
     expect(r.err).toMatch(/railcheck run: --plot: .* exists and is not a folder/);
     expect(r.err).not.toMatch(/\n\s+at /);
     expect(readdirSync(dir)).toEqual([]);
+    // A folder that cannot be made under /proc on Linux: a message at once (node's own recursive mkdir never returns there).
+    if (process.platform === 'linux') {
+      const proc = await cli(['run', file, '--plot', '/proc/railcheck-no-such/plots']);
+      expect(proc.status).toBe(2);
+      expect(proc.err).toMatch(/railcheck run: --plot: cannot make the folder \/proc\/railcheck-no-such\/plots .*no plot was written/);
+    }
   }, 60_000);
 });
 

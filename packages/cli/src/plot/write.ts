@@ -4,8 +4,8 @@
  * whole-file writes as `--csv` (present/files.ts). A failure comes back as
  * a message for the command to print, never as a thrown error.
  */
-import { mkdirSync, statSync } from 'node:fs';
-import { join, resolve } from 'node:path';
+import { existsSync, mkdirSync, statSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
 import { writeFailure, writeOutputFiles, type OutputFile } from '../present/files.js';
 import { renderPage, type PageFact } from './page.js';
 import type { PlotSpec } from './spec.js';
@@ -55,6 +55,21 @@ export function plotFiles(dir: string, folder: PlotFolder): { readonly ok: true;
 }
 
 /**
+ * Makes the folder `dir` and its missing parents, one level at a time,
+ * each with a plain mkdir: a parent that cannot hold folders fails at once
+ * (mkdirSync's own `recursive` walk never returns under /proc on Linux,
+ * node 20: found trying `--plot /proc/x`). Throws the file system's error.
+ */
+function makeFolder(dir: string): void {
+  const missing: string[] = [];
+  for (let p = resolve(dir); !existsSync(p); p = dirname(p)) {
+    missing.push(p);
+    if (dirname(p) === p) break;
+  }
+  for (const m of missing.reverse()) mkdirSync(m);
+}
+
+/**
  * Writes the plot folder `dir` (created with its parents when missing):
  * every plot of `folder` as `<id>.svg` and the page `index.html`, all of
  * them or none, never over the netlist `protect` (writeOutputFiles).
@@ -68,7 +83,7 @@ export function writePlots(dir: string, folder: PlotFolder, protect: string): Pl
     if (!statSync(dir).isDirectory()) return { ok: false, message: `${dir} exists and is not a folder` };
   } catch {
     try {
-      mkdirSync(dir, { recursive: true });
+      makeFolder(dir);
     } catch (e) {
       return { ok: false, message: `cannot make the folder ${dir} (${writeFailure(resolve(dir), e)}); no plot was written` };
     }
