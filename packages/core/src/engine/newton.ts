@@ -14,6 +14,7 @@
  */
 import { luFactor, luSolve } from './lu.js';
 import type { CompiledCircuit } from './compile.js';
+import { ENGINE_COUNTS } from './counters.js';
 
 /** Convergence tolerances and iteration limit. */
 export interface NewtonOptions {
@@ -111,6 +112,18 @@ export function residualSettled(c: CompiledCircuit, opts: NewtonOptions): boolea
  * devices' state was last loaded at it.
  */
 export function newtonSolve(c: CompiledCircuit, opts: NewtonOptions = DEFAULT_NEWTON): NewtonResult {
+  const r = newtonIterate(c, opts);
+  if (c.ws.ctx.mode === 'tran') {
+    ENGINE_COUNTS.tranSolves++;
+    ENGINE_COUNTS.tranIterations += r.iterations;
+  } else {
+    ENGINE_COUNTS.dcSolves++;
+    ENGINE_COUNTS.dcIterations += r.iterations;
+  }
+  return r;
+}
+
+function newtonIterate(c: CompiledCircuit, opts: NewtonOptions): NewtonResult {
   const { ws, unknowns } = c;
   const { x, xNext, ctx } = ws;
   const n = ws.unknowns;

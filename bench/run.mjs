@@ -1,0 +1,286 @@
+// The speed benchmarks of railcheck, `npx -y pnpm@10.34.9 bench` (after the
+// install, which builds the bundles). Not a test: nothing here passes or
+// fails a build. It prints one table and writes bench/results.json, every
+// case beside its floor measured in the same run, as ratios:
+//   - one Newton iteration (device loading, factor, solve, update test)
+//     against a bare dense LU factor and solve of the same matrix (the
+//     textbook Doolittle elimination with partial pivoting, Golub and Van
+//     Loan, Matrix Computations, 4th ed., algorithm 3.4.1, written below),
+//     on diode-clamped RC ladders and the bridge-rectifier regulator;
+//   - the growth of one iteration with the number of unknowns (the slope of
+//     log time on log n, least squares) on ladders and a 2-D mesh;
+//   - the rectifier regulator's transient for 1 s and 10 s: steps,
+//     rejections, Newton iterations per accepted step, and the whole
+//     command's CPU time and peak memory (GNU time) against `node -e 0`;
+//   - the demo's figure set: DC solves and transient steps each figure used;
+//   - a sine-fed stage's periodic steady state.
+// Timings are medians from tinybench. Options: --quick (shorter timing
+// windows, for trying the script), --out FILE (default bench/results.json).
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir, cpus } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { performance } from 'node:perf_hooks';
+import { Bench } from 'tinybench';
+import { runNetlist } from '@railcheck/core';
+import { ENGINE_COUNTS, loadAll, luFactor, luSolve, resetEngineCounts } from '@railcheck/core/internal';
+import { compiled, ladderNetlist, meshNetlist, toTransientMatrix } from './lib/circuits.mjs';
+
+const rootUrl = new URL('..', import.meta.url);
+const root = fileURLToPath(rootUrl);
+const args = process.argv.slice(2);
+const quick = args.includes('--quick');
+const outFile = args.includes('--out') ? args[args.indexOf('--out') + 1] : join(root, 'bench', 'results.json');
+const TIME_MS = quick ? 60 : 400;
+
+const rows = [];
+/** One line of the table: what was measured, its value, the floor or reference beside it, the ratio and the target. */
+function row(group, name, value, unit, extra = {}) {
+  const r = { group, case: name, value, unit, ...extra };
+  rows.push(r);
+  return r;
+}
+
+/** Median time of `fn` in ms (tinybench, TIME_MS of samples after a warm-up). */
+async function median(fn, time = TIME_MS) {
+  const b = new Bench({ time, warmupTime: Math.min(100, time / 4) });
+  b.add('case', fn);
+  await b.run();
+  const t = b.tasks[0];
+  if (t.result.state !== 'completed') throw new Error(`benchmark task ended ${t.result.state}`);
+  return t.result.latency.p50;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Floors.
+
+/** A bare dense LU factor and solve on a copy of `a` (row-major, stride s, ground row and column 0 skipped). */
+function bareDense(s) {
+  const n = s - 1;
+  const m = new Float64Array(s * s);
+  const perm = new Int32Array(s);
+  const y = new Float64Array(s);
+  const x = new Float64Array(s);
+  return (a, b) => {
+    m.set(a);
+    for (let k = 1; k <= n; k++) perm[k] = k;
+    for (let k = 1; k <= n; k++) {
+      let p = k;
+      let best = Math.abs(m[k * s + k]);
+      for (let i = k + 1; i <= n; i++) {
+        const v = Math.abs(m[i * s + k]);
+        if (v > best) [best, p] = [v, i];
+      }
+      if (p !== k) {
+        for (let j = 1; j <= n; j++) {
+          const t = m[k * s + j];
+          m[k * s + j] = m[p * s + j];
+          m[p * s + j] = t;
+        }
+        const t = perm[k];
+        perm[k] = perm[p];
+        perm[p] = t;
+      }
+      const pivot = m[k * s + k];
+      for (let i = k + 1; i <= n; i++) {
+        const l = m[i * s + k] / pivot;
+        if (l === 0) continue;
+        m[i * s + k] = l;
+        for (let j = k + 1; j <= n; j++) m[i * s + j] -= l * m[k * s + j];
+      }
+    }
+    for (let i = 1; i <= n; i++) {
+      let sum = b[perm[i]];
+      for (let j = 1; j < i; j++) sum -= m[i * s + j] * y[j];
+      y[i] = sum;
+    }
+    for (let i = n; i >= 1; i--) {
+      let sum = y[i];
+      for (let j = i + 1; j <= n; j++) sum -= m[i * s + j] * x[j];
+      x[i] = sum / m[i * s + i];
+    }
+    return x;
+  };
+}
+
+/**
+ * One Newton iteration as newtonSolve does it, on the circuit as it stands
+ * (its x is left where it is, so every call does the same work): load every
+ * device, factor, solve, the update test on every unknown.
+ */
+function newtonIteration(c) {
+  const { ws, unknowns } = c;
+  const { x, xNext } = ws;
+  const n = ws.unknowns;
+  return () => {
+    loadAll(c);
+    luFactor(ws.lu);
+    luSolve(ws.lu, ws.rhs, xNext);
+    let ratio = 0;
+    for (let i = 1; i <= n; i++) {
+      const tol = 1e-6 * Math.max(Math.abs(xNext[i]), Math.abs(x[i])) + (unknowns[i].kind === 'branch' ? 1e-12 : 1e-9);
+      const r = Math.abs(xNext[i] - x[i]) / tol;
+      if (r > ratio) ratio = r;
+    }
+    return ratio;
+  };
+}
+
+/** The matrix and right-hand side the circuit loads at its present state (a copy). */
+function loadedSystem(c) {
+  loadAll(c);
+  return { a: Float64Array.from(c.ws.lu.matrix), b: Float64Array.from(c.ws.rhs) };
+}
+
+/** Least-squares slope of log(y) on log(x). */
+function slope(points) {
+  const lx = points.map((p) => Math.log(p[0]));
+  const ly = points.map((p) => Math.log(p[1]));
+  const mx = lx.reduce((s, v) => s + v, 0) / lx.length;
+  const my = ly.reduce((s, v) => s + v, 0) / ly.length;
+  let num = 0;
+  let den = 0;
+  for (let i = 0; i < lx.length; i++) {
+    num += (lx[i] - mx) * (ly[i] - my);
+    den += (lx[i] - mx) ** 2;
+  }
+  return num / den;
+}
+
+// ---------------------------------------------------------------------------------------------
+// 1. One Newton iteration against the dense floor.
+
+async function iterationCase(group, name, c, target) {
+  const iterate = newtonIteration(c);
+  const { a, b } = loadedSystem(c);
+  const floor = bareDense(c.ws.size);
+  const tIter = await median(iterate);
+  const tFloor = await median(() => floor(a, b));
+  return row(group, name, tIter * 1e3, 'µs / iteration', { unknowns: c.ws.unknowns, floor: tFloor * 1e3, floorName: 'bare dense LU', ratio: tIter / tFloor, target: target === undefined ? undefined : `≤ ${target}×`, met: target === undefined ? undefined : tIter / tFloor <= target });
+}
+
+console.error('railcheck benchmarks: one Newton iteration against the dense LU floor …');
+for (const n of [10, 20, 40, 80]) {
+  await iterationCase('iteration', `ladder n=${n}`, toTransientMatrix(compiled(ladderNetlist(n)), 2e-4, 1e-6), 2);
+}
+const regulatorText = readFileSync(join(root, 'bench/cases/rectifier-regulator-1s.cir'), 'utf8');
+// The rectifier regulator 25 ms in (the bridge conducting), at a 20 µs trapezoidal step.
+await iterationCase('iteration', 'rectifier regulator', toTransientMatrix(compiled(regulatorText.replace(/^\.supply.*$/m, '')), 0.025, 2e-5), 2.5);
+
+// 2. Growth with the number of unknowns.
+console.error('… growth with the number of unknowns …');
+const ladderPoints = [];
+for (const n of [50, 100, 200, 400, 800]) {
+  const r = await iterationCase('growth', `ladder n=${n}`, toTransientMatrix(compiled(ladderNetlist(n)), 2e-4, 1e-6), undefined);
+  ladderPoints.push([n, r.value]);
+}
+const meshPoints = [];
+for (const side of quick ? [5, 10, 14] : [5, 7, 10, 14, 20]) {
+  const r = await iterationCase('growth', `mesh ${side}×${side}`, toTransientMatrix(compiled(meshNetlist(side)), 2e-4, 1e-6), undefined);
+  meshPoints.push([r.unknowns, r.value]);
+}
+const ladderSlope = slope(ladderPoints);
+const meshSlope = slope(meshPoints);
+row('growth', 'ladder n=50…800', ladderSlope, 'slope of log t on log n', { target: '≤ 1.2', met: ladderSlope <= 1.2 });
+row('growth', `mesh n=${meshPoints[0][0]}…${meshPoints[meshPoints.length - 1][0]}`, meshSlope, 'slope of log t on log n', { target: '≤ 1.5', met: meshSlope <= 1.5 });
+
+// 3. The rectifier regulator's transient, in process (counts) and as a command (CPU, memory).
+console.error('… the rectifier regulator transient …');
+const gnuTime = ['/usr/bin/time', '/bin/time'].find((p) => existsSync(p));
+/** CPU seconds (user + system) and peak resident memory (MB) of a command, by GNU time; undefined without it. */
+function measureCommand(cmd, cmdArgs) {
+  if (!gnuTime) return undefined;
+  const r = spawnSync(gnuTime, ['-f', '%U %S %M', cmd, ...cmdArgs], { cwd: root, encoding: 'utf8', maxBuffer: 1 << 30 });
+  if (r.status !== 0) throw new Error(`${cmd} ${cmdArgs.join(' ')} exited ${r.status}: ${r.stderr.slice(-400)}`);
+  const last = r.stderr.trim().split('\n').pop().split(' ').map(Number);
+  return { cpu: last[0] + last[1], rssMb: last[2] / 1024 };
+}
+/** The median of `runs` measurements (CPU and memory medians taken separately). */
+function medianCommand(cmd, cmdArgs, runs) {
+  const ms = Array.from({ length: runs }, () => measureCommand(cmd, cmdArgs)).filter(Boolean);
+  if (ms.length === 0) return undefined;
+  const mid = (xs) => xs.sort((p, q) => p - q)[Math.floor(xs.length / 2)];
+  return { cpu: mid(ms.map((m) => m.cpu)), rssMb: mid(ms.map((m) => m.rssMb)) };
+}
+const nodeFloor = medianCommand(process.execPath, ['-e', '0'], 5);
+const launcher = join(root, 'railcheck');
+const scratch = mkdtempSync(join(tmpdir(), 'railcheck-bench-'));
+for (const seconds of [1, 10]) {
+  const file = `bench/cases/rectifier-regulator-${seconds}s.cir`;
+  resetEngineCounts();
+  const t0 = performance.now();
+  const r = runNetlist(readFileSync(join(root, file), 'utf8'), { file });
+  const ms = performance.now() - t0;
+  if (!r.ok) throw new Error(`${file}: ${r.errors[0]?.message}`);
+  const s = r.report.transients[0].stats;
+  const perStep = s.newtonIterations / s.accepted;
+  row('transient', `rectifier regulator ${seconds} s`, perStep, 'Newton iterations / accepted step', { accepted: s.accepted, rejectedLte: s.rejectedLte, rejectedNewton: s.rejectedNewton, inProcessMs: ms, target: '≤ 2.5', met: perStep <= 2.5 });
+  const outputs = seconds === 1 ? [['text', []]] : [['text', []], ['--csv', ['--csv', join(scratch, 'out.csv')]], ['--json', ['--json']]];
+  for (const [label, extra] of outputs) {
+    const m = medianCommand(launcher, ['run', file, ...extra], seconds === 1 ? 3 : 1);
+    if (!m || !nodeFloor) {
+      row('command', `rectifier regulator ${seconds} s, ${label}`, undefined, '', { note: 'not measured: GNU time (/usr/bin/time) is not installed' });
+      continue;
+    }
+    if (seconds === 1) row('command', `./railcheck run ${file}`, m.cpu, 's CPU', { floor: nodeFloor.cpu, floorName: 'node -e 0', ratio: m.cpu / nodeFloor.cpu, target: '≤ 4×', met: m.cpu / nodeFloor.cpu <= 4 });
+    row('memory', `rectifier regulator ${seconds} s, ${label}`, m.rssMb, 'MB peak RSS', { floor: nodeFloor.rssMb, floorName: 'node -e 0', ratio: m.rssMb / nodeFloor.rssMb, target: seconds === 10 ? '≤ 80 MB' : undefined, met: seconds === 10 ? m.rssMb <= 80 : undefined });
+  }
+}
+rmSync(scratch, { recursive: true, force: true });
+
+// 4. The demo's figure set, one figure at a time.
+console.error('… the demo figure set …');
+const demoFile = 'examples/sensor-rail-follower.cir';
+const demoText = readFileSync(join(root, demoFile), 'utf8');
+const figureLines = demoText.split('\n').filter((l) => /^\.figure\b/i.test(l));
+const bare = demoText.replace(/^\.(figure|limit)\b.*$/gim, '');
+for (const line of figureLines) {
+  const text = bare.replace(/^\.end\b/im, `${line}\n.end`);
+  resetEngineCounts();
+  const t0 = performance.now();
+  const r = runNetlist(text, { file: demoFile });
+  const ms = performance.now() - t0;
+  if (!r.ok) throw new Error(`${demoFile} with ${line}: ${r.errors[0]?.message}`);
+  row('figures', `demo ${line.trim()}`, ms, 'ms', { dcSolves: ENGINE_COUNTS.dcSolves, dcIterations: ENGINE_COUNTS.dcIterations, tranSteps: ENGINE_COUNTS.tranSolves, tranIterations: ENGINE_COUNTS.tranIterations });
+}
+{
+  resetEngineCounts();
+  const t0 = performance.now();
+  const r = runNetlist(demoText, { file: demoFile });
+  const ms = performance.now() - t0;
+  if (!r.ok) throw new Error(`${demoFile}: ${r.errors[0]?.message}`);
+  row('figures', 'demo, every figure together', ms, 'ms', { dcSolves: ENGINE_COUNTS.dcSolves, dcIterations: ENGINE_COUNTS.dcIterations, tranSteps: ENGINE_COUNTS.tranSolves, tranIterations: ENGINE_COUNTS.tranIterations });
+}
+
+// 5. A sine-fed stage's periodic steady state (the operating point of the mains-fed example).
+console.error('… a periodic steady state …');
+{
+  const file = 'examples/railway-transformer-follower.cir';
+  const text = readFileSync(join(root, file), 'utf8').replace(/^\.(figure|limit|tran)\b.*$/gim, '');
+  resetEngineCounts();
+  const t0 = performance.now();
+  const r = runNetlist(text, { file });
+  const ms = performance.now() - t0;
+  if (!r.ok) throw new Error(`${file}: ${r.errors[0]?.message}`);
+  row('steady state', 'railway transformer follower, operating point', ms, 'ms', { dcSolves: ENGINE_COUNTS.dcSolves, tranSteps: ENGINE_COUNTS.tranSolves, tranIterations: ENGINE_COUNTS.tranIterations, iterationsPerStep: ENGINE_COUNTS.tranIterations / ENGINE_COUNTS.tranSolves });
+}
+
+// ---------------------------------------------------------------------------------------------
+// The table and the file.
+const fmt = (v) => (v === undefined ? '' : typeof v !== 'number' ? String(v) : Math.abs(v) >= 100 ? v.toFixed(0) : Math.abs(v) >= 10 ? v.toFixed(1) : v.toPrecision(3));
+const detail = (r) =>
+  [
+    r.unknowns !== undefined ? `n=${r.unknowns}` : '',
+    r.accepted !== undefined ? `${r.accepted} steps, ${r.rejectedLte + r.rejectedNewton} rejected` : '',
+    r.dcSolves !== undefined ? `${r.dcSolves} DC solves` : '',
+    r.tranSteps !== undefined ? `${r.tranSteps} steps tried` : '',
+    r.note ?? '',
+  ].filter(Boolean).join(', ');
+const table = [['group', 'case', 'value', 'unit', 'floor', 'ratio', 'target', 'met', 'detail']];
+for (const r of rows) table.push([r.group, r.case, fmt(r.value), r.unit, r.floor === undefined ? '' : `${fmt(r.floor)} (${r.floorName})`, r.ratio === undefined ? '' : `${fmt(r.ratio)}×`, r.target ?? '', r.met === undefined ? '' : r.met ? 'yes' : 'NO', detail(r)]);
+const widths = table[0].map((_, k) => Math.max(...table.map((t) => t[k].length)));
+for (const t of table) console.log(t.map((c, k) => c.padEnd(widths[k])).join('  ').trimEnd());
+const commit = spawnSync('git', ['rev-parse', '--short', 'HEAD'], { cwd: root, encoding: 'utf8' }).stdout.trim() || undefined;
+writeFileSync(outFile, `${JSON.stringify({ format: 'railcheck-bench', version: 1, date: new Date().toISOString(), commit, node: process.version, cpu: cpus()[0]?.model, cores: cpus().length, quick, rows }, null, 2)}\n`);
+console.error(`written ${outFile}`);
