@@ -13,9 +13,13 @@ export default defineConfig({
     },
   },
   test: {
-    include: ['test/**/*.test.ts'],
     benchmark: { include: ['bench/**/*.bench.ts'] },
     testTimeout: 60_000,
     pool: 'threads',
+    projects: [
+      { extends: true, test: { name: 'main', include: ['test/**/*.test.ts'] } },
+      // The transient tests again without the step predictor (test/support/predictor-off.ts).
+      { extends: true, test: { name: 'predictor-off', include: ['test/core/transient/**/*.test.ts', 'test/core/ac/tran-vs-ac.test.ts'], setupFiles: ['test/support/predictor-off.ts'] } },
+    ],
   },
 });

@@ -1,0 +1,15 @@
+import { Session } from 'node:inspector/promises';
+import { readFileSync } from 'node:fs';
+import { runNetlist } from '@railcheck/core';
+const text = readFileSync('bench/cases/rectifier-regulator-1s.cir', 'utf8');
+runNetlist(text.replace('.tran 0.1m 1', '.tran 0.1m 0.05'), { file: 'x' });
+const s = new Session(); s.connect();
+await s.post('HeapProfiler.enable');
+await s.post('HeapProfiler.startSampling', { samplingInterval: 1024, includeObjectsCollectedByMajorGC: true, includeObjectsCollectedByMinorGC: true });
+runNetlist(text, { file: 'x' });
+const { profile } = await s.post('HeapProfiler.stopSampling');
+const m = new Map();
+(function walk(n, path) { const k = `${n.callFrame.functionName}@${n.callFrame.url.split('/').slice(-2).join('/')}:${n.callFrame.lineNumber}`; const p2 = [...path, n.callFrame.functionName].slice(-4).join(' < '); if (n.selfSize) m.set(k + '   [' + p2 + ']', (m.get(k + '   [' + p2 + ']') ?? 0) + n.selfSize); for (const c of n.children) walk(c, [...path, n.callFrame.functionName]); })(profile.head, []);
+const tot = [...m.values()].reduce((a, b) => a + b, 0);
+console.log('total MB', (tot / 1e6).toFixed(1));
+[...m].sort((a, b) => b[1] - a[1]).slice(0, 25).forEach(([k, v]) => console.log((v / 1e6).toFixed(2), k));
