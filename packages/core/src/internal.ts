@@ -109,7 +109,7 @@ export { thermal, DEFAULT_TJMAX, THERMAL_MIN_POWER, SELF_HEAT_TOLERANCE, SELF_HE
 export type { Thermal, ThermalRow, ThermalOptions, SelfHeat } from './measure/thermal.js';
 export { settleCycle, describeSteady, MinMaxWindow } from './measure/periodic.js';
 export type { PeriodicOptions, PeriodicResult, CycleStats, Probe, SteadyInfo } from './measure/periodic.js';
-export { findPeriodicSteadyState, SETTLE_RATIO, STATE_RELTOL, DISTANCE_RELTOL } from './analysis/steady-state.js';
+export { findPeriodicSteadyState, SETTLE_RATIO, STATE_RELTOL, DISTANCE_RELTOL, GUIDED } from './analysis/steady-state.js';
 export type { SteadyState, SteadyStateMethod, SteadyStateOptions, SteadyStateOutcome } from './analysis/steady-state.js';
 export { impliedDatasheet, readModelLine, findModelCard, modelLine, resolveModelCard, resolveNetlistModel } from './pipeline/model-sheet.js';
 export type { ImpliedSheet, SheetConditions, SheetValue, ResolvedModel, ResolveModelOptions } from './pipeline/model-sheet.js';

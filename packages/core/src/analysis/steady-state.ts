@@ -53,6 +53,12 @@ export const DISTANCE_RELTOL = 1e-6;
 const PERIOD_NEWTON: NewtonOptions = DEFAULT_NEWTON;
 /** Relative size of a finite-difference perturbation of a state entry (of its largest magnitude), with a floor of its range. */
 const PERTURBATION = 1e-5;
+/**
+ * Whether the perturbed period runs of the sensitivity are guided by the
+ * unperturbed run's solutions (TransientOptions.replayGuide); switched off
+ * only by bench/run.mjs and the tests that compare both ways.
+ */
+export const GUIDED: { on: boolean } = { on: true };
 /** Largest number of step halvings of one Newton correction (backtracking) before taking it anyway. */
 const MAX_BACKTRACKS = 4;
 
@@ -163,6 +169,8 @@ interface PeriodRun {
   readonly qMin: Float64Array;
   readonly qMax: Float64Array;
   readonly times: Float64Array | undefined;
+  /** With `times`: the solution at the run's start and at each of its accepted times (rows of unknowns + 1), the guide of perturbed runs on them. */
+  readonly guide: Float64Array | undefined;
 }
 
 type RunStart = { readonly solution: Float64Array } | { readonly state: Float64Array; readonly guess: Float64Array } | undefined;
@@ -172,6 +180,7 @@ class PeriodRunner {
   readonly owners: readonly string[];
   periods = 0;
   private readonly times: number[] = [];
+  private readonly solutions: number[] = [];
 
   constructor(
     private readonly c: CompiledCircuit,
@@ -184,13 +193,14 @@ class PeriodRunner {
   }
 
   /** Runs `count` periods from `t0`; returns undefined (and the failure time) when the transient fails. */
-  run(t0: number, from: RunStart, count: number, record: boolean, replay?: Float64Array, onPoint?: (t: number, ctx: LoadContext) => void): PeriodRun | { failedAt: number; failure: TransientFailure } {
+  run(t0: number, from: RunStart, count: number, record: boolean, replay?: { readonly times: Float64Array; readonly guide: Float64Array | undefined }, onPoint?: (t: number, ctx: LoadContext) => void): PeriodRun | { failedAt: number; failure: TransientFailure } {
     const { c, period, slots } = this;
     const m = slots.length;
     const qMin = new Float64Array(m).fill(Infinity);
     const qMax = new Float64Array(m).fill(-Infinity);
     const tEnd = t0 + count * period;
     this.times.length = 0;
+    this.solutions.length = 0;
     const boundaries: number[] = [];
     for (let k = 1; k <= count; k++) boundaries.push(t0 + k * period);
     const lastStart = tEnd - period * (1 + 1e-9);
@@ -209,9 +219,13 @@ class PeriodRunner {
       extraBreakpoints: [...(base.extraBreakpoints ?? []).filter((t) => t > t0 && t < tEnd), ...boundaries],
       keepTrace: false,
       ...(from === undefined ? {} : 'solution' in from ? { initialSolution: from.solution } : { initialState: from }),
-      ...(replay ? { replayTimes: replay } : {}),
+      ...(replay ? { replayTimes: replay.times, ...(replay.guide ? { replayGuide: replay.guide } : {}) } : {}),
       onAccept: (t, ctx) => {
-        if (record && t > t0) this.times.push(t);
+        if (record) {
+          if (t > t0) this.times.push(t);
+          const x = ctx.x;
+          for (let k = 0; k < x.length; k++) this.solutions.push(x[k]!);
+        }
         if (t >= lastStart) {
           const st = ctx.state;
           for (let k = 0; k < m; k++) {
@@ -231,6 +245,7 @@ class PeriodRunner {
       qMin,
       qMax,
       times: record ? Float64Array.from(this.times) : undefined,
+      guide: record ? Float64Array.from(this.solutions) : undefined,
     };
   }
 
@@ -330,7 +345,7 @@ export function findPeriodicSteadyState(c: CompiledCircuit, opts: SteadyStateOpt
         const h = Math.max(PERTURBATION * size, SETTLE_RATIO * range, 1e-30);
         const unit = new Float64Array(m);
         unit[j] = h;
-        const r = runner.run(t0, { state: stepped(state, slots, unit, 1), guess }, 1, false, times);
+        const r = runner.run(t0, { state: stepped(state, slots, unit, 1), guess }, 1, false, { times, guide: GUIDED.on ? base.guide : undefined });
         if ('failedAt' in r) {
           failed = true;
           break;

@@ -32,6 +32,16 @@ export interface NewtonOptions {
    * for KCL rows and `vntol` for branch rows.
    */
   readonly residualReltol?: number;
+  /**
+   * Take the first update as converged when it passes the update test
+   * (default false: the first update never counts, since the starting
+   * point is a guess). For a start known to be within the tolerances of
+   * the solution already, such as a perturbed run guided by the solutions
+   * of the unperturbed one (TransientOptions.replayGuide): Newton's error
+   * after an update is of the order of the square of the update, and the
+   * residual test at the new iterate still decides.
+   */
+  readonly firstUpdateSettles?: boolean;
 }
 
 /**
@@ -154,7 +164,7 @@ function newtonIterate(c: CompiledCircuit, opts: NewtonOptions): NewtonResult {
     }
     x.set(xNext);
     lastRatio = ratio;
-    settled = ratio <= 1 && !ctx.limited && iter > 1;
+    settled = ratio <= 1 && !ctx.limited && (iter > 1 || opts.firstUpdateSettles === true);
   }
   return { converged: false, reason: 'iterations', iterations: opts.maxIterations, worst, lastRatio };
 }

@@ -90,6 +90,17 @@ export interface TransientOptions {
    */
   readonly replayTimes?: Float64Array;
   /**
+   * With `replayTimes`: the solutions of an earlier run on those times, row k
+   * (stride: unknowns + 1) at replayTimes[k − 1] and row 0 at startTime. A
+   * run that differs from that one by a small change of its start (a
+   * perturbed period run of the shooting method) starts each step's Newton
+   * from the guide's solution there plus the difference the run had from
+   * the guide at the step before, and may take the first update as the
+   * solution when it passes the update test (the residual test still
+   * decides; {@link NewtonOptions.firstUpdateSettles}).
+   */
+  readonly replayGuide?: Float64Array;
+  /**
    * Capacitance in farads placed across every diode junction whose model has
    * CJO = 0 (default 0). The `.tran` analysis passes JUNCTION_CMIN so that a
    * bridge of default diodes on a floating secondary can be followed; the
@@ -346,6 +357,10 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     const breakpoints = collectBreakpoints(sources, t0, tstop, extra);
     const keep = opts.keepTrace ?? true;
     const replay = opts.replayTimes;
+    const guide = replay && opts.replayGuide && opts.replayGuide.length === (replay.length + 1) * ws.size ? opts.replayGuide : undefined;
+    const guidedNewton: NewtonOptions = { ...newton, firstUpdateSettles: true };
+    // Row of the guide at the present accepted time (0 at the start), or −1 when t is not on the guide.
+    let guideRow = guide ? 0 : -1;
     let nextReplay = 0;
     let nextBreak = 0;
     let t = t0;
@@ -378,8 +393,15 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       ctx.time = tNew;
       ctx.initJunctions = false;
       // Newton starts from the line through the last two accepted points (a predictor), not from the last point alone.
-      if (!firstAfterBreak && PREDICTOR.on) history.predict(tNew, x);
-      const r = newtonSolve(c, newton);
+      const guided = guideRow >= 0 && tNew === replay![nextReplay]!;
+      if (guided) {
+        // The guide's solution at tNew plus this run's difference from the guide at t.
+        const size = ws.size;
+        const at = (nextReplay + 1) * size;
+        const before = guideRow * size;
+        for (let k = 1; k < size; k++) x[k] = guide![at + k]! + (x[k]! - guide![before + k]!);
+      } else if (!firstAfterBreak && PREDICTOR.on) history.predict(tNew, x);
+      const r = newtonSolve(c, guided ? guidedNewton : newton);
       stats.newtonIterations += r.iterations;
       if (!r.converged) {
         stats.rejectedNewton++;
@@ -421,6 +443,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
         firstAfterBreak = false;
       }
       if (replay) {
+        if (guide) guideRow = t === replay[nextReplay]! ? nextReplay + 1 : -1;
         while (nextReplay < replay.length - 1 && replay[nextReplay]! <= t + hMin) nextReplay++;
         h = replay[nextReplay]! - t;
       }
