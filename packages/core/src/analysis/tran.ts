@@ -27,7 +27,11 @@ export interface TransientResult {
   readonly stats: TransientStats;
   /** Output grid, s. */
   readonly times: readonly number[];
-  /** Node name → volts on the grid (one value per entry of `times`). */
+  /**
+   * Node name → volts on the grid (one value per entry of `times`). A
+   * Float64Array, which JSON.stringify writes as an object of indices:
+   * `Array.from` gives a plain array.
+   */
   readonly nodes: Readonly<Record<string, Float64Array>>;
   /** Branch-current name (voltage sources, inductors, E and H) → amps on the grid (one value per entry of `times`). */
   readonly branches: Readonly<Record<string, Float64Array>>;
