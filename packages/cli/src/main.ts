@@ -8,11 +8,11 @@
  * `check`, `merge`, `compare` and `model` say theirs in their own modules. A user
  * never sees a stack trace.
  */
-import { jsonText } from './present/json-text.js';
-import { acceptedTimes, formatDiagnostic, runNetlistFile, sampleTrace, type Diagnostic, type FigureCurves, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
+import { jsonText, writeJson } from './present/json-text.js';
+import { formatDiagnostic, runNetlistFile, type Diagnostic, type FigureCurves, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
 import { match } from 'ts-pattern';
 import { isAbsolute, relative } from 'node:path';
-import { transientCsv } from './present/waves.js';
+import { transientColumns, transientCsvPieces } from './present/waves.js';
 import { refuseOutput, writeOutputFiles } from './present/files.js';
 import { existsSync, readFileSync, realpathSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
@@ -30,14 +30,50 @@ import { reportCaution, runSections } from './plot/from-report.js';
 
 /** Where output goes; tests pass their own. */
 export interface CliIo {
+  /** Standard output: one text, a newline added when it has none. */
   readonly out: (text: string) => void;
   readonly err: (text: string) => void;
+  /**
+   * Standard output a piece at a time, as it is (no newline added): what a
+   * long report is streamed through. Without it the pieces are gathered
+   * and handed to `out` as one text.
+   */
+  readonly write?: (piece: string) => void;
 }
 
 const defaultIo: CliIo = {
   out: (t) => process.stdout.write(t.endsWith('\n') ? t : `${t}\n`),
   err: (t) => process.stderr.write(t.endsWith('\n') ? t : `${t}\n`),
+  write: (piece) => process.stdout.write(piece),
 };
+
+/** Characters gathered before a piece of streamed output is written. */
+const STREAM_PIECE = 1 << 16;
+
+/**
+ * Prints `value` as JSON text (present/json-text.ts) and a newline: through
+ * `io.write` in pieces of about STREAM_PIECE characters when the io has
+ * it, else as one text through `io.out`. The bytes are the same either way.
+ */
+export function printJson(io: CliIo, value: unknown): void {
+  const write = io.write;
+  if (!write) {
+    io.out(jsonText(value));
+    return;
+  }
+  let pending: string[] = [];
+  let size = 0;
+  writeJson(value, (piece) => {
+    pending.push(piece);
+    size += piece.length;
+    if (size >= STREAM_PIECE) {
+      write(pending.join(''));
+      pending = [];
+      size = 0;
+    }
+  });
+  write(`${pending.join('')}\n`);
+}
 
 /** Exit status: everything ran and every limit passed. */
 export const EXIT_OK = 0;
@@ -171,7 +207,7 @@ function present(io: CliIo, result: RunResult, flags: ReadonlyMap<string, string
     const status = writePlotFolder(plot, { title: r.title, ...(caution ? { caution } : {}), sections: runSections(r, curves) }, file, 'run', notes, (l) => io.err(l));
     if (status !== EXIT_OK) return status;
   }
-  if (flags.has('json')) io.out(jsonText(reportJson(result.report, steps)));
+  if (flags.has('json')) printJson(io, reportJson(result.report, steps));
   else io.out(formatReport(result.report));
   const limits = result.report.figures?.limits ?? [];
   const unevaluated = notEvaluatedErrors(limits);
@@ -209,13 +245,18 @@ function writeCsv(io: CliIo, report: RunReport, path: string, steps: boolean, fi
     io.err('railcheck run: --csv needs a .tran analysis, or a ripple or sag figure, in the netlist; none was run');
     return EXIT_ERROR;
   }
-  const files = report.transients.map((t, k) => {
-    const times = steps ? acceptedTimes(t) : t.times;
-    const nodes = steps ? sampleTrace(report.compiled, t.trace, times).nodes : t.nodes;
-    return { path: csvName(path, k), text: transientCsv(times, nodes) };
-  });
+  // Each file's text is made a block of rows at a time as it is written (present/files.ts), never as one string.
+  const files = report.transients.map((t, k) => ({
+    path: csvName(path, k),
+    text: {
+      [Symbol.iterator]: () => {
+        const { times, nodes } = transientColumns(t, report.compiled, steps);
+        return transientCsvPieces(times, nodes);
+      },
+    },
+  }));
   // The figures' own waveforms (docs/output.md): OUT-ripple.csv and OUT-sag.csv, every accepted point.
-  for (const { suffix, w } of waves) files.push({ path: path.replace(/(\.csv)?$/i, `-${suffix}$1`), text: transientCsv(w.time, { input: w.input, ...(w.feed ? { feed: w.feed } : {}), output: w.output }) });
+  for (const { suffix, w } of waves) files.push({ path: path.replace(/(\.csv)?$/i, `-${suffix}$1`), text: { [Symbol.iterator]: () => transientCsvPieces(w.time, { input: w.input, ...(w.feed ? { feed: w.feed } : {}), output: w.output }) } });
   const written = writeOutputFiles(files, file);
   if (!written.ok) {
     io.err(`railcheck run: --csv: ${written.message}`);
@@ -256,7 +297,8 @@ function runCommand(argv: readonly string[], io: CliIo, demo: boolean): number {
     io.err(`railcheck run: --csv: ${refused}`);
     return EXIT_ERROR;
   }
-  const result = runNetlistFile(file, { allowOutsideIncludes: flags.has('allow-outside-includes') });
+  // Every accepted point is kept only when --steps writes them (docs/transient.md, "Output").
+  const result = runNetlistFile(file, { allowOutsideIncludes: flags.has('allow-outside-includes'), keepSteps: flags.has('steps') });
   return present(io, result, flags, file);
 }
 

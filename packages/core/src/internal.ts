@@ -36,7 +36,7 @@ export { operatingPoint, dcSweep } from './analysis/dc.js';
 export type { OperatingPoint, DcSweep } from './analysis/dc.js';
 export { readSolution, nodeVoltage } from './analysis/solution.js';
 export type { SolutionValues } from './analysis/solution.js';
-export { transient, outputGrid, sampleTrace, acceptedTimes } from './analysis/tran.js';
+export { transient, outputGrid, sampleTrace, acceptedTimes, GridSampler } from './analysis/tran.js';
 export type { TransientResult, TransientRequest } from './analysis/tran.js';
 export { acSweep, phasorDb, phasorDeg, acFrequencies } from './analysis/ac.js';
 export type { AcResult } from './analysis/ac.js';

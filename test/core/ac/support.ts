@@ -9,8 +9,8 @@ import { parseNetlist, prepare, runNetlist, type AcResult, type CompiledCircuit,
 import { linearise, solveAt, solveOperatingPoint } from '@railcheck/core/internal';
 
 /** Runs netlist text and fails the test with the diagnostics if it does not run. */
-export function run(text: string): RunReport {
-  const r = runNetlist(text);
+export function run(text: string, keepSteps = false): RunReport {
+  const r = runNetlist(text, { keepSteps });
   if (!r.ok) throw new Error(r.errors.map((e) => e.message).join('\n'));
   return r.report;
 }

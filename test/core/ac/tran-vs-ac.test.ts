@@ -71,7 +71,7 @@ const STAGES: readonly Stage[] = [
 ];
 
 /** Fundamental amplitude (one-bin DFT) and peak-to-peak of v over [t0, t0 + T) on uniformly spaced samples. */
-function measure(times: readonly number[], v: readonly number[], f: number, t0: number): { amp: number; pp: number; n: number } {
+function measure(times: readonly number[], v: ArrayLike<number>, f: number, t0: number): { amp: number; pp: number; n: number } {
   const T = 1 / f;
   let re = 0;
   let im = 0;
@@ -92,7 +92,7 @@ function measure(times: readonly number[], v: readonly number[], f: number, t0: 
 
 /** A node's values at every accepted point of a run. */
 function accepted(r: TransientResult, index: number): { times: number[]; v: number[] } {
-  const { count, size, times, values } = r.trace;
+  const { count, size, times, values } = r.trace!;
   const t = Array.from(times.subarray(0, count));
   return { times: t, v: t.map((_, k) => values[k * size + index]!) };
 }
@@ -108,7 +108,7 @@ describe('AC magnitude equals the transient steady-state gain of a small sine', 
         const T = 1 / f;
         const tstop = PERIODS * T;
         const body = stage.body.replaceAll('{f}', String(f)).replaceAll('{va}', String(stage.va));
-        const report = run(`${stage.name}\n${body}.tran ${T / GRID} ${tstop}\n.ac lin 1 ${f} ${f}\n.end\n`);
+        const report = run(`${stage.name}\n${body}.tran ${T / GRID} ${tstop}\n.ac lin 1 ${f} ${f}\n.end\n`, true);
         const ac = report.ac[0]!.nodes[stage.node]!;
         const acDb = phasorDb(ac.re[0]!, ac.im[0]!);
         const tr = report.transients[0]!;

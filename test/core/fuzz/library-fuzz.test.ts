@@ -29,12 +29,12 @@ function made() {
   if (!flat.ok) throw new Error('the example does not elaborate');
   const compiled = core.compileCircuit(flat.circuit);
   if (!compiled.ok) throw new Error('the example does not compile');
-  const run = core.runNetlist(text, { file: 'sensor.cir' });
+  const run = core.runNetlist(text, { file: 'sensor.cir', keepSteps: true });
   if (!run.ok) throw new Error(`the example does not run: ${run.errors.map((e) => e.message).join('; ')}`);
   const bench = core.createBench(compiled.circuit);
   const tran = run.report.transients[0]!;
   const diagnostic = core.errorAt('x', 'message', { file: 'f.cir', line: 2, column: 3 }, 'R1 a b', 'a number');
-  return { text, parsed, netlist: parsed.netlist, flat: flat.circuit, compiled: compiled.circuit, bench, tran, trace: tran.trace, report: run.report, diagnostic, steady: { method: 'shooting' as const, iterations: 2, periods: 10, residual: 0.1 } };
+  return { text, parsed, netlist: parsed.netlist, flat: flat.circuit, compiled: compiled.circuit, bench, tran, trace: tran.trace!, report: run.report, diagnostic, steady: { method: 'shooting' as const, iterations: 2, periods: 10, residual: 0.1 } };
 }
 const M = made();
 const REAL: readonly unknown[] = Object.values(M);

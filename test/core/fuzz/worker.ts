@@ -32,7 +32,7 @@ function classify(req: CaseRequest): CaseOutcome {
   writeFileSync(join(dir, 'loop.lib'), '.include "loop.lib"\n', 'latin1');
   let result: RunResult;
   try {
-    result = runNetlistFile(file, { allowOutsideIncludes: req.flags.includes('--allow-outside-includes') });
+    result = runNetlistFile(file, { allowOutsideIncludes: req.flags.includes('--allow-outside-includes'), keepSteps: true });
   } catch (e) {
     return { kind: 'crash', detail: `runNetlistFile threw ${e instanceof Error ? `${e.name}: ${e.message}` : String(e)}` };
   }
@@ -51,7 +51,7 @@ function classify(req: CaseRequest): CaseOutcome {
   JSON.stringify(json);
   for (const t of report.transients) {
     const times = acceptedTimes(t);
-    transientCsv(times, sampleTrace(report.compiled, t.trace, times).nodes);
+    transientCsv(times, sampleTrace(report.compiled, t.trace!, times).nodes);
     transientCsv(t.times, t.nodes);
   }
   const notes = [formatWarnings(report.warnings), ...notEvaluatedErrors(report.figures?.limits ?? []).map(formatDiagnostic)].join('\n');

@@ -112,7 +112,7 @@ export function analysisPlots(report: RunReport): PlotSpec[] {
       ...(names.length < Object.keys(t.nodes).length ? { subtitle: `${names.length} of ${Object.keys(t.nodes).length} nodes (all in --csv)` } : {}),
       x: { label: 'time', unit: 's' },
       y: { label: 'node voltage', unit: 'V' },
-      series: names.map((n) => ({ name: `V(${n})`, x: t.times, y: t.nodes[n]!, style: 'line' as const })),
+      series: names.map((n) => ({ name: `V(${n})`, x: t.times, y: Array.from(t.nodes[n]!), style: 'line' as const })),
     });
   });
   report.sweeps.forEach((s, k) => {

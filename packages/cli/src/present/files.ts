@@ -1,21 +1,45 @@
 /**
  * Output files of the command (docs/output.md, "Output files"): a set of
- * files written whole or not at all. Every file's text is ready before
- * any is touched; each goes to a temporary name in its own folder and is
+ * files written whole or not at all. Each file's text is handed over
+ * whole or as pieces made while it is written (a long waveform is never one
+ * string); each goes to a temporary name in its own folder and is
  * renamed into place (a rename within one folder replaces the old file in
  * one step on POSIX file systems, rename(2)), so a failed or interrupted
  * run never leaves a truncated file under the name asked for. A target
  * that is the netlist itself, or is not a regular file, is refused.
  */
-import { lstatSync, realpathSync, renameSync, statSync, unlinkSync, writeFileSync } from 'node:fs';
+import { closeSync, lstatSync, openSync, realpathSync, renameSync, statSync, unlinkSync, writeFileSync, writeSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 
 /** One file to write: where, and its whole text. */
 export interface OutputFile {
   /** The path as the user gave it (or derived from it), for messages. */
   readonly path: string;
-  /** Its complete contents (UTF-8). */
-  readonly text: string;
+  /** Its complete contents (UTF-8): one string, or pieces in order, each written as it is made. */
+  readonly text: string | Iterable<string>;
+}
+
+/** Writes `text` to the new file `path` (flag `wx`: never over an existing file), piece by piece when it comes in pieces. */
+function writeNew(path: string, text: string | Iterable<string>): void {
+  if (typeof text === 'string') {
+    writeFileSync(path, text, { flag: 'wx' });
+    return;
+  }
+  const fd = openSync(path, 'wx');
+  // One buffer for every piece (grown when a piece needs more): a fresh buffer per piece would be
+  // memory outside the heap that the collector frees late, and the process would grow with the file.
+  let buffer = Buffer.allocUnsafe(1 << 16);
+  try {
+    for (const piece of text) {
+      const need = Buffer.byteLength(piece, 'utf8');
+      if (need > buffer.length) buffer = Buffer.allocUnsafe(need);
+      const length = buffer.write(piece, 'utf8');
+      // writeSync may write fewer bytes than asked (POSIX write(2)); the rest goes in further calls.
+      for (let at = 0; at < length; ) at += writeSync(fd, buffer, at, length - at);
+    }
+  } finally {
+    closeSync(fd);
+  }
 }
 
 /** The outcome of writing a set: done, or why nothing (or, after a failed rename, not all) was written. */
@@ -96,7 +120,7 @@ export function writeOutputFiles(files: readonly OutputFile[], protect: string):
     const temp = temporaryName(real, k);
     try {
       staged.push({ path: f.path, real, temp });
-      writeFileSync(temp, f.text, { flag: 'wx' });
+      writeNew(temp, f.text);
     } catch (e) {
       discard();
       return { ok: false, message: `cannot write ${f.path} (${writeFailure(real, e)}); no output file was written` };

@@ -50,12 +50,23 @@ export function formatAc(r: AcResult): string {
   return [heading(`Small-signal sweep at ${r.temperature} °C`), table(rows), ...(more > 0 ? [`  (${more} more node(s) in --json output)`] : [])].join('\n');
 }
 
+/**
+ * The waveforms of a transient as columns: the output grid, or with
+ * `steps` every accepted point from tstart on (the run must have kept them:
+ * runNetlist's `keepSteps`), nodes and branch currents.
+ */
+export function transientColumns(r: TransientResult, c: CompiledCircuit, steps: boolean): { times: readonly number[]; nodes: Readonly<Record<string, ArrayLike<number>>>; branches: Readonly<Record<string, ArrayLike<number>>> } {
+  if (!steps) return { times: r.times, nodes: r.nodes, branches: r.branches };
+  const trace = r.trace;
+  if (!trace) throw new Error('--steps needs a run that kept its accepted points (keepSteps)');
+  const times = acceptedTimes(r);
+  return { times, ...sampleTrace(c, trace, times) };
+}
+
 /** JSON form of a transient: the output grid, or with `steps` every accepted point. */
 export function transientJson(r: TransientResult, c: CompiledCircuit, steps: boolean): Record<string, unknown> {
   const base = { temperature: r.temperature, method: r.method, from_ic: r.fromIc, stats: r.stats };
-  if (!steps) return { ...base, points: 'grid', times: r.times, nodes: r.nodes, branches: r.branches };
-  const times = acceptedTimes(r);
-  return { ...base, points: 'accepted', times, ...sampleTrace(c, r.trace, times) };
+  return { ...base, points: steps ? 'accepted' : 'grid', ...transientColumns(r, c, steps) };
 }
 
 /** JSON form of a small-signal sweep: magnitude (dB) and phase (degrees) per node. */
@@ -67,11 +78,40 @@ export function acJson(r: AcResult): Record<string, unknown> {
   return { temperature: r.temperature, frequencies: r.frequencies, nodes };
 }
 
+/** Rows of CSV per piece that {@link transientCsvPieces} hands out. */
+const CSV_ROWS = 256;
+
 /** CSV text per figures.md: header `time,<node>,...`, then one row per point, SI units. */
-export function transientCsv(times: readonly number[], nodes: Readonly<Record<string, readonly number[]>>): string {
+export function transientCsv(times: ArrayLike<number>, nodes: Readonly<Record<string, ArrayLike<number>>>): string {
+  return [...transientCsvPieces(times, nodes)].join('');
+}
+
+/**
+ * The text of {@link transientCsv} in pieces, in order (the header line,
+ * then blocks of CSV_ROWS rows, each piece ending with a newline), so that
+ * a long run is written without ever being one string.
+ */
+export function* transientCsvPieces(times: ArrayLike<number>, nodes: Readonly<Record<string, ArrayLike<number>>>): Generator<string> {
   const names = Object.keys(nodes);
+  const columns = names.map((n) => nodes[n]!);
   const quote = (s: string): string => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
-  const lines = [['time', ...names].map(quote).join(',')];
-  times.forEach((t, k) => lines.push([t, ...names.map((n) => nodes[n]![k]!)].map((v) => String(v)).join(',')));
-  return `${lines.join('\n')}\n`;
+  yield `${['time', ...names].map(quote).join(',')}\n`;
+  const row: unknown[] = new Array<unknown>(columns.length + 1);
+  for (let k = 0; k < times.length; k += CSV_ROWS) {
+    const rows: string[] = [];
+    for (let j = k; j < Math.min(times.length, k + CSV_ROWS); j++) {
+      row[0] = times[j];
+      let finite = Number.isFinite(row[0]);
+      for (let c = 0; c < columns.length; c++) {
+        const v = columns[c]![j];
+        row[c + 1] = v;
+        finite &&= Number.isFinite(v);
+      }
+      // JSON.stringify writes a finite number as String does (ECMA-262, SerializeJSONProperty: ToString),
+      // but without String's cache of converted numbers, whose strings live until a full collection
+      // and made the process grow with the file. Any other value is written by String ("NaN").
+      rows.push(finite ? JSON.stringify(row).slice(1, -1) : row.map((v) => String(v)).join(','));
+    }
+    yield `${rows.join('\n')}\n`;
+  }
 }

@@ -1,8 +1,10 @@
 /**
  * The `.tran` analysis in the user's terms: node voltages and branch
  * currents on the output grid (every `tstep` from `tstart` to `tstop`, by
- * linear interpolation between accepted points), the accepted points
- * themselves, and the stepper's counters.
+ * linear interpolation between accepted points, sampled as the points are
+ * accepted so that memory does not grow with the number of steps), the
+ * accepted points themselves only when asked for (`keepSteps`), and the
+ * stepper's counters.
  */
 import type { StressMeter } from './stress.js';
 import type { LoadContext } from '@railcheck/devices';
@@ -25,12 +27,20 @@ export interface TransientResult {
   readonly stats: TransientStats;
   /** Output grid, s. */
   readonly times: readonly number[];
-  /** Node name → volts on the grid. */
-  readonly nodes: Readonly<Record<string, readonly number[]>>;
-  /** Branch-current name (voltage sources, inductors, E and H) → amps on the grid. */
-  readonly branches: Readonly<Record<string, readonly number[]>>;
-  /** Every accepted point (times and full solution vectors). */
-  readonly trace: TransientTrace;
+  /**
+   * Node name → volts on the grid (one value per entry of `times`). A
+   * Float64Array, which JSON.stringify writes as an object of indices:
+   * `Array.from` gives a plain array.
+   */
+  readonly nodes: Readonly<Record<string, Float64Array>>;
+  /** Branch-current name (voltage sources, inductors, E and H) → amps on the grid (one value per entry of `times`). */
+  readonly branches: Readonly<Record<string, Float64Array>>;
+  /**
+   * Every accepted point (times and full solution vectors), only when the
+   * run was asked to keep them (`runNetlist`'s `keepSteps`; the command's
+   * `--steps`); absent otherwise, so that a long run holds only its grid.
+   */
+  readonly trace?: TransientTrace;
 }
 
 /** What a `.tran` card asks for. */
@@ -41,6 +51,8 @@ export interface TransientRequest {
   readonly tmax: number | undefined;
   readonly method: IntegrationMethod;
   readonly fromIc: boolean;
+  /** Keep every accepted point (`TransientResult.trace`), for `acceptedTimes` and `sampleTrace`; default false. */
+  readonly keepSteps?: boolean;
 }
 
 /** Linear interpolation of unknown `index` of the trace at the grid times. */
@@ -57,6 +69,73 @@ function sample(trace: TransientTrace, index: number, grid: readonly number[]): 
     out.push(t1 > t0 ? v0 + ((v1 - v0) * (t - t0)) / (t1 - t0) : v0);
   }
   return out;
+}
+
+/**
+ * The output grid filled as the stepper accepts points: the same linear
+ * interpolation as {@link sampleTrace} (each grid time on the first
+ * accepted interval that reaches it, the last interval beyond the end),
+ * with the same operations, so the values are equal bit for bit; it holds
+ * the two newest accepted points and the grid values, never the run.
+ */
+export class GridSampler {
+  /** Values per sampled unknown on the grid. */
+  readonly values: Float64Array[];
+  /** The solution at the previous and at the newest accepted point. */
+  private prev: Float64Array;
+  private last: Float64Array;
+  private tPrev = 0;
+  private tLast = 0;
+  /** Accepted points seen. */
+  private count = 0;
+  /** Next grid point to fill. */
+  private next = 0;
+
+  /**
+   * @param grid - output times, s, ascending
+   * @param indices - the unknowns to sample (indices into the solution vector)
+   * @param size - length of a solution vector (unknowns + 1)
+   */
+  constructor(
+    private readonly grid: readonly number[],
+    private readonly indices: readonly number[],
+    size: number,
+  ) {
+    this.values = indices.map(() => new Float64Array(grid.length));
+    this.prev = new Float64Array(size);
+    this.last = new Float64Array(size);
+  }
+
+  /** Takes the accepted point (t s, solution x) and fills every grid time up to t. */
+  accept(t: number, x: Float64Array): void {
+    [this.prev, this.last] = [this.last, this.prev];
+    this.last.set(x);
+    this.tPrev = this.tLast;
+    this.tLast = t;
+    this.count++;
+    if (this.count < 2) return;
+    while (this.next < this.grid.length && !(this.grid[this.next]! > t)) this.fill(this.next++);
+  }
+
+  /** Fills the grid times after the last accepted point from the last interval (as sampleTrace extrapolates); returns the values. */
+  finish(): Float64Array[] {
+    while (this.next < this.grid.length) this.fill(this.next++);
+    return this.values;
+  }
+
+  private fill(k: number): void {
+    const t = this.grid[k]!;
+    const single = this.count < 2;
+    const t0 = single ? this.tLast : this.tPrev;
+    const t1 = this.tLast;
+    const p0 = single ? this.last : this.prev;
+    const p1 = this.last;
+    this.indices.forEach((index, j) => {
+      const v0 = p0[index]!;
+      const v1 = p1[index]!;
+      this.values[j]![k] = t1 > t0 ? v0 + ((v1 - v0) * (t - t0)) / (t1 - t0) : v0;
+    });
+  }
 }
 
 /** The output grid: tstart, tstart + tstep, ..., tstop. */
@@ -81,6 +160,15 @@ function checkTraceArguments(c: unknown, trace: unknown, grid: unknown): void {
   if (!Array.isArray(grid) || !grid.every((t) => typeof t === 'number' && Number.isFinite(t))) throw argumentError('sampleTrace', 'grid', 'an array of finite times in s', grid);
 }
 
+/** The signals a transient reports, in sampleTrace's order: every node (its unknown), then every branch current. */
+function outputSignals(c: CompiledCircuit): Array<{ name: string; index: number; branch: boolean }> {
+  const out = c.flat.nodes.map((node) => ({ name: node.name, index: c.nodeIndex.get(node.key)!, branch: false }));
+  c.unknowns.forEach((u, i) => {
+    if (u.kind === 'branch') out.push({ name: u.name, index: i, branch: true });
+  });
+  return out;
+}
+
 /** Samples every node and branch current of a trace on a grid. Throws RailcheckError (`bad-argument`) for arguments railcheck did not make. */
 export function sampleTrace(c: CompiledCircuit, trace: TransientTrace, grid: readonly number[]): { nodes: Record<string, number[]>; branches: Record<string, number[]> } {
   checkTraceArguments(c, trace, grid);
@@ -93,11 +181,17 @@ export function sampleTrace(c: CompiledCircuit, trace: TransientTrace, grid: rea
   return { nodes, branches };
 }
 
-/** The accepted time points of a result from its output start (tstart) on, s. */
+/**
+ * The accepted time points of a result from its output start (tstart) on,
+ * s. Throws RailcheckError (`bad-argument`) for a result railcheck did not
+ * make or one run without `keepSteps` (whose accepted points were not kept).
+ */
 export function acceptedTimes(r: TransientResult): number[] {
   TRANSIENT_RESULTS.check('acceptedTimes', 'r', r);
+  const trace = r.trace;
+  if (!trace) throw argumentError('acceptedTimes', 'r', 'a transient result run with keepSteps (its accepted points kept)', r);
   const start = r.times[0] ?? 0;
-  return Array.from(r.trace.times.subarray(0, r.trace.count)).filter((t) => t >= start);
+  return Array.from(trace.times.subarray(0, trace.count)).filter((t) => t >= start);
 }
 
 /**
@@ -125,11 +219,21 @@ const BUDGET_EXPECTED: Record<TransientBudgetExcess['budget'], string> = {
  * responsible when there is one, else at the `.tran` card (the run's
  * output as a whole is checked against MAX_OUTPUT_VALUES in pipeline/run.ts).
  * With `meter`, the peaks of part stress over the run are kept (analysis/stress.ts).
+ * The grid is sampled as the points are accepted ({@link GridSampler});
+ * the accepted points themselves are kept only with `req.keepSteps`.
  */
 export function transient(c: CompiledCircuit, temperature: number, req: TransientRequest, origin?: CardOrigin, meter?: StressMeter): TransientResult {
   // Peaks over the whole run: a mean over a switch-on is no rated quantity (docs/stress.md).
   meter?.begin(`the transient at ${temperature} °C`, false);
-  const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc, junctionCmin: JUNCTION_CMIN, ...(meter ? { onAccept: (t: number, ctx: LoadContext) => meter.sample(t, ctx.x, ctx.state) } : {}) });
+  const grid = outputGrid(req.tstep, req.tstart, req.tstop);
+  const signals = outputSignals(c);
+  const sampler = new GridSampler(grid, signals.map((s) => s.index), c.ws.size);
+  const keepSteps = req.keepSteps === true;
+  const onAccept = (t: number, ctx: LoadContext): void => {
+    sampler.accept(t, ctx.x);
+    meter?.sample(t, ctx.x, ctx.state);
+  };
+  const outcome = runTransient(c, { tstep: req.tstep, tstop: req.tstop, tmax: req.tmax, method: req.method, fromIc: req.fromIc, junctionCmin: JUNCTION_CMIN, keepTrace: keepSteps, onAccept });
   meter?.end();
   if (!outcome.ok && outcome.reason === 'budget') {
     const e = outcome.excess;
@@ -143,7 +247,9 @@ export function transient(c: CompiledCircuit, temperature: number, req: Transien
     const worst = outcome.stragglers.map((s) => `${s.name} = ${formatSI(s.value, '')} (last update ${formatSI(s.update, '')})`).join('; ');
     throw new RailcheckError([errorAt('transient-failed', `transient at ${temperature} °C failed ${where}${worst ? `. Least settled: ${worst}` : ''}`, origin?.pos, origin?.lineText, stepHint(outcome.stragglers.map((st) => st.name)))]);
   }
-  const grid = outputGrid(req.tstep, req.tstart, req.tstop);
-  const { nodes, branches } = sampleTrace(c, TRACES.mark(outcome.trace), grid);
-  return TRANSIENT_RESULTS.mark({ temperature, method: req.method, fromIc: req.fromIc, stats: outcome.stats, times: grid, nodes, branches, trace: outcome.trace });
+  const values = sampler.finish();
+  const nodes: Record<string, Float64Array> = {};
+  const branches: Record<string, Float64Array> = {};
+  signals.forEach((s, j) => ((s.branch ? branches : nodes)[s.name] = values[j]!));
+  return TRANSIENT_RESULTS.mark({ temperature, method: req.method, fromIc: req.fromIc, stats: outcome.stats, times: grid, nodes, branches, ...(keepSteps ? { trace: TRACES.mark(outcome.trace) } : {}) });
 }

@@ -10,7 +10,7 @@
 import { match } from 'ts-pattern';
 import { warningAt, RailcheckError, type Diagnostic, errorAt } from '../errors.js';
 import { MAX_OUTPUT_VALUES } from '../budgets.js';
-import { argumentDiagnostic, isRecord } from '../arguments.js';
+import { argumentDiagnostic, isRecord, optionsProblem } from '../arguments.js';
 import { parseNetlist, readNetlistFile, type ParseOptions, type ParseResult } from '../netlist/index.js';
 import { elaborate } from '../elaborate/elaborate.js';
 import type { FlatAnalysis, FlatCircuit } from '../elaborate/flat.js';
@@ -131,8 +131,12 @@ function operatingPointOrigin(flat: FlatCircuit): { origin: CardOrigin; what: st
   return { origin: { pos: { file: flat.file, line: 1, column: 1 }, lineText: flat.title }, what: 'which every run finds, at each .temp temperature' };
 }
 
-/** Runs every analysis of a compiled circuit, part stress kept by `meter` when given. Throws only RailcheckError (an analysis that fails). */
-export function analyse(c: CompiledCircuit, meter?: StressMeter): { operatingPoints: OperatingPoint[]; sweeps: DcSweep[]; transients: TransientResult[]; ac: AcResult[] } {
+/**
+ * Runs every analysis of a compiled circuit, part stress kept by `meter`
+ * when given, every accepted transient point with `keepSteps`. Throws only
+ * RailcheckError (an analysis that fails).
+ */
+export function analyse(c: CompiledCircuit, meter?: StressMeter, keepSteps = false): { operatingPoints: OperatingPoint[]; sweeps: DcSweep[]; transients: TransientResult[]; ac: AcResult[] } {
   const flat = c.flat;
   const operatingPoints: OperatingPoint[] = [];
   const sweeps: DcSweep[] = [];
@@ -149,7 +153,7 @@ export function analyse(c: CompiledCircuit, meter?: StressMeter): { operatingPoi
       else if (a.kind === 'ac') ac.push(acSweep(c, celsius, acFrequencies(a.variation, a.points, a.fstart, a.fstop), a.origin));
       else if (a.kind === 'tran') {
         const method = a.flags.includes('be') ? 'be' : 'trap';
-        transients.push(transient(c, celsius, { tstep: a.tstep, tstop: a.tstop, tstart: a.tstart, tmax: a.tmax, method, fromIc: a.flags.includes('fromic') }, a.origin, meter));
+        transients.push(transient(c, celsius, { tstep: a.tstep, tstop: a.tstop, tstart: a.tstart, tmax: a.tmax, method, fromIc: a.flags.includes('fromic'), keepSteps }, a.origin, meter));
       }
     }
   }
@@ -157,18 +161,36 @@ export function analyse(c: CompiledCircuit, meter?: StressMeter): { operatingPoi
   return { operatingPoints, sweeps, transients, ac };
 }
 
-/** Runs netlist text. */
-export function runNetlist(text: string, options: ParseOptions = {}): RunResult {
-  return runParsed(parseNetlist(text, options));
+/**
+ * The run's own option, `keepSteps`: keep every accepted point of each
+ * transient (`TransientResult.trace`, for `acceptedTimes` and
+ * `sampleTrace`; what the command's `--steps` writes). Default false: a
+ * transient keeps only its output grid, so memory does not grow with the
+ * number of time steps (docs/transient.md, "Output"). The other members
+ * are reading's, checked there. A keepSteps that is not a boolean is a
+ * `bad-argument` diagnostic.
+ */
+function keepStepsOf(fn: string, options: unknown): boolean | Diagnostic {
+  if (!isRecord(options)) return false;
+  return optionsProblem(fn, options, { keepSteps: 'boolean' }) ?? options['keepSteps'] === true;
 }
 
-/** Runs a netlist file. */
-export function runNetlistFile(path: string, options: Omit<ParseOptions, 'file'> = {}): RunResult {
-  return runParsed(readNetlistFile(path, options));
+/** Runs netlist text (options: those of parseNetlist, and `keepSteps`: keep every accepted transient point; default false). */
+export function runNetlist(text: string, options: ParseOptions & { readonly keepSteps?: boolean } = {}): RunResult {
+  const keep = keepStepsOf('runNetlist', options);
+  if (typeof keep !== 'boolean') return { ok: false, errors: [keep], warnings: [] };
+  return runParsed(parseNetlist(text, options), keep);
 }
 
-/** Runs a parse result (the whole pipeline after reading); never throws for anything a netlist can contain. */
-export function runParsed(parsed: ParseResult): RunResult {
+/** Runs a netlist file (options: those of readNetlistFile, and `keepSteps`: keep every accepted transient point; default false). */
+export function runNetlistFile(path: string, options: Omit<ParseOptions, 'file'> & { readonly keepSteps?: boolean } = {}): RunResult {
+  const keep = keepStepsOf('runNetlistFile', options);
+  if (typeof keep !== 'boolean') return { ok: false, errors: [keep], warnings: [] };
+  return runParsed(readNetlistFile(path, options), keep);
+}
+
+/** Runs a parse result (the whole pipeline after reading), every accepted transient point kept with `keepSteps`; never throws for anything a netlist can contain. */
+export function runParsed(parsed: ParseResult, keepSteps = false): RunResult {
   const prepared = prepare(parsed);
   if (!prepared.ok) return prepared;
   const c = prepared.compiled;
@@ -176,7 +198,7 @@ export function runParsed(parsed: ParseResult): RunResult {
   try {
     // Ratings beyond pmax are judged over every analysis too (docs/stress.md).
     const meter = hasStressRatings(c.flat.elements) ? new StressMeter(c) : undefined;
-    const results = analyse(c, meter);
+    const results = analyse(c, meter, keepSteps);
     // Figures are measured on a bench of their own at the first .temp (measure/create-bench.ts).
     const figures = c.flat.figures.length > 0 || c.flat.limits.length > 0 || isSineFed(c) ? measureFigures(c) : undefined;
     // The caution judges what the analyses reached, the sine-fed steady cycle among them (analysis/safety.ts).
