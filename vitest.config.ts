@@ -16,6 +16,8 @@ export default defineConfig({
     include: ['test/**/*.test.ts'],
     benchmark: { include: ['bench/**/*.bench.ts'] },
     testTimeout: 60_000,
+    // FORCE_SPARSE=1 runs every compiled circuit on the sparse solver (test/helpers/force-sparse.ts).
+    setupFiles: process.env.FORCE_SPARSE === '1' ? ['test/helpers/force-sparse.ts'] : [],
     pool: 'threads',
   },
 });
