@@ -212,6 +212,11 @@ export class SparseLu {
     this.pivoted = false;
   }
 
+  /** Step → pivot row (unknown) of the last factorisation, for measurements (a benchmark's floor on the same pivots). */
+  get pivotRows(): Int32Array {
+    return this.prow;
+  }
+
   /** Entries stored in L and U (without U's diagonal), for measurements. */
   get factorEntries(): number {
     return this.lp[this.n]! + this.up[this.n]!;
