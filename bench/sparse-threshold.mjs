@@ -11,6 +11,7 @@
 // Not a test (no timed tests). Run after `npx -y pnpm@10.34.9 build`:
 //   node bench/sparse-threshold.mjs [SCALE]   (SCALE multiplies the repetitions, default 1)
 import { performance } from 'node:perf_hooks';
+import { readFileSync } from 'node:fs';
 import { parseNetlist, prepare } from '@railcheck/core';
 import { SOLVER_PATH, solveOperatingPoint, newtonSolve, DEFAULT_NEWTON, loadAll, denseOf, createLuWorkspace, luFactor, luSolve } from '@railcheck/core/internal';
 
@@ -183,6 +184,7 @@ function bareDense(c) {
 }
 
 function caseRow(kind, n, text) {
+  n ??= compiled(text, 'sparse').ws.unknowns;
   const inner = Math.max(2, Math.round((scale * 20000) / n));
   const sparse = compiled(text, 'sparse');
   const tSparse = newtonIteration(sparse, inner);
@@ -217,18 +219,24 @@ function slope(rows) {
 }
 
 const rows = [];
+// The demo stages (their own DC operating point; figures, limits and analyses left out), small circuits for the threshold.
+for (const file of ['sensor-rail-follower.cir', 'railway-transformer-follower.cir', 'railway-capacitance-multiplier.cir', 'follower-led-reference.cir']) {
+  const text = readFileSync(new URL(`../examples/${file}`, import.meta.url), 'utf8').replace(/^\.(figure|limit|tran|ac|dc|spread|supply)\b.*$/gim, '');
+  rows.push(caseRow(file.replace(/\.cir$/, '').slice(0, 8), undefined, text));
+}
+for (const n of [4, 6, 8]) rows.push(caseRow('ladder', n, ladder(n)));
 for (const n of [10, 20, 30, 40, 50, 60, 80, 100, 200, 400, 800]) rows.push(caseRow('ladder', n, ladder(n)));
 for (const side of [5, 7, 10, 14, 20, 28]) rows.push(caseRow('mesh', side * side + 1, mesh(side)));
 
 const f = (v, d = 2) => (v === undefined ? '—' : v.toFixed(d));
-console.log('circuit  unknowns  entries  L+U   sparse iter µs  dense/sparse  sparse/bare sparse  dense/bare dense  pivotings  |x_bare − x|');
+console.log('circuit   unknowns  entries  L+U   sparse iter µs  dense/sparse  sparse/bare sparse  dense/bare dense  pivotings  |x_bare − x|');
 for (const r of rows) {
   console.log(
-    `${r.kind.padEnd(8)} ${String(r.n).padStart(8)} ${String(r.entries).padStart(8)} ${String(r.fill).padStart(5)}  ${f(r.tSparse, 1).padStart(14)}  ${f(r.tDense === undefined ? undefined : r.tDense / r.tSparse).padStart(12)}  ${f(r.tSparse / r.tBare).padStart(18)}  ${f(r.tDense === undefined ? undefined : r.tDense / r.tBareDense).padStart(16)}  ${String(r.pivotings).padStart(9)}  ${r.bareDiff.toExponential(1)}`,
+    `${r.kind.padEnd(9)} ${String(r.n).padStart(8)} ${String(r.entries).padStart(8)} ${String(r.fill).padStart(5)}  ${f(r.tSparse, 1).padStart(14)}  ${f(r.tDense === undefined ? undefined : r.tDense / r.tSparse).padStart(12)}  ${f(r.tSparse / r.tBare).padStart(18)}  ${f(r.tDense === undefined ? undefined : r.tDense / r.tBareDense).padStart(16)}  ${String(r.pivotings).padStart(9)}  ${r.bareDiff.toExponential(1)}`,
   );
 }
 const ladders = rows.filter((r) => r.kind === 'ladder' && r.n >= 50 && r.n <= 800);
 const meshes = rows.filter((r) => r.kind === 'mesh');
 console.log(`growth of one sparse Newton iteration: ladders ${ladders[0].n}..${ladders.at(-1).n} n^${slope(ladders).toFixed(2)}, mesh ${meshes[0].n}..${meshes.at(-1).n} n^${slope(meshes).toFixed(2)}`);
-const cross = rows.filter((r) => r.kind === 'ladder' && r.tDense !== undefined).find((r) => r.tDense > r.tSparse);
+const cross = rows.filter((r) => r.kind === 'ladder' && r.tDense !== undefined).sort((a, b) => a.n - b.n).find((r) => r.tDense > r.tSparse);
 console.log(`first ladder size where the sparse iteration is faster than the dense one: ${cross ? cross.n : 'none measured'} unknowns (engine threshold SOLVER_PATH.threshold = ${SOLVER_PATH.threshold})`);

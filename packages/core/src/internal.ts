@@ -26,7 +26,7 @@ export type { CompiledCircuit, CompileResult, UnknownInfo } from './engine/compi
 export { luFactor, luSolve, createLuWorkspace, PIVOT_RELATIVE_TOLERANCE } from './engine/lu.js';
 export type { LuWorkspace } from './engine/lu.js';
 export { SparseLu, createSparseLu, sparseLuFactor, sparseLuSolve, minimumDegreeOrder, eliminationFill, REUSE_PIVOT_THRESHOLD } from './engine/sparse-lu.js';
-export { SOLVER_PATH, usesSparse, denseOf } from './engine/workspace.js';
+export { SOLVER_PATH, usesSparse, denseOf, factorMatrix, solveMatrix } from './engine/workspace.js';
 export type { Workspace, StampList, LinearSolver } from './engine/workspace.js';
 export { newtonSolve, residualSettled, loadAll, DEFAULT_NEWTON, RESIDUAL_RELTOL } from './engine/newton.js';
 export type { NewtonOptions, NewtonResult } from './engine/newton.js';

@@ -104,7 +104,7 @@ export interface Workspace {
  * docs/engine.md, "Sparse path"), unless `force` names one. A switch for the
  * benchmark and for running the engine's tests through either path.
  */
-export const SOLVER_PATH: { force: 'dense' | 'sparse' | undefined; threshold: number } = { force: undefined, threshold: 40 };
+export const SOLVER_PATH: { force: 'dense' | 'sparse' | undefined; threshold: number } = { force: undefined, threshold: 20 };
 
 /** Whether a circuit of `unknowns` unknowns gets the sparse solver ({@link SOLVER_PATH}). */
 export function usesSparse(unknowns: number): boolean {
