@@ -15,11 +15,13 @@ export default defineConfig({
   test: {
     benchmark: { include: ['bench/**/*.bench.ts'] },
     testTimeout: 60_000,
+    // FORCE_SPARSE=1 runs every compiled circuit on the sparse solver (test/helpers/force-sparse.ts).
+    setupFiles: process.env.FORCE_SPARSE === '1' ? ['test/helpers/force-sparse.ts'] : [],
     pool: 'threads',
     projects: [
       { extends: true, test: { name: 'main', include: ['test/**/*.test.ts'] } },
-      // The transient tests again without the step predictor (test/support/predictor-off.ts).
-      { extends: true, test: { name: 'predictor-off', include: ['test/core/transient/**/*.test.ts', 'test/core/ac/tran-vs-ac.test.ts'], setupFiles: ['test/support/predictor-off.ts'] } },
+      // The transient tests again without the step predictor (test/helpers/predictor-off.ts).
+      { extends: true, test: { name: 'predictor-off', include: ['test/core/transient/**/*.test.ts', 'test/core/ac/tran-vs-ac.test.ts'], setupFiles: ['test/helpers/predictor-off.ts'] } },
     ],
   },
 });

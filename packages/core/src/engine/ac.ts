@@ -8,6 +8,7 @@
 import type { ReactiveContext } from '@railcheck/devices';
 import type { CompiledCircuit } from './compile.js';
 import { loadAll } from './newton.js';
+import { denseOf, stampStorage } from './workspace.js';
 import { complexLuFactor, complexLuSolve, createComplexLuWorkspace, type ComplexLuWorkspace } from './complex-lu.js';
 
 /** A linearised circuit, ready to be solved at any frequency. */
@@ -33,10 +34,11 @@ export function linearise(c: CompiledCircuit): SmallSignalSystem {
   const { ws } = c;
   ws.ctx.mode = 'dc';
   loadAll(c);
-  const conductance = new Float64Array(ws.lu.matrix);
+  // Both matrices scattered to dense from the stamped entries, whichever storage the circuit's solver uses.
+  const conductance = denseOf(ws, ws.matrix);
   const size = ws.size;
   const rctx: ReactiveContext = {
-    capacitance: new Float64Array(size * size),
+    capacitance: stampStorage(ws),
     excitationRe: new Float64Array(size),
     excitationIm: new Float64Array(size),
     x: ws.x,
@@ -44,7 +46,7 @@ export function linearise(c: CompiledCircuit): SmallSignalSystem {
   for (const d of c.devices) d.loadReactive(rctx);
   return {
     conductance,
-    capacitance: rctx.capacitance,
+    capacitance: denseOf(ws, rctx.capacitance),
     excitationRe: rctx.excitationRe,
     excitationIm: rctx.excitationIm,
     lu: createComplexLuWorkspace(ws.unknowns),

@@ -14,7 +14,7 @@ import { MAX_UNKNOWNS } from '../budgets.js';
 import type { FlatCircuit, FlatElement, FlatElementOf } from '../elaborate/flat.js';
 import { FLAT_CIRCUITS, GROUND_KEY, flatShapeProblem } from '../elaborate/flat.js';
 import { Brand, argumentDiagnostic, foreignFailure } from '../arguments.js';
-import { createWorkspace, type Workspace } from './workspace.js';
+import { StampCollector, createWorkspace, usesSparse, type Workspace } from './workspace.js';
 import { checkTopology } from './topology.js';
 import type { UnknownInfo } from './unknowns.js';
 
@@ -160,9 +160,12 @@ function compileChecked(flat: FlatCircuit): CompileResult {
   // A failed look-up leaves a device without its indices: stop before any slot is bound.
   if (errors.length > 0) return { ok: false, errors };
   if (unknowns.length - 1 > MAX_UNKNOWNS) return overUnknowns(flat, `${unknowns.length - 1} unknowns`);
-  const ws = createWorkspace(unknowns.length - 1, stateSize);
-  const binder: SlotBinder = { slot: (row, col) => row * ws.size + col };
+  // The devices' stamp positions first (the sparse path's pattern and ordering come from them), then the workspace.
+  const sparse = usesSparse(unknowns.length - 1);
+  const collector = new StampCollector(unknowns.length, sparse);
+  const binder: SlotBinder = { slot: (row, col) => collector.slot(row, col) };
   for (const d of devices) d.bind(binder);
+  const ws = createWorkspace(unknowns.length - 1, stateSize, collector.list(), sparse);
 
   const topo = checkTopology(flat, devices, unknowns);
   errors.push(...topo);
@@ -199,7 +202,8 @@ function resetWorkspace(ws: Workspace): void {
   ws.rhs.fill(0);
   ws.states[0].fill(0);
   ws.states[1].fill(0);
-  ws.lu.matrix.fill(0);
+  ws.matrix.fill(0);
+  if (ws.solver.kind === 'sparse') ws.solver.lu.reset();
   const ctx = ws.ctx;
   ctx.state = ws.states[0];
   ctx.statePrev = ws.states[1];
@@ -281,9 +285,19 @@ export function revalueCircuit(base: CompiledCircuit, flat: FlatCircuit): Compil
     if (mismatch) return compileCircuit(flat);
   }
   const ws = base.ws;
-  resetWorkspace(ws);
-  const binder: SlotBinder = { slot: (row, col) => row * ws.size + col };
+  // The same entries as base's devices bound, at the same positions; an entry base never stamped means another structure.
+  const positions = ws.stamps.positions;
+  const binder: SlotBinder = {
+    slot: (row, col) => {
+      if (row === 0 || col === 0) return 0;
+      const at = positions.get(row * ws.size + col);
+      if (at === undefined) mismatch = true;
+      return at ?? 0;
+    },
+  };
   for (const d of devices) d.bind(binder);
+  if (mismatch) return compileCircuit(flat);
+  resetWorkspace(ws);
   const circuit: CompiledCircuit = { flat, devices, elements: flat.elements, unknowns: base.unknowns, nodeIndex: base.nodeIndex, sources: sourcesOf(flat, devices), deviceByKey, ws };
   ALLOCATIONS.set(circuit, given);
   COMPILED_CIRCUITS.mark(circuit);

@@ -8,7 +8,7 @@
 import { TNOM, ZERO_CELSIUS } from '@railcheck/devices';
 import type { CompiledCircuit } from './compile.js';
 import { DEFAULT_NEWTON, loadAll, newtonSolve, type NewtonOptions, type NewtonResult } from './newton.js';
-import { luFactor, luSolve } from './lu.js';
+import { factorMatrix, solveMatrix } from './workspace.js';
 
 /** Junction conductance kept in every final solution, siemens. */
 export const FINAL_GMIN = 1e-12;
@@ -57,16 +57,17 @@ export function stragglers(c: CompiledCircuit, count = 3): Straggler[] {
   const n = ws.unknowns;
   loadAll(c);
   const s = ws.size;
-  const a = ws.lu.matrix;
+  const a = ws.matrix;
+  const { cols, offsets, rowStart } = ws.stamps;
   const residual = new Float64Array(s);
   for (let i = 1; i <= n; i++) {
     let sum = -ws.rhs[i]!;
-    for (let j = 1; j <= n; j++) sum += a[i * s + j]! * ws.x[j]!;
+    for (let k = rowStart[i]!; k < rowStart[i + 1]!; k++) sum += a[offsets[k]!]! * ws.x[cols[k]!]!;
     residual[i] = sum;
   }
   const update = new Float64Array(s);
-  if (luFactor(ws.lu) === 0) {
-    luSolve(ws.lu, ws.rhs, update);
+  if (factorMatrix(ws) === 0) {
+    solveMatrix(ws, ws.rhs, update);
     for (let i = 1; i <= n; i++) update[i] = update[i]! - ws.x[i]!;
   }
   const rows = Array.from({ length: n }, (_, k) => k + 1).map((i) => ({

@@ -12,7 +12,7 @@
  * that meet in each row ({@link residualSettled}). The loop allocates
  * nothing.
  */
-import { luFactor, luSolve } from './lu.js';
+import { clearStamps, factorMatrix, solveMatrix } from './workspace.js';
 import type { CompiledCircuit } from './compile.js';
 import { ENGINE_COUNTS } from './counters.js';
 
@@ -76,10 +76,10 @@ export type NewtonResult =
       readonly lastRatio: number;
     };
 
-/** Loads every device at `ws.x` into the matrix and right-hand side. */
+/** Loads every device at `ws.x` into the matrix and right-hand side; only the stamped entries of the matrix are cleared first. */
 export function loadAll(c: CompiledCircuit): void {
   const { ws, devices } = c;
-  ws.lu.matrix.fill(0);
+  clearStamps(ws);
   ws.rhs.fill(0);
   ws.ctx.limited = false;
   for (let i = 0; i < devices.length; i++) devices[i]!.load(ws.ctx);
@@ -91,20 +91,21 @@ export function loadAll(c: CompiledCircuit): void {
  * floor, the floor being `abstol` (A) for a KCL row and `vntol` (V) for a
  * branch row. For the companion form this residual is the KCL imbalance at
  * the node (Nagel 1975, ch. 4). Allocates nothing; the matrix must not yet
- * be factored.
+ * be factored. Walks the stamped entries only (workspace.ts, `StampList`).
  */
 export function residualSettled(c: CompiledCircuit, opts: NewtonOptions): boolean {
   const { ws, unknowns } = c;
-  const a = ws.lu.matrix;
+  const a = ws.matrix;
   const { x, rhs, size } = ws;
+  const { cols, offsets, rowStart } = ws.stamps;
   const rel = opts.residualReltol ?? RESIDUAL_RELTOL;
   for (let i = 1; i < size; i++) {
-    const row = i * size;
     const b = rhs[i]!;
     let sum = -b;
     let scale = Math.abs(b);
-    for (let j = 1; j < size; j++) {
-      const term = a[row + j]! * x[j]!;
+    // The stamped entries of row i in column order: the dense row's sum without its structural zeros.
+    for (let k = rowStart[i]!; k < rowStart[i + 1]!; k++) {
+      const term = a[offsets[k]!]! * x[cols[k]!]!;
       sum += term;
       const m = Math.abs(term);
       if (m > scale) scale = m;
@@ -146,9 +147,9 @@ function newtonIterate(c: CompiledCircuit, opts: NewtonOptions): NewtonResult {
     ctx.initJunctions = false;
     if (settled && !ctx.limited && residualSettled(c, opts)) return { converged: true, iterations: iter - 1 };
     if (iter > opts.maxIterations) break;
-    const singular = luFactor(ws.lu);
+    const singular = factorMatrix(ws);
     if (singular !== 0) return { converged: false, reason: 'singular', iterations: iter, worst: singular, lastRatio };
-    luSolve(ws.lu, ws.rhs, xNext);
+    solveMatrix(ws, ws.rhs, xNext);
     let ratio = 0;
     worst = 0;
     for (let i = 1; i <= n; i++) {
