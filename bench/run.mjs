@@ -6,7 +6,9 @@
 //     against a bare dense LU factor and solve of the same matrix (the
 //     textbook Doolittle elimination with partial pivoting, Golub and Van
 //     Loan, Matrix Computations, 4th ed., algorithm 3.4.1, written below),
-//     on diode-clamped RC ladders and the bridge-rectifier regulator;
+//     on diode-clamped RC ladders and the bridge-rectifier regulator, and,
+//     for circuits on the sparse path, against a bare sparse LU of the same
+//     pattern, column order and pivot rows (bench/lib/floors.mjs);
 //   - the growth of one iteration with the number of unknowns (the slope of
 //     log time on log n, least squares) on ladders and a 2-D mesh;
 //   - the rectifier regulator's transient for 1 s and 10 s: steps,
@@ -24,7 +26,8 @@ import { fileURLToPath } from 'node:url';
 import { performance } from 'node:perf_hooks';
 import { Bench } from 'tinybench';
 import { runNetlist } from '@railcheck/core';
-import { ENGINE_COUNTS, loadAll, luFactor, luSolve, resetEngineCounts } from '@railcheck/core/internal';
+import { ENGINE_COUNTS, denseOf, factorMatrix, loadAll, resetEngineCounts, solveMatrix } from '@railcheck/core/internal';
+import { bareDense, bareSparse } from './lib/floors.mjs';
 import { compiled, ladderNetlist, meshNetlist, toTransientMatrix } from './lib/circuits.mjs';
 
 const rootUrl = new URL('..', import.meta.url);
@@ -55,55 +58,6 @@ async function median(fn, time = TIME_MS) {
 // ---------------------------------------------------------------------------------------------
 // Floors.
 
-/** A bare dense LU factor and solve on a copy of `a` (row-major, stride s, ground row and column 0 skipped). */
-function bareDense(s) {
-  const n = s - 1;
-  const m = new Float64Array(s * s);
-  const perm = new Int32Array(s);
-  const y = new Float64Array(s);
-  const x = new Float64Array(s);
-  return (a, b) => {
-    m.set(a);
-    for (let k = 1; k <= n; k++) perm[k] = k;
-    for (let k = 1; k <= n; k++) {
-      let p = k;
-      let best = Math.abs(m[k * s + k]);
-      for (let i = k + 1; i <= n; i++) {
-        const v = Math.abs(m[i * s + k]);
-        if (v > best) [best, p] = [v, i];
-      }
-      if (p !== k) {
-        for (let j = 1; j <= n; j++) {
-          const t = m[k * s + j];
-          m[k * s + j] = m[p * s + j];
-          m[p * s + j] = t;
-        }
-        const t = perm[k];
-        perm[k] = perm[p];
-        perm[p] = t;
-      }
-      const pivot = m[k * s + k];
-      for (let i = k + 1; i <= n; i++) {
-        const l = m[i * s + k] / pivot;
-        if (l === 0) continue;
-        m[i * s + k] = l;
-        for (let j = k + 1; j <= n; j++) m[i * s + j] -= l * m[k * s + j];
-      }
-    }
-    for (let i = 1; i <= n; i++) {
-      let sum = b[perm[i]];
-      for (let j = 1; j < i; j++) sum -= m[i * s + j] * y[j];
-      y[i] = sum;
-    }
-    for (let i = n; i >= 1; i--) {
-      let sum = y[i];
-      for (let j = i + 1; j <= n; j++) sum -= m[i * s + j] * x[j];
-      x[i] = sum / m[i * s + i];
-    }
-    return x;
-  };
-}
-
 /**
  * One Newton iteration as newtonSolve does it, on the circuit as it stands
  * (its x is left where it is, so every call does the same work): load every
@@ -115,8 +69,8 @@ function newtonIteration(c) {
   const n = ws.unknowns;
   return () => {
     loadAll(c);
-    luFactor(ws.lu);
-    luSolve(ws.lu, ws.rhs, xNext);
+    factorMatrix(ws);
+    solveMatrix(ws, ws.rhs, xNext);
     let ratio = 0;
     for (let i = 1; i <= n; i++) {
       const tol = 1e-6 * Math.max(Math.abs(xNext[i]), Math.abs(x[i])) + (unknowns[i].kind === 'branch' ? 1e-12 : 1e-9);
@@ -130,7 +84,7 @@ function newtonIteration(c) {
 /** The matrix and right-hand side the circuit loads at its present state (a copy). */
 function loadedSystem(c) {
   loadAll(c);
-  return { a: Float64Array.from(c.ws.lu.matrix), b: Float64Array.from(c.ws.rhs) };
+  return { a: denseOf(c.ws, c.ws.matrix), b: Float64Array.from(c.ws.rhs) };
 }
 
 /** Least-squares slope of log(y) on log(x). */
@@ -157,7 +111,17 @@ async function iterationCase(group, name, c, target) {
   const floor = bareDense(c.ws.size);
   const tIter = await median(iterate);
   const tFloor = await median(() => floor(a, b));
-  return row(group, name, tIter * 1e3, 'µs / iteration', { unknowns: c.ws.unknowns, floor: tFloor * 1e3, floorName: 'bare dense LU', ratio: tIter / tFloor, target: target === undefined ? undefined : `≤ ${target}×`, met: target === undefined ? undefined : tIter / tFloor <= target });
+  const path = c.ws.solver.kind;
+  const extra = {};
+  if (path === 'sparse') {
+    // The bare sparse LU of the same pattern, column order and pivot rows (bench/lib/floors.mjs).
+    loadAll(c);
+    factorMatrix(c.ws);
+    const bare = bareSparse(c);
+    extra.sparseFloor = (await median(bare.run)) * 1e3;
+    extra.sparseRatio = tIter / (extra.sparseFloor / 1e3);
+  }
+  return row(group, name, tIter * 1e3, 'µs / iteration', { unknowns: c.ws.unknowns, path, floor: tFloor * 1e3, floorName: 'bare dense LU', ratio: tIter / tFloor, ...extra, target: target === undefined ? undefined : `≤ ${target}×`, met: target === undefined ? undefined : tIter / tFloor <= target });
 }
 
 console.error('railcheck benchmarks: one Newton iteration against the dense LU floor …');
@@ -180,6 +144,8 @@ for (const side of quick ? [5, 10, 14] : [5, 7, 10, 14, 20]) {
   const r = await iterationCase('growth', `mesh ${side}×${side}`, toTransientMatrix(compiled(meshNetlist(side)), 2e-4, 1e-6), undefined);
   meshPoints.push([r.unknowns, r.value]);
 }
+const at800 = rows.find((r) => r.case === 'ladder n=800');
+if (at800?.sparseRatio !== undefined) row('growth', 'ladder n=800 against the bare sparse LU', at800.sparseRatio, '× bare sparse LU (same pattern, order, pivots)', { floor: at800.sparseFloor, floorName: 'bare sparse LU, µs', target: '≤ 3×', met: at800.sparseRatio <= 3 });
 const ladderSlope = slope(ladderPoints);
 const meshSlope = slope(meshPoints);
 row('growth', 'ladder n=50…800', ladderSlope, 'slope of log t on log n', { target: '≤ 1.2', met: ladderSlope <= 1.2 });
@@ -271,7 +237,8 @@ console.error('… a periodic steady state …');
 const fmt = (v) => (v === undefined ? '' : typeof v !== 'number' ? String(v) : Math.abs(v) >= 100 ? v.toFixed(0) : Math.abs(v) >= 10 ? v.toFixed(1) : v.toPrecision(3));
 const detail = (r) =>
   [
-    r.unknowns !== undefined ? `n=${r.unknowns}` : '',
+    r.unknowns !== undefined ? `n=${r.unknowns}, ${r.path}` : '',
+    r.sparseRatio !== undefined ? `${fmt(r.sparseRatio)}× the bare sparse LU (${fmt(r.sparseFloor)} µs)` : '',
     r.accepted !== undefined ? `${r.accepted} steps, ${r.rejectedLte + r.rejectedNewton} rejected` : '',
     r.dcSolves !== undefined ? `${r.dcSolves} DC solves` : '',
     r.tranSteps !== undefined ? `${r.tranSteps} steps tried` : '',

@@ -13,6 +13,7 @@
 import { performance } from 'node:perf_hooks';
 import { readFileSync } from 'node:fs';
 import { parseNetlist, prepare } from '@railcheck/core';
+import { bareSparse } from './lib/floors.mjs';
 import { SOLVER_PATH, solveOperatingPoint, newtonSolve, DEFAULT_NEWTON, loadAll, denseOf, createLuWorkspace, luFactor, luSolve } from '@railcheck/core/internal';
 
 const scale = Number(process.argv[2] ?? 1);
@@ -76,98 +77,6 @@ function newtonIteration(c, inner) {
     c.ws.x.set(start);
     newtonSolve(c, opts);
   }, inner) / iters;
-}
-
-/**
- * The bare floor: the loaded matrix permuted by the engine's pivot rows and
- * column order (so the diagonal holds the pivots), its L and U patterns found
- * once, then an up-looking (row by row, i-k-j) elimination on them and the
- * two triangular solves: no pivot search, no checks, no reuse logic.
- */
-function bareSparse(c) {
-  const { ws } = c;
-  const lu = ws.solver.lu;
-  const n = ws.unknowns;
-  const order = lu.order;
-  const prow = lu.pivotRows;
-  const colStep = new Int32Array(n + 1);
-  for (let k = 0; k < n; k++) colStep[order[k]] = k;
-  const { rows, cols, offsets, count } = ws.stamps;
-  // Pattern of each permuted row, then its elimination closure (symbolic, once).
-  const rowOf = new Int32Array(n + 1);
-  for (let k = 0; k < n; k++) rowOf[prow[k]] = k;
-  const pattern = Array.from({ length: n }, () => new Set());
-  const source = Array.from({ length: n }, () => []);
-  for (let e = 0; e < count; e++) {
-    const i = rowOf[rows[e]];
-    const j = colStep[cols[e]];
-    pattern[i].add(j);
-    source[i].push([j, offsets[e]]);
-  }
-  const upper = [];
-  for (let i = 0; i < n; i++) {
-    const set = pattern[i];
-    set.add(i);
-    const lower = [...set].filter((j) => j < i).sort((a, b) => a - b);
-    for (let t = 0; t < lower.length; t++) {
-      for (const j of upper[lower[t]]) {
-        if (!set.has(j)) {
-          set.add(j);
-          if (j < i) {
-            lower.push(j);
-            lower.sort((a, b) => a - b);
-          }
-        }
-      }
-    }
-    upper.push([...set].filter((j) => j > i).sort((a, b) => a - b));
-    pattern[i] = [...set].sort((a, b) => a - b);
-  }
-  const rowPtr = new Int32Array(n + 1);
-  for (let i = 0; i < n; i++) rowPtr[i + 1] = rowPtr[i] + pattern[i].length;
-  const colIdx = new Int32Array(rowPtr[n]);
-  const diagAt = new Int32Array(n);
-  for (let i = 0; i < n; i++) pattern[i].forEach((j, t) => { colIdx[rowPtr[i] + t] = j; if (j === i) diagAt[i] = rowPtr[i] + t; });
-  const val = new Float64Array(rowPtr[n]);
-  const srcPos = [];
-  const srcOff = [];
-  for (let i = 0; i < n; i++) for (const [j, off] of source[i]) { srcPos.push(rowPtr[i] + pattern[i].indexOf(j)); srcOff.push(off); }
-  const sp = Int32Array.from(srcPos);
-  const so = Int32Array.from(srcOff);
-  const w = new Float64Array(n);
-  const y = new Float64Array(n);
-  const values = new Float64Array(ws.matrix);
-  const b = ws.rhs;
-  const x = new Float64Array(n + 1);
-  const run = () => {
-    val.fill(0);
-    for (let t = 0; t < sp.length; t++) val[sp[t]] += values[so[t]];
-    for (let i = 0; i < n; i++) {
-      const r0 = rowPtr[i];
-      const r1 = rowPtr[i + 1];
-      for (let p = r0; p < r1; p++) w[colIdx[p]] = val[p];
-      for (let p = r0; p < diagAt[i]; p++) {
-        const k = colIdx[p];
-        const l = w[k] / val[diagAt[k]];
-        w[k] = l;
-        for (let q = diagAt[k] + 1; q < rowPtr[k + 1]; q++) w[colIdx[q]] -= l * val[q];
-      }
-      for (let p = r0; p < r1; p++) val[p] = w[colIdx[p]];
-    }
-    for (let i = 0; i < n; i++) {
-      let s = b[prow[i]];
-      for (let p = rowPtr[i]; p < diagAt[i]; p++) s -= val[p] * y[colIdx[p]];
-      y[i] = s;
-    }
-    for (let i = n - 1; i >= 0; i--) {
-      let s = y[i];
-      for (let p = diagAt[i] + 1; p < rowPtr[i + 1]; p++) s -= val[p] * y[colIdx[p]];
-      y[i] = s / val[diagAt[i]];
-    }
-    for (let k = 0; k < n; k++) x[order[k]] = y[k];
-  };
-  run();
-  return { run, x, fill: rowPtr[n] };
 }
 
 /** The bare dense LU (factor and solve) of the same matrix, copied in each time. */

@@ -9,6 +9,7 @@
  * never sees a stack trace.
  */
 import { jsonText, writeJson } from './present/json-text.js';
+import { syncStream } from './present/stdio.js';
 import { formatDiagnostic, runNetlistFile, type Diagnostic, type FigureCurves, type LimitResult, type RunReport, type RunResult } from '@railcheck/core';
 import { match } from 'ts-pattern';
 import { isAbsolute, relative } from 'node:path';
@@ -41,10 +42,13 @@ export interface CliIo {
   readonly write?: (piece: string) => void;
 }
 
+const stdout = syncStream(1);
+const stderr = syncStream(2);
+// Written synchronously (present/stdio.ts): a pipe's reader sets the pace, and one that closes early ends the output quietly.
 const defaultIo: CliIo = {
-  out: (t) => process.stdout.write(t.endsWith('\n') ? t : `${t}\n`),
-  err: (t) => process.stderr.write(t.endsWith('\n') ? t : `${t}\n`),
-  write: (piece) => process.stdout.write(piece),
+  out: (t) => stdout.write(t.endsWith('\n') ? t : `${t}\n`),
+  err: (t) => stderr.write(t.endsWith('\n') ? t : `${t}\n`),
+  write: (piece) => stdout.write(piece),
 };
 
 /** Characters gathered before a piece of streamed output is written. */
