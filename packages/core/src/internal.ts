@@ -25,7 +25,7 @@ export { compileCircuit, revalueCircuit } from './engine/compile.js';
 export type { CompiledCircuit, CompileResult, UnknownInfo } from './engine/compile.js';
 export { luFactor, luSolve, createLuWorkspace, PIVOT_RELATIVE_TOLERANCE } from './engine/lu.js';
 export type { LuWorkspace } from './engine/lu.js';
-export { newtonSolve, residualSettled, DEFAULT_NEWTON, RESIDUAL_RELTOL } from './engine/newton.js';
+export { newtonSolve, loadAll, residualSettled, DEFAULT_NEWTON, RESIDUAL_RELTOL } from './engine/newton.js';
 export type { NewtonOptions, NewtonResult } from './engine/newton.js';
 export { solveOperatingPoint, setCircuitTemperature, FINAL_GMIN } from './engine/dcop.js';
 export type { OpMethod, OpOutcome, Straggler } from './engine/dcop.js';
