@@ -6,7 +6,7 @@
 
 import { TNOM, thermalVoltage } from './constants.js';
 import type { DeviceReport, LoadContext, ReactiveContext, SlotBinder, Topology, UnknownAllocator } from './device.js';
-import { type ChargeOut, criticalVoltage, pnjlim } from './junction.js';
+import { type ChargeOut, type DepletionForm, criticalVoltage, depletionForm, pnjlim } from './junction.js';
 import type { BjtModel } from './models.js';
 import { type BjtCurrents, evalBjtCharges, evalBjtNpn, newBjtCurrents, polaritySign, scaleBjtModel } from './bjt-model.js';
 import { PairSlots, addAt, at, injectPair } from './stamp.js';
@@ -18,6 +18,9 @@ class BjtImpl implements Bjt {
   private readonly sign: 1 | -1;
   private scaled: BjtModel;
   private vt = 0;
+  /** Depletion constants of the scaled model's two junctions: once per temperature. */
+  private beForm: DepletionForm;
+  private bcForm: DepletionForm;
   private vcritBe = 0;
   private vcritBc = 0;
   /** Internal collector, base and emitter (the terminals when the resistance is 0). */
@@ -62,6 +65,8 @@ class BjtImpl implements Bjt {
     this.sign = polaritySign(model);
     this.hasCharge = model.CJE !== 0 || model.CJC !== 0 || model.TF !== 0 || model.TR !== 0;
     this.scaled = model;
+    this.beForm = depletionForm(model.CJE, model.VJE, model.MJE);
+    this.bcForm = depletionForm(model.CJC, model.VJC, model.MJC);
     this.setTemperature(TNOM);
   }
 
@@ -109,6 +114,9 @@ class BjtImpl implements Bjt {
   setTemperature(kelvin: number): void {
     this.scaled = scaleBjtModel(this.model, kelvin, this.area);
     this.vt = thermalVoltage(kelvin);
+    const s = this.scaled;
+    this.beForm = depletionForm(s.CJE, s.VJE, s.MJE);
+    this.bcForm = depletionForm(s.CJC, s.VJC, s.MJC);
     this.vcritBe = criticalVoltage(this.scaled.NF * this.vt, this.scaled.IS);
     this.vcritBc = criticalVoltage(this.scaled.NR * this.vt, this.scaled.IS);
   }
@@ -180,7 +188,7 @@ class BjtImpl implements Bjt {
   private loadCharges(ctx: LoadContext, vbe: number, vbc: number): void {
     const sg = this.sign;
     const off = this.chargeOff;
-    evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc);
+    evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc, this.beForm, this.bcForm);
     // Stored in the terminal frame: charge on the base side of each junction.
     ctx.state[off] = sg * this.qbe.q;
     ctx.state[off + 2] = sg * this.qbc.q;
@@ -205,7 +213,7 @@ class BjtImpl implements Bjt {
     const vbe = sg * (at(ctx.x, this.bi) - at(ctx.x, this.ei));
     const vbc = sg * (at(ctx.x, this.bi) - at(ctx.x, this.ci));
     evalBjtNpn(vbe, vbc, this.scaled, this.vt, this.cur);
-    evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc);
+    evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc, this.beForm, this.bcForm);
     this.pairBE.add(ctx.capacitance, this.qbe.c);
     this.pairBC.add(ctx.capacitance, this.qbc.c);
   }
