@@ -21,6 +21,9 @@ class BjtImpl implements Bjt {
   /** Depletion constants of the scaled model's two junctions: once per temperature. */
   private beForm: DepletionForm;
   private bcForm: DepletionForm;
+  /** Limited junction voltages of the present load, NPN frame, V (read by loadCharges). */
+  private vbe = 0;
+  private vbc = 0;
   private vcritBe = 0;
   private vcritBc = 0;
   /** Internal collector, base and emitter (the terminals when the resistance is 0). */
@@ -144,38 +147,32 @@ class BjtImpl implements Bjt {
     evalBjtNpn(vbe, vbc, this.scaled, this.vt, k);
     const m = ctx.matrix;
     const rhs = ctx.rhs;
-    this.row(m, rhs, this.ci, this.sCC, this.sCB, this.sCE, k.ic, k.dIcDvbe, k.dIcDvbc, vbe, vbc);
-    this.row(m, rhs, this.bi, this.sBC, this.sBB, this.sBE, k.ib, k.dIbDvbe, k.dIbDvbc, vbe, vbc);
-    this.row(m, rhs, this.ei, this.sEC, this.sEB, this.sEE, k.ie, k.dIeDvbe, k.dIeDvbc, vbe, vbc);
+    // The three KCL rows of the companion: each terminal current is sign·I(vbe, vbc) with
+    // vbe = sign·(Vb − Ve), vbc = sign·(Vb − Vc), so the node derivatives carry sign² = 1 and only
+    // the companion current takes the sign. Written out rather than called: a call this large is
+    // not inlined, and its floating-point arguments would be boxed on the heap at every load.
+    addAt(m, this.sCB, k.dIcDvbe + k.dIcDvbc);
+    addAt(m, this.sCE, -k.dIcDvbe);
+    addAt(m, this.sCC, -k.dIcDvbc);
+    addAt(rhs, this.ci, -sg * (k.ic - k.dIcDvbe * vbe - k.dIcDvbc * vbc));
+    addAt(m, this.sBB, k.dIbDvbe + k.dIbDvbc);
+    addAt(m, this.sBE, -k.dIbDvbe);
+    addAt(m, this.sBC, -k.dIbDvbc);
+    addAt(rhs, this.bi, -sg * (k.ib - k.dIbDvbe * vbe - k.dIbDvbc * vbc));
+    addAt(m, this.sEB, k.dIeDvbe + k.dIeDvbc);
+    addAt(m, this.sEE, -k.dIeDvbe);
+    addAt(m, this.sEC, -k.dIeDvbc);
+    addAt(rhs, this.ei, -sg * (k.ie - k.dIeDvbe * vbe - k.dIeDvbc * vbc));
     // gmin across each junction is linear, so it has no companion current.
     this.pairBE.add(m, ctx.gmin);
     this.pairBC.add(m, ctx.gmin);
     this.loadResistors(m);
-    if (this.hasCharge) this.loadCharges(ctx, vbe, vbc);
-  }
-
-  /**
-   * One KCL row of the companion: the terminal current is sign·I(vbe, vbc)
-   * with vbe = sign·(Vb − Ve), vbc = sign·(Vb − Vc), so the node derivatives
-   * carry sign² = 1 and only the companion current takes the sign.
-   */
-  private row(
-    m: Float64Array,
-    rhs: Float64Array,
-    node: number,
-    sC: number,
-    sB: number,
-    sE: number,
-    i: number,
-    dbe: number,
-    dbc: number,
-    vbe: number,
-    vbc: number,
-  ): void {
-    addAt(m, sB, dbe + dbc);
-    addAt(m, sE, -dbe);
-    addAt(m, sC, -dbc);
-    addAt(rhs, node, -this.sign * (i - dbe * vbe - dbc * vbc));
+    if (this.hasCharge) {
+      // Through fields, not arguments, for the same reason.
+      this.vbe = vbe;
+      this.vbc = vbc;
+      this.loadCharges(ctx);
+    }
   }
 
   private loadResistors(m: Float64Array): void {
@@ -185,7 +182,10 @@ class BjtImpl implements Bjt {
     if (this.ei !== this.nodes[2]) this.re.add(m, 1 / s.RE);
   }
 
-  private loadCharges(ctx: LoadContext, vbe: number, vbc: number): void {
+  /** Junction charges at {@link vbe} and {@link vbc} (NPN frame, V). */
+  private loadCharges(ctx: LoadContext): void {
+    const vbe = this.vbe;
+    const vbc = this.vbc;
     const sg = this.sign;
     const off = this.chargeOff;
     evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc, this.beForm, this.bcForm);

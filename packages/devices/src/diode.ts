@@ -107,6 +107,8 @@ class DiodeImpl implements Diode {
   private nvt = 0;
   private nbv = 0;
   private form: DepletionForm;
+  /** The junction voltage of the present load, V (read by loadCharge). */
+  private vd = 0;
   private vcrit = 0;
   private vcritBv = 0;
   /** Junction anode: the internal node behind RS, else the anode itself. */
@@ -169,13 +171,14 @@ class DiodeImpl implements Diode {
   /** Nagel limiting of the junction voltage; the breakdown side is mirrored about −BV. */
   private limit(vd: number, vold: number): number {
     const s = this.scaled;
-    if (s.BV !== undefined) {
-      const nbv = this.nbv;
-      if (vd < Math.min(0, -s.BV + 10 * nbv)) {
-        return -(pnjlim(-(vd + s.BV), -(vold + s.BV), nbv, this.vcritBv) + s.BV);
-      }
-    }
-    return pnjlim(vd, vold, this.nvt, this.vcrit);
+    // Mirrored about −BV below it: −(pnjlim(−(vd + BV), −(vold + BV), NBV·Vt, Vcrit,BV) + BV). One call
+    // site for both sides (±1 and the offset are exact): a second one is left out of the inlining of
+    // load, and its floating-point arguments and result would then be boxed on the heap at every load.
+    const breakdown = s.BV !== undefined && vd < Math.min(0, -s.BV + 10 * this.nbv);
+    const sign = breakdown ? -1 : 1;
+    const offset = breakdown ? (s.BV ?? 0) : 0;
+    const limited = pnjlim(sign * (vd + offset), sign * (vold + offset), breakdown ? this.nbv : this.nvt, breakdown ? this.vcritBv : this.vcrit);
+    return sign * limited - offset;
   }
 
   load(ctx: LoadContext): void {
@@ -191,12 +194,21 @@ class DiodeImpl implements Diode {
     this.junction.add(ctx.matrix, cur.g + ctx.gmin);
     injectPair(ctx.rhs, this.ja, k, cur.i - cur.g * vd);
     if (this.ja !== this.nodes[0]) this.series.add(ctx.matrix, 1 / this.scaled.RS);
-    const cmin = this.model.CJO === 0 ? ctx.junctionCmin : 0;
-    if (this.hasCharge || cmin > 0) this.loadCharge(ctx, vd, cmin);
+    if (this.hasCharge || (this.model.CJO === 0 && ctx.junctionCmin > 0)) {
+      this.vd = vd;
+      this.loadCharge(ctx);
+    }
   }
 
-  /** Charge of the junction; `cmin` (F) is the transient-only minimum capacitance (docs/transient.md). */
-  private loadCharge(ctx: LoadContext, vd: number, cmin: number): void {
+  /**
+   * Charge of the junction at {@link vd}, with the transient-only minimum
+   * capacitance cmin (F; docs/transient.md) when CJO is 0. The voltage comes
+   * through a field, not an argument: this call is not inlined, and a
+   * floating-point argument would be boxed on the heap at every load.
+   */
+  private loadCharge(ctx: LoadContext): void {
+    const vd = this.vd;
+    const cmin = this.model.CJO === 0 ? ctx.junctionCmin : 0;
     const off = this.chargeOff;
     evalDiodeCharge(vd, this.scaled, this.cur, this.chg, this.form);
     // The minimum capacitance's charge is recorded at the initial DC point too, so the first
