@@ -40,19 +40,22 @@ export function safeExpm1(x: number): number {
  * Below this magnitude of the argument {@link expm1From} calls expm1; at and
  * above it, exp(x) − 1 from the exponential already computed is as accurate.
  */
-export const EXPM1_DIRECT_BELOW = 1;
+export const EXPM1_DIRECT_BELOW = 4;
 
 /**
  * safeExpm1(x) from `e` = safeExpSlope(x) (exp(x) below the limit), so that
- * a junction needs one exponential for its current and its conductance.
- * For |x| ≥ 1 the subtraction loses nothing: e − 1 ≥ (1 − 1/e)·e for x ≥ 1,
- * so the rounding of e (half an ulp, plus exp's own error of under an ulp)
- * grows by at most e/(e − 1) ≤ 1.6 relative to the result, and one more
- * rounding for the subtraction; for x ≤ −1, 1 − e ≥ 0.63 while e ≤ 0.37
- * carries an error below 0.6 ulp of 0.37, and the subtraction rounds once.
- * So the result is within about three ulps of expm1(x) (measured: within
- * 2 ulps, test/devices/junction-fast.test.ts). Only for |x| < 1, where
- * e − 1 would cancel (near zero bias), is expm1 itself called.
+ * a junction needs one exponential for its current and its conductance
+ * wherever it conducts or blocks in earnest. For x ≥ 4 the subtraction loses
+ * nothing: e − 1 ≥ 0.98·e, so the rounding of e (half an ulp, plus exp's own
+ * error of under an ulp) grows by at most 2 % relative to the result, and
+ * the subtraction rounds once; for x ≤ −4, 1 − e ≥ 0.98 while e ≤ 0.019
+ * carries an error below an ulp of 0.019, and the subtraction rounds once.
+ * So the result is within about two ulps of expm1(x) (measured: within one,
+ * test/devices/junction-fast.test.ts). For |x| < 4, near zero bias, expm1
+ * itself is called. (With the threshold at 1 the error bound is still about
+ * three ulps, but the 1 s bridge rectifier of
+ * test/core/transient/rectifier.test.ts then ended with a step below its
+ * floor at 0.147 s: that run turns on differences of an ulp; see the commit.)
  * Dimensionless.
  * @param x exponent argument
  * @param e safeExpSlope(x)
