@@ -21,7 +21,7 @@ class BjtImpl implements Bjt {
   /** Depletion constants of the scaled model's two junctions: once per temperature. */
   private beForm: DepletionForm;
   private bcForm: DepletionForm;
-  /** Limited junction voltages of the present load, NPN frame, V (read by loadCharges). */
+  /** Limited junction voltages of the present load, NPN frame, V (read by evaluate and loadCharges). */
   private vbe = 0;
   private vbc = 0;
   private vcritBe = 0;
@@ -144,7 +144,9 @@ class BjtImpl implements Bjt {
     state[this.vOff] = vbe;
     state[this.vOff + 1] = vbc;
     const k = this.cur;
-    evalBjtNpn(vbe, vbc, this.scaled, this.vt, k);
+    this.vbe = vbe;
+    this.vbc = vbc;
+    this.evaluate();
     const m = ctx.matrix;
     const rhs = ctx.rhs;
     // The three KCL rows of the companion: each terminal current is sign·I(vbe, vbc) with
@@ -167,12 +169,17 @@ class BjtImpl implements Bjt {
     this.pairBE.add(m, ctx.gmin);
     this.pairBC.add(m, ctx.gmin);
     this.loadResistors(m);
-    if (this.hasCharge) {
-      // Through fields, not arguments, for the same reason.
-      this.vbe = vbe;
-      this.vbc = vbc;
-      this.loadCharges(ctx);
-    }
+    // The junction voltages reach loadCharges through fields, for the same reason.
+    if (this.hasCharge) this.loadCharges(ctx);
+  }
+
+  /**
+   * The transport currents at {@link vbe} and {@link vbc} into `cur`: a call
+   * of its own, with no floating-point arguments, so that evalBjtNpn is
+   * inlined here rather than called from load with its voltages boxed.
+   */
+  private evaluate(): void {
+    evalBjtNpn(this.vbe, this.vbc, this.scaled, this.vt, this.cur);
   }
 
   private loadResistors(m: Float64Array): void {
