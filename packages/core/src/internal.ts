@@ -23,7 +23,7 @@ export type { FlatCircuit, FlatElement, FlatNode, FlatAnalysis, FlatSupply, Flat
 
 export { compileCircuit, revalueCircuit } from './engine/compile.js';
 export type { CompiledCircuit, CompileResult, UnknownInfo } from './engine/compile.js';
-export { luFactor, luSolve, createLuWorkspace, PIVOT_RELATIVE_TOLERANCE } from './engine/lu.js';
+export { luFactor, luFactorBounded, luSolve, createLuWorkspace, PIVOT_RELATIVE_TOLERANCE } from './engine/lu.js';
 export type { LuWorkspace } from './engine/lu.js';
 export { newtonSolve, residualSettled, loadAll, DEFAULT_NEWTON, RESIDUAL_RELTOL } from './engine/newton.js';
 export { ENGINE_COUNTS, resetEngineCounts } from './engine/counters.js';

@@ -5,7 +5,7 @@
  */
 
 import { TNOM, thermalVoltage } from './constants.js';
-import { type ChargeOut, depletion, safeExpSlope, safeExpm1 } from './junction.js';
+import { type ChargeOut, type DepletionForm, depletionAt, depletionForm, expm1From, safeExpSlope } from './junction.js';
 import type { BjtModel } from './models.js';
 
 /** Terminal currents (A, into collector, base, emitter) and their derivatives (S) in the junction voltages. */
@@ -69,10 +69,13 @@ export function evalBjtNpn(vbe: number, vbc: number, s: BjtModel, vt: number, ou
   const nr = s.NR * vt;
   const xf = vbe / nf;
   const xr = vbc / nr;
-  const icc = s.IS * safeExpm1(xf);
-  const gcc = (s.IS * safeExpSlope(xf)) / nf;
-  const iec = s.IS * safeExpm1(xr);
-  const gec = (s.IS * safeExpSlope(xr)) / nr;
+  // One exponential per junction serves its current and conductance (expm1From).
+  const ef = safeExpSlope(xf);
+  const er = safeExpSlope(xr);
+  const icc = s.IS * expm1From(xf, ef);
+  const gcc = (s.IS * ef) / nf;
+  const iec = s.IS * expm1From(xr, er);
+  const gec = (s.IS * er) / nr;
   const invVaf = s.VAF === undefined ? 0 : 1 / s.VAF;
   const invVar = s.VAR === undefined ? 0 : 1 / s.VAR;
   const early = 1 - vbc * invVaf - vbe * invVar;
@@ -98,12 +101,23 @@ export function evalBjtNpn(vbe: number, vbc: number, s: BjtModel, vt: number, ou
  * Junction charges of models.md in the NPN frame: Qbe = depletion(CJE, VJE,
  * MJE) + TF·Icc and Qbc = depletion(CJC, VJC, MJC) + TR·Iec, with their
  * capacitances. `cur` must hold {@link evalBjtNpn} at the same voltages.
+ * `beForm` and `bcForm` are the junctions' {@link depletionForm}s, made here
+ * when not given.
  */
-export function evalBjtCharges(vbe: number, vbc: number, s: BjtModel, cur: BjtCurrents, be: ChargeOut, bc: ChargeOut): void {
-  depletion(vbe, s.CJE, s.VJE, s.MJE, be);
+export function evalBjtCharges(
+  vbe: number,
+  vbc: number,
+  s: BjtModel,
+  cur: BjtCurrents,
+  be: ChargeOut,
+  bc: ChargeOut,
+  beForm: DepletionForm = depletionForm(s.CJE, s.VJE, s.MJE),
+  bcForm: DepletionForm = depletionForm(s.CJC, s.VJC, s.MJC),
+): void {
+  depletionAt(vbe, beForm, be);
   be.q += s.TF * cur.icc;
   be.c += s.TF * cur.gcc;
-  depletion(vbc, s.CJC, s.VJC, s.MJC, bc);
+  depletionAt(vbc, bcForm, bc);
   bc.q += s.TR * cur.iec;
   bc.c += s.TR * cur.gec;
 }

@@ -6,7 +6,7 @@
 
 import { TNOM, thermalVoltage } from './constants.js';
 import type { DeviceReport, LoadContext, ReactiveContext, SlotBinder, Topology, UnknownAllocator } from './device.js';
-import { type ChargeOut, criticalVoltage, pnjlim } from './junction.js';
+import { type ChargeOut, type DepletionForm, criticalVoltage, depletionForm, pnjlim } from './junction.js';
 import type { BjtModel } from './models.js';
 import { type BjtCurrents, evalBjtCharges, evalBjtNpn, newBjtCurrents, polaritySign, scaleBjtModel } from './bjt-model.js';
 import { PairSlots, addAt, at, injectPair } from './stamp.js';
@@ -18,6 +18,12 @@ class BjtImpl implements Bjt {
   private readonly sign: 1 | -1;
   private scaled: BjtModel;
   private vt = 0;
+  /** Depletion constants of the scaled model's two junctions: once per temperature. */
+  private beForm: DepletionForm;
+  private bcForm: DepletionForm;
+  /** Limited junction voltages of the present load, NPN frame, V (read by evaluate and loadCharges). */
+  private vbe = 0;
+  private vbc = 0;
   private vcritBe = 0;
   private vcritBc = 0;
   /** Internal collector, base and emitter (the terminals when the resistance is 0). */
@@ -62,6 +68,8 @@ class BjtImpl implements Bjt {
     this.sign = polaritySign(model);
     this.hasCharge = model.CJE !== 0 || model.CJC !== 0 || model.TF !== 0 || model.TR !== 0;
     this.scaled = model;
+    this.beForm = depletionForm(model.CJE, model.VJE, model.MJE);
+    this.bcForm = depletionForm(model.CJC, model.VJC, model.MJC);
     this.setTemperature(TNOM);
   }
 
@@ -109,6 +117,9 @@ class BjtImpl implements Bjt {
   setTemperature(kelvin: number): void {
     this.scaled = scaleBjtModel(this.model, kelvin, this.area);
     this.vt = thermalVoltage(kelvin);
+    const s = this.scaled;
+    this.beForm = depletionForm(s.CJE, s.VJE, s.MJE);
+    this.bcForm = depletionForm(s.CJC, s.VJC, s.MJC);
     this.vcritBe = criticalVoltage(this.scaled.NF * this.vt, this.scaled.IS);
     this.vcritBc = criticalVoltage(this.scaled.NR * this.vt, this.scaled.IS);
   }
@@ -133,41 +144,42 @@ class BjtImpl implements Bjt {
     state[this.vOff] = vbe;
     state[this.vOff + 1] = vbc;
     const k = this.cur;
-    evalBjtNpn(vbe, vbc, this.scaled, this.vt, k);
+    this.vbe = vbe;
+    this.vbc = vbc;
+    this.evaluate();
     const m = ctx.matrix;
     const rhs = ctx.rhs;
-    this.row(m, rhs, this.ci, this.sCC, this.sCB, this.sCE, k.ic, k.dIcDvbe, k.dIcDvbc, vbe, vbc);
-    this.row(m, rhs, this.bi, this.sBC, this.sBB, this.sBE, k.ib, k.dIbDvbe, k.dIbDvbc, vbe, vbc);
-    this.row(m, rhs, this.ei, this.sEC, this.sEB, this.sEE, k.ie, k.dIeDvbe, k.dIeDvbc, vbe, vbc);
+    // The three KCL rows of the companion: each terminal current is sign·I(vbe, vbc) with
+    // vbe = sign·(Vb − Ve), vbc = sign·(Vb − Vc), so the node derivatives carry sign² = 1 and only
+    // the companion current takes the sign. Written out rather than called: a call this large is
+    // not inlined, and its floating-point arguments would be boxed on the heap at every load.
+    addAt(m, this.sCB, k.dIcDvbe + k.dIcDvbc);
+    addAt(m, this.sCE, -k.dIcDvbe);
+    addAt(m, this.sCC, -k.dIcDvbc);
+    addAt(rhs, this.ci, -sg * (k.ic - k.dIcDvbe * vbe - k.dIcDvbc * vbc));
+    addAt(m, this.sBB, k.dIbDvbe + k.dIbDvbc);
+    addAt(m, this.sBE, -k.dIbDvbe);
+    addAt(m, this.sBC, -k.dIbDvbc);
+    addAt(rhs, this.bi, -sg * (k.ib - k.dIbDvbe * vbe - k.dIbDvbc * vbc));
+    addAt(m, this.sEB, k.dIeDvbe + k.dIeDvbc);
+    addAt(m, this.sEE, -k.dIeDvbe);
+    addAt(m, this.sEC, -k.dIeDvbc);
+    addAt(rhs, this.ei, -sg * (k.ie - k.dIeDvbe * vbe - k.dIeDvbc * vbc));
     // gmin across each junction is linear, so it has no companion current.
     this.pairBE.add(m, ctx.gmin);
     this.pairBC.add(m, ctx.gmin);
     this.loadResistors(m);
-    if (this.hasCharge) this.loadCharges(ctx, vbe, vbc);
+    // The junction voltages reach loadCharges through fields, for the same reason.
+    if (this.hasCharge) this.loadCharges(ctx);
   }
 
   /**
-   * One KCL row of the companion: the terminal current is sign·I(vbe, vbc)
-   * with vbe = sign·(Vb − Ve), vbc = sign·(Vb − Vc), so the node derivatives
-   * carry sign² = 1 and only the companion current takes the sign.
+   * The transport currents at {@link vbe} and {@link vbc} into `cur`: a call
+   * of its own, with no floating-point arguments, so that evalBjtNpn is
+   * inlined here rather than called from load with its voltages boxed.
    */
-  private row(
-    m: Float64Array,
-    rhs: Float64Array,
-    node: number,
-    sC: number,
-    sB: number,
-    sE: number,
-    i: number,
-    dbe: number,
-    dbc: number,
-    vbe: number,
-    vbc: number,
-  ): void {
-    addAt(m, sB, dbe + dbc);
-    addAt(m, sE, -dbe);
-    addAt(m, sC, -dbc);
-    addAt(rhs, node, -this.sign * (i - dbe * vbe - dbc * vbc));
+  private evaluate(): void {
+    evalBjtNpn(this.vbe, this.vbc, this.scaled, this.vt, this.cur);
   }
 
   private loadResistors(m: Float64Array): void {
@@ -177,10 +189,13 @@ class BjtImpl implements Bjt {
     if (this.ei !== this.nodes[2]) this.re.add(m, 1 / s.RE);
   }
 
-  private loadCharges(ctx: LoadContext, vbe: number, vbc: number): void {
+  /** Junction charges at {@link vbe} and {@link vbc} (NPN frame, V). */
+  private loadCharges(ctx: LoadContext): void {
+    const vbe = this.vbe;
+    const vbc = this.vbc;
     const sg = this.sign;
     const off = this.chargeOff;
-    evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc);
+    evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc, this.beForm, this.bcForm);
     // Stored in the terminal frame: charge on the base side of each junction.
     ctx.state[off] = sg * this.qbe.q;
     ctx.state[off + 2] = sg * this.qbc.q;
@@ -205,7 +220,7 @@ class BjtImpl implements Bjt {
     const vbe = sg * (at(ctx.x, this.bi) - at(ctx.x, this.ei));
     const vbc = sg * (at(ctx.x, this.bi) - at(ctx.x, this.ci));
     evalBjtNpn(vbe, vbc, this.scaled, this.vt, this.cur);
-    evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc);
+    evalBjtCharges(vbe, vbc, this.scaled, this.cur, this.qbe, this.qbc, this.beForm, this.bcForm);
     this.pairBE.add(ctx.capacitance, this.qbe.c);
     this.pairBC.add(ctx.capacitance, this.qbc.c);
   }

@@ -6,7 +6,7 @@
 
 import { TNOM, thermalVoltage } from './constants.js';
 import type { DeviceReport, LoadContext, ReactiveContext, SlotBinder, Topology, UnknownAllocator } from './device.js';
-import { type ChargeOut, criticalVoltage, depletion, pnjlim, safeExpSlope, safeExpm1, safeExp } from './junction.js';
+import { type ChargeOut, type DepletionForm, EXP_LINEAR_LIMIT, criticalVoltage, depletionAt, depletionForm, expm1From, pnjlim, safeExpSlope, safeExp } from './junction.js';
 import type { DiodeModel } from './models.js';
 import { PairSlots, at, injectPair } from './stamp.js';
 import type { Diode } from './types.js';
@@ -40,15 +40,26 @@ export function scaleDiodeModel(model: DiodeModel, kelvin: number, area = 1): Di
  * continued linearly ({@link safeExp}). Writes i (A) and g = dI/dV (S).
  */
 export function evalDiode(v: number, s: DiodeModel, vt: number, out: CurrentOut): void {
-  const nvt = s.N * vt;
+  junctionCurrent(v, s.IS, s.N * vt, s.BV, s.IBV, s.NBV * vt, out);
+}
+
+/**
+ * {@link evalDiode} on the model's constants: IS (A), N·Vt (V), BV (V, or
+ * undefined), IBV (A), NBV·Vt (V). One exponential per term serves the
+ * current and the conductance; the Shockley term's exp − 1 is taken from it
+ * by {@link expm1From}, which calls expm1 only near zero bias where the
+ * subtraction would cancel.
+ */
+export function junctionCurrent(v: number, is: number, nvt: number, bv: number | undefined, ibv: number, nbv: number, out: CurrentOut): void {
   const x = v / nvt;
-  let i = s.IS * safeExpm1(x);
-  let g = (s.IS * safeExpSlope(x)) / nvt;
-  if (s.BV !== undefined) {
-    const nbv = s.NBV * vt;
-    const xb = -(v + s.BV) / nbv;
-    i -= s.IBV * safeExp(xb);
-    g += (s.IBV * safeExpSlope(xb)) / nbv;
+  const e = safeExpSlope(x);
+  let i = is * expm1From(x, e);
+  let g = (is * e) / nvt;
+  if (bv !== undefined) {
+    const xb = -(v + bv) / nbv;
+    const eb = safeExpSlope(xb);
+    i -= ibv * (xb <= EXP_LINEAR_LIMIT ? eb : safeExp(xb));
+    g += (ibv * eb) / nbv;
   }
   out.i = i;
   out.g = g;
@@ -58,9 +69,10 @@ export function evalDiode(v: number, s: DiodeModel, vt: number, out: CurrentOut)
  * Junction charge of models.md for a scaled model: Q = TT·I(V) plus the
  * depletion charge with CJO, VJ, M (linear-in-capacitance above VJ/2).
  * Writes q (C) and c = dQ/dV (F); `cur` must hold {@link evalDiode} at v.
+ * `form` is the model's {@link depletionForm}, made here when not given.
  */
-export function evalDiodeCharge(v: number, s: DiodeModel, cur: CurrentOut, out: ChargeOut): void {
-  depletion(v, s.CJO, s.VJ, s.M, out);
+export function evalDiodeCharge(v: number, s: DiodeModel, cur: CurrentOut, out: ChargeOut, form: DepletionForm = depletionForm(s.CJO, s.VJ, s.M)): void {
+  depletionAt(v, form, out);
   out.q += s.TT * cur.i;
   out.c += s.TT * cur.g;
 }
@@ -91,6 +103,12 @@ class DiodeImpl implements Diode {
   readonly nodes: readonly [number, number];
   private scaled: DiodeModel;
   private vt = 0;
+  /** N·Vt and NBV·Vt (V) of the scaled model, and its depletion constants: once per temperature. */
+  private nvt = 0;
+  private nbv = 0;
+  private form: DepletionForm;
+  /** The junction voltage of the present load, V (read by loadCharge). */
+  private vd = 0;
   private vcrit = 0;
   private vcritBv = 0;
   /** Junction anode: the internal node behind RS, else the anode itself. */
@@ -115,6 +133,7 @@ class DiodeImpl implements Diode {
     this.ja = anode;
     this.hasCharge = model.CJO !== 0 || model.TT !== 0;
     this.scaled = model;
+    this.form = depletionForm(model.CJO, model.VJ, model.M);
     this.setTemperature(TNOM);
   }
 
@@ -142,20 +161,24 @@ class DiodeImpl implements Diode {
     this.scaled = scaleDiodeModel(this.model, kelvin, this.area);
     this.vt = thermalVoltage(kelvin);
     const s = this.scaled;
-    this.vcrit = criticalVoltage(s.N * this.vt, s.IS);
-    this.vcritBv = criticalVoltage(s.NBV * this.vt, s.IBV);
+    this.nvt = s.N * this.vt;
+    this.nbv = s.NBV * this.vt;
+    this.form = depletionForm(s.CJO, s.VJ, s.M);
+    this.vcrit = criticalVoltage(this.nvt, s.IS);
+    this.vcritBv = criticalVoltage(this.nbv, s.IBV);
   }
 
   /** Nagel limiting of the junction voltage; the breakdown side is mirrored about −BV. */
   private limit(vd: number, vold: number): number {
     const s = this.scaled;
-    if (s.BV !== undefined) {
-      const nbv = s.NBV * this.vt;
-      if (vd < Math.min(0, -s.BV + 10 * nbv)) {
-        return -(pnjlim(-(vd + s.BV), -(vold + s.BV), nbv, this.vcritBv) + s.BV);
-      }
-    }
-    return pnjlim(vd, vold, s.N * this.vt, this.vcrit);
+    // Mirrored about −BV below it: −(pnjlim(−(vd + BV), −(vold + BV), NBV·Vt, Vcrit,BV) + BV). One call
+    // site for both sides (±1 and the offset are exact): a second one is left out of the inlining of
+    // load, and its floating-point arguments and result would then be boxed on the heap at every load.
+    const breakdown = s.BV !== undefined && vd < Math.min(0, -s.BV + 10 * this.nbv);
+    const sign = breakdown ? -1 : 1;
+    const offset = breakdown ? (s.BV ?? 0) : 0;
+    const limited = pnjlim(sign * (vd + offset), sign * (vold + offset), breakdown ? this.nbv : this.nvt, breakdown ? this.vcritBv : this.vcrit);
+    return sign * limited - offset;
   }
 
   load(ctx: LoadContext): void {
@@ -165,19 +188,29 @@ class DiodeImpl implements Diode {
     if (vd !== vraw) ctx.limited = true;
     ctx.state[this.vOff] = vd;
     const cur = this.cur;
-    evalDiode(vd, this.scaled, this.vt, cur);
+    const s = this.scaled;
+    junctionCurrent(vd, s.IS, this.nvt, s.BV, s.IBV, this.nbv, cur);
     // gmin is linear in vd, so it adds to G and cancels out of Ieq.
     this.junction.add(ctx.matrix, cur.g + ctx.gmin);
     injectPair(ctx.rhs, this.ja, k, cur.i - cur.g * vd);
     if (this.ja !== this.nodes[0]) this.series.add(ctx.matrix, 1 / this.scaled.RS);
-    const cmin = this.model.CJO === 0 ? ctx.junctionCmin : 0;
-    if (this.hasCharge || cmin > 0) this.loadCharge(ctx, vd, cmin);
+    if (this.hasCharge || (this.model.CJO === 0 && ctx.junctionCmin > 0)) {
+      this.vd = vd;
+      this.loadCharge(ctx);
+    }
   }
 
-  /** Charge of the junction; `cmin` (F) is the transient-only minimum capacitance (docs/transient.md). */
-  private loadCharge(ctx: LoadContext, vd: number, cmin: number): void {
+  /**
+   * Charge of the junction at {@link vd}, with the transient-only minimum
+   * capacitance cmin (F; docs/transient.md) when CJO is 0. The voltage comes
+   * through a field, not an argument: this call is not inlined, and a
+   * floating-point argument would be boxed on the heap at every load.
+   */
+  private loadCharge(ctx: LoadContext): void {
+    const vd = this.vd;
+    const cmin = this.model.CJO === 0 ? ctx.junctionCmin : 0;
     const off = this.chargeOff;
-    evalDiodeCharge(vd, this.scaled, this.cur, this.chg);
+    evalDiodeCharge(vd, this.scaled, this.cur, this.chg, this.form);
     // The minimum capacitance's charge is recorded at the initial DC point too, so the first
     // step starts from a consistent charge and sees no spurious current.
     ctx.state[off] = this.chg.q + cmin * vd;
@@ -195,7 +228,7 @@ class DiodeImpl implements Diode {
     if (!this.hasCharge) return;
     const vd = at(ctx.x, this.ja) - at(ctx.x, this.nodes[1]);
     evalDiode(vd, this.scaled, this.vt, this.cur);
-    evalDiodeCharge(vd, this.scaled, this.cur, this.chg);
+    evalDiodeCharge(vd, this.scaled, this.cur, this.chg, this.form);
     this.junction.add(ctx.capacitance, this.chg.c);
   }
 

@@ -59,7 +59,7 @@ export type {
 export { branchRowScale, createCapacitor, createInductor, createResistor } from './passive.js';
 export { createCurrentSource, createVoltageSource } from './independent.js';
 export { createCccs, createCcvs, createVccs, createVcvs } from './controlled.js';
-export { createDiode, diodeCharge, diodeCurrent, evalDiode, evalDiodeCharge, scaleDiodeModel } from './diode.js';
+export { createDiode, diodeCharge, diodeCurrent, evalDiode, evalDiodeCharge, junctionCurrent, scaleDiodeModel } from './diode.js';
 export type { CurrentOut } from './diode.js';
 export { createBjt } from './bjt.js';
 export { bjtCharges, bjtCurrents, evalBjtCharges, evalBjtNpn, newBjtCurrents, polaritySign, scaleBjtModel } from './bjt-model.js';
@@ -67,12 +67,16 @@ export type { BjtCurrents } from './bjt-model.js';
 export {
   DEPLETION_FC,
   EXP_LINEAR_LIMIT,
+  EXPM1_DIRECT_BELOW,
   criticalVoltage,
   depletion,
+  depletionAt,
+  depletionForm,
+  expm1From,
   pnjlim,
   safeExp,
   safeExpSlope,
   safeExpm1,
 } from './junction.js';
-export type { ChargeOut } from './junction.js';
+export type { ChargeOut, DepletionForm } from './junction.js';
 export { pulseValue, pwlValue, sinValue, waveformBreakpoints, waveformCornerCount, waveformValue } from './waveform.js';

@@ -8,7 +8,7 @@ import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import { lusolve } from 'mathjs';
 import { runNetlist } from '@railcheck/core';
-import { createLuWorkspace, luFactor, luSolve, PIVOT_RELATIVE_TOLERANCE } from '@railcheck/core/internal';
+import { createLuWorkspace, luFactor, luFactorBounded, luSolve, PIVOT_RELATIVE_TOLERANCE, type LuWorkspace } from '@railcheck/core/internal';
 import { thermalVoltage, T_NOM } from '../../helpers/diode-closed-form.js';
 import { ml } from '../../helpers/ml-matrix.js';
 import { fcSeed } from '../../helpers/device-harness.js';
@@ -344,5 +344,111 @@ describe('circuits whose matrix the pivot test once took for singular', () => {
     // Observed 0 (the same exponential); bound 2·eps.
     expect(Math.abs(op.currents['D1']! - want) / want).toBeLessThanOrEqual(2 * EPS);
     expect(op.method).toBe('newton');
+  });
+});
+
+describe('the round-off bound, tracked only when a pivot needs it', () => {
+  /** Both passes on copies of `a`: luFactor (plain first, bounded on demand) and luFactorBounded (always bounded). */
+  const bothPasses = (a: readonly (readonly number[])[]): { plain: LuWorkspace; bounded: LuWorkspace; r1: number; r2: number } => {
+    const plain = toLu(a);
+    const bounded = toLu(a);
+    return { plain, bounded, r1: luFactor(plain), r2: luFactorBounded(bounded) };
+  };
+  /** Bit-for-bit equality of two float arrays (NaN and the sign of zero included). */
+  const sameBits = (x: Float64Array, y: Float64Array): boolean => {
+    const p = new Uint32Array(x.buffer, x.byteOffset, x.length * 2);
+    const q = new Uint32Array(y.buffer, y.byteOffset, y.length * 2);
+    return p.every((v, i) => v === q[i]);
+  };
+  // A node tied to ground by g siemens beside a voltage source's branch (the stiff block of the pivot
+  // rule's comment), placed among generic entries: elimination leaves a pivot near −1/g.
+  const stiff = (g: number) =>
+    dominantSystem(1, 6).map(({ a, b }) => {
+      const n = a.length + 2;
+      const m = Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i < n - 2 && j < n - 2 ? a[i]![j]! : 0)));
+      m[n - 2]![n - 2] = g;
+      m[n - 2]![n - 1] = 1;
+      m[n - 1]![n - 2] = 1;
+      // Couple the block to the rest so that the elimination mixes them.
+      m[0]![n - 2] = 0.5;
+      m[n - 2]![0] = 0.5;
+      return { a: m, b: [...b, 0, 1] };
+    });
+
+  test('consistency of our two passes: same verdict and the same factors bit for bit, regular, stiff and singular matrices', () => {
+    let restarted = 0;
+    fc.assert(
+      fc.property(
+        fc.oneof(
+          dominantSystem(1, 12).map(({ a }) => a),
+          generalSystem().map(({ a }) => a),
+          stiff(1e15).map(({ a }) => a),
+          stiff(1e21).map(({ a }) => a),
+          dependentPair(20).map(({ dependent }) => dependent),
+          dependentPair(20).map(({ lifted, exps }) => lifted.map((r, i) => r.map((v) => v * 2 ** exps[i]!))),
+        ),
+        (a) => {
+          const { plain, bounded, r1, r2 } = bothPasses(a);
+          expect(r1).toBe(r2);
+          expect(sameBits(plain.matrix, bounded.matrix)).toBe(true);
+          expect(Array.from(plain.perm)).toEqual(Array.from(bounded.perm));
+          // The plain pass left its copy of the matrix in `roundoff` unless it went over to the bounded pass.
+          if (!sameBits(plain.roundoff, bounded.roundoff)) return;
+          restarted++;
+        },
+      ),
+      { seed, numRuns: 400 },
+    );
+    // The stiff and singular families must have sent some matrices down the bounded pass.
+    expect(restarted).toBeGreaterThan(0);
+  });
+
+  test('a 1e15 S conductance beside a voltage source fails the plain pivot test and still factors (Ohm and KCL by hand)', () => {
+    // Unknowns V1, V2, I: V1 held at 2 V by the source (branch row V1 = 2), tied to ground by g and to
+    // node 2 by G = 1 mS; 1 mA injected at node 2. By hand: V2 = 2 + 1e-3/G = 3 V, and KCL at node 1,
+    // g·V1 + G·(V1 − V2) + I = 0, gives I = −(2g − 1e-3).
+    const g = 1e15;
+    const G = 1e-3;
+    const a = [
+      [g + G, -G, 1],
+      [-G, G, 0],
+      [1, 0, 0],
+    ];
+    const { plain, r1 } = bothPasses(a);
+    expect(r1).toBe(0);
+    // The matrix does need the bound: some pivot is at most 1e-13 of its column's largest original entry.
+    const s = plain.size;
+    const smallest = Math.min(...[1, 2, 3].map((k) => Math.abs(plain.matrix[k * s + k]!) / Math.max(...a.map((r) => Math.abs(r[k - 1]!)))));
+    expect(smallest).toBeLessThanOrEqual(PIVOT_RELATIVE_TOLERANCE);
+    const x = new Float64Array(s);
+    luSolve(plain, toRhs([0, 1e-3, 2]), x);
+    // Observed 2.2e-16 (one ulp of 2), 0 and 1.25e-16 relative; bounds 3·eps, 2 ulps of 3 and 3e-16.
+    expect(Math.abs(x[1]! - 2)).toBeLessThanOrEqual(3 * EPS);
+    expect(Math.abs(x[2]! - 3)).toBeLessThanOrEqual(2 * EPS * 3);
+    expect(Math.abs(x[3]! + (2 * g - 1e-3)) / (2 * g)).toBeLessThanOrEqual(3e-16);
+  });
+
+  test('a matrix singular to rounding is refused at the same column by both passes', () => {
+    // Column 3 is 0.1·column 1 + 0.7·column 2, each entry rounded once: elimination leaves a residue
+    // (observed −8.3e-17) in column 3, above the absolute floor, below the plain test, and below 1e-13 of
+    // its bound, so the plain pass hands over to the bounded one, which refuses it.
+    const c1 = [2, 1, 3];
+    const c2 = [1, 4, 1];
+    const a = c1.map((v, i) => [v, c2[i]!, 0.1 * v + 0.7 * c2[i]!]);
+    const { r1, r2 } = bothPasses(a);
+    expect(r2).toBe(3);
+    expect(r1).toBe(3);
+    // [[1, 1], [1, 1 + 1e-15]]: pivot 1.1e-15 in column 2, refused as before.
+    expect(bothPasses([[1, 1], [1, 1 + 1e-15]]).r1).toBe(2);
+    // The stiff block beside that rounded combination: the stiff pivot is accepted by the bound and the
+    // refusal comes at the dependent column, 5, not at the stiff one.
+    const stiffSingular = [
+      [1e15, 1, 0, 0, 0],
+      [1, 0, 0, 0, 0],
+      ...a.map((r) => [0, 0, ...r]),
+    ];
+    const both = bothPasses(stiffSingular);
+    expect(both.r2).toBe(5);
+    expect(both.r1).toBe(5);
   });
 });

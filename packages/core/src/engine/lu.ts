@@ -42,7 +42,11 @@ export interface LuWorkspace {
   readonly perm: Int32Array;
   /** Scratch: the largest magnitude each column had before elimination. */
   readonly columnScale: Float64Array;
-  /** Scratch, same layout as `matrix`: running round-off bound of each entry, in units of the unit round-off. */
+  /**
+   * Scratch, same layout as `matrix`: the entries as they were before a plain
+   * factorisation, and, when a pivot needs it, the running round-off bound
+   * of each entry ({@link luFactorBounded}).
+   */
   readonly roundoff: Float64Array;
   /** Matrix dimension including the ground row (unknowns + 1). */
   readonly size: number;
@@ -63,46 +67,71 @@ export function createLuWorkspace(unknowns: number, matrix?: Float64Array): LuWo
 /**
  * Factors the matrix in place. Returns 0 on success, or the 1-based unknown
  * (column) at which no acceptable pivot was found (the matrix is singular).
+ *
+ * The running round-off bound costs as much again as the elimination, and
+ * only a pivot that fails the plain relative test (at most 1e-13 of its
+ * column, {@link PIVOT_RELATIVE_TOLERANCE}) needs it. So the matrix is first
+ * factored plainly, its entries kept aside in `roundoff` as they are read for
+ * the column scales; only when a pivot fails the plain test is the matrix put
+ * back from that copy and factored again with the bound tracked
+ * ({@link luFactorBounded}). The factors do not depend on the bound (it only
+ * decides whether a pivot is accepted), so a matrix the plain pass accepts
+ * gets the very factors, bit for bit, of the bounded pass, and a matrix it
+ * refuses gets the bounded pass's verdict and column.
  */
 export function luFactor(ws: LuWorkspace): number {
-  const { matrix: a, perm, columnScale, roundoff: e, size: s } = ws;
+  const { matrix: a, perm, columnScale, roundoff: original, size: s } = ws;
   const n = s - 1;
-  for (let k = 1; k <= n; k++) perm[k] = k;
-  columnScale.fill(0);
-  for (let i = 1; i <= n; i++) {
-    const row = i * s;
-    for (let j = 1; j <= n; j++) {
-      const m = Math.abs(a[row + j]!);
-      // Each stamped entry may already carry the rounding of its own sum.
-      e[row + j] = m;
-      if (m > columnScale[j]!) columnScale[j] = m;
+  startFactor(ws, false);
+  for (let k = 1; k <= n; k++) {
+    const p = pivotRow(a, s, k);
+    const best = Math.abs(a[p * s + k]!);
+    // Below the absolute floor no bound can save the pivot; above the plain test it needs none.
+    if (!(best >= 1e-300)) return k;
+    if (!(best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]!)) {
+      for (let i = 1; i <= n; i++) {
+        const row = i * s;
+        for (let j = 1; j <= n; j++) a[row + j] = original[row + j]!;
+      }
+      return luFactorBounded(ws);
+    }
+    if (p !== k) {
+      swapRows(a, s, k, p);
+      swapEntries(perm, k, p);
+    }
+    const rk = k * s;
+    const pivot = a[rk + k]!;
+    for (let i = k + 1; i <= n; i++) {
+      const ri = i * s;
+      const lik = a[ri + k]! / pivot;
+      if (lik === 0) continue;
+      a[ri + k] = lik;
+      for (let j = k + 1; j <= n; j++) a[ri + j] = a[ri + j]! - lik * a[rk + j]!;
     }
   }
+  return 0;
+}
+
+/**
+ * The factorisation of {@link luFactor} with the running round-off bound of
+ * every entry tracked in `roundoff` (Wilkinson's running error analysis, as
+ * in Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., §3.3;
+ * from memory), so that a pivot below the plain relative test is still
+ * accepted when it exceeds the same fraction of its bound. Same return value
+ * as {@link luFactor}; exported for the tests that compare the two passes.
+ */
+export function luFactorBounded(ws: LuWorkspace): number {
+  const { matrix: a, perm, columnScale, roundoff: e, size: s } = ws;
+  const n = s - 1;
+  // Each stamped entry may already carry the rounding of its own sum: its bound starts at its magnitude.
+  startFactor(ws, true);
   for (let k = 1; k <= n; k++) {
-    let p = k;
-    let best = Math.abs(a[k * s + k]!);
-    for (let i = k + 1; i <= n; i++) {
-      const m = Math.abs(a[i * s + k]!);
-      if (m > best) {
-        best = m;
-        p = i;
-      }
-    }
-    if (!pivotAcceptable(best, columnScale[k]!, e[p * s + k]!)) return k;
+    const p = pivotRow(a, s, k);
+    if (!pivotAcceptable(Math.abs(a[p * s + k]!), columnScale[k]!, e[p * s + k]!)) return k;
     if (p !== k) {
-      const rk = k * s;
-      const rp = p * s;
-      for (let j = 1; j <= n; j++) {
-        const t = a[rk + j]!;
-        a[rk + j] = a[rp + j]!;
-        a[rp + j] = t;
-        const r = e[rk + j]!;
-        e[rk + j] = e[rp + j]!;
-        e[rp + j] = r;
-      }
-      const t = perm[k]!;
-      perm[k] = perm[p]!;
-      perm[p] = t;
+      swapRows(a, s, k, p);
+      swapRows(e, s, k, p);
+      swapEntries(perm, k, p);
     }
     const rk = k * s;
     const pivot = a[rk + k]!;
@@ -125,6 +154,57 @@ export function luFactor(ws: LuWorkspace): number {
     }
   }
   return 0;
+}
+
+/**
+ * The identity permutation, the largest magnitude of every column, and into
+ * `roundoff` each entry (the plain pass's copy) or its magnitude (the
+ * bounded pass's starting bound).
+ */
+function startFactor(ws: LuWorkspace, magnitudes: boolean): void {
+  const { matrix: a, perm, columnScale, roundoff: into, size: s } = ws;
+  for (let k = 1; k < s; k++) perm[k] = k;
+  columnScale.fill(0);
+  for (let i = 1; i < s; i++) {
+    const row = i * s;
+    for (let j = 1; j < s; j++) {
+      const v = a[row + j]!;
+      const m = Math.abs(v);
+      into[row + j] = magnitudes ? m : v;
+      if (m > columnScale[j]!) columnScale[j] = m;
+    }
+  }
+}
+
+/** The row at or below k holding the largest magnitude of column k (the first on ties): partial pivoting. */
+function pivotRow(a: Float64Array, s: number, k: number): number {
+  let p = k;
+  let best = Math.abs(a[k * s + k]!);
+  for (let i = k + 1; i < s; i++) {
+    const m = Math.abs(a[i * s + k]!);
+    if (m > best) {
+      best = m;
+      p = i;
+    }
+  }
+  return p;
+}
+
+/** Swaps rows k and p (columns 1..s−1) of a row-major matrix of stride s. */
+function swapRows(a: Float64Array, s: number, k: number, p: number): void {
+  const rk = k * s;
+  const rp = p * s;
+  for (let j = 1; j < s; j++) {
+    const t = a[rk + j]!;
+    a[rk + j] = a[rp + j]!;
+    a[rp + j] = t;
+  }
+}
+
+function swapEntries(v: Int32Array, k: number, p: number): void {
+  const t = v[k]!;
+  v[k] = v[p]!;
+  v[p] = t;
 }
 
 /**
