@@ -21,61 +21,11 @@ import { fileURLToPath } from 'node:url';
 import { join } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { parseNetlist, prepare } from '@railcheck/core';
-import { loadAll, luFactor, luFactorBounded, luSolve, runTransient, DEFAULT_NEWTON } from '@railcheck/core/internal';
+import { bareFactorSolve } from './lib/floors.mjs';
+import { loadAll, luFactor, luFactorBounded, luSolve, runTransient, DEFAULT_NEWTON, SOLVER_PATH } from '@railcheck/core/internal';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const samples = Number(process.argv[2] ?? 201);
-
-/** Textbook partial-pivot Doolittle LU in place, then the two substitutions. */
-function bareFactorSolve(a, s, perm, b, x) {
-  const n = s - 1;
-  for (let k = 1; k <= n; k++) perm[k] = k;
-  for (let k = 1; k <= n; k++) {
-    let p = k;
-    let best = Math.abs(a[k * s + k]);
-    for (let i = k + 1; i <= n; i++) {
-      const m = Math.abs(a[i * s + k]);
-      if (m > best) {
-        best = m;
-        p = i;
-      }
-    }
-    if (best === 0) return k;
-    const rk = k * s;
-    if (p !== k) {
-      const rp = p * s;
-      for (let j = 1; j <= n; j++) {
-        const t = a[rk + j];
-        a[rk + j] = a[rp + j];
-        a[rp + j] = t;
-      }
-      const t = perm[k];
-      perm[k] = perm[p];
-      perm[p] = t;
-    }
-    const pivot = a[rk + k];
-    for (let i = k + 1; i <= n; i++) {
-      const ri = i * s;
-      const l = a[ri + k] / pivot;
-      if (l === 0) continue;
-      a[ri + k] = l;
-      for (let j = k + 1; j <= n; j++) a[ri + j] -= l * a[rk + j];
-    }
-  }
-  for (let i = 1; i <= n; i++) {
-    const ri = i * s;
-    let sum = b[perm[i]];
-    for (let j = 1; j < i; j++) sum -= a[ri + j] * x[j];
-    x[i] = sum;
-  }
-  for (let i = n; i >= 1; i--) {
-    const ri = i * s;
-    let sum = x[i];
-    for (let j = i + 1; j <= n; j++) sum -= a[ri + j] * x[j];
-    x[i] = sum / a[ri + i];
-  }
-  return 0;
-}
 
 /** One Newton iteration as engine/newton.ts runs it, without moving the iterate (so every repetition is the same). */
 function newtonIteration(c, opts, factor = luFactor) {
@@ -83,8 +33,8 @@ function newtonIteration(c, opts, factor = luFactor) {
   const { x, xNext } = ws;
   loadAll(c);
   ws.ctx.initJunctions = false;
-  if (factor(ws.lu) !== 0) throw new Error('singular');
-  luSolve(ws.lu, ws.rhs, xNext);
+  if (factor(ws.solver.lu) !== 0) throw new Error('singular');
+  luSolve(ws.solver.lu, ws.rhs, xNext);
   let ratio = 0;
   for (let i = 1; i <= ws.unknowns; i++) {
     const next = xNext[i];
@@ -113,7 +63,10 @@ function rectifier() {
 
 /** Compiles, runs the transient and puts back the state of the accepted point nearest `at` (s). */
 function atTransientMatrix({ text, tran, at }) {
+  // The dense path at every size: the floor is a dense LU (the sparse one has bench/sparse-threshold.mjs).
+  SOLVER_PATH.force = 'dense';
   const p = prepare(parseNetlist(text));
+  SOLVER_PATH.force = undefined;
   if (!p.ok) throw new Error('does not compile');
   const c = p.compiled;
   const { ws } = c;
@@ -148,7 +101,7 @@ function measure(name, c) {
   const opts = DEFAULT_NEWTON;
   // The loaded matrix, unfactored, for the floor.
   loadAll(c);
-  const original = Float64Array.from(ws.lu.matrix);
+  const original = Float64Array.from(ws.matrix);
   const rhs = Float64Array.from(ws.rhs);
   const work = new Float64Array(original.length);
   const perm = new Int32Array(s);

@@ -13,7 +13,7 @@
 import { performance } from 'node:perf_hooks';
 import { readFileSync } from 'node:fs';
 import { parseNetlist, prepare } from '@railcheck/core';
-import { bareSparse } from './lib/floors.mjs';
+import { bareSparse, logSlope } from './lib/floors.mjs';
 import { SOLVER_PATH, solveOperatingPoint, newtonSolve, DEFAULT_NEWTON, loadAll, denseOf, createLuWorkspace, luFactor, luSolve } from '@railcheck/core/internal';
 
 const scale = Number(process.argv[2] ?? 1);
@@ -113,18 +113,9 @@ function caseRow(kind, n, text) {
   return row;
 }
 
+/** Growth exponent of the sparse iteration over rows. */
 function slope(rows) {
-  const xs = rows.map((r) => Math.log(r.n));
-  const ys = rows.map((r) => Math.log(r.tSparse));
-  const mx = xs.reduce((a, b) => a + b, 0) / xs.length;
-  const my = ys.reduce((a, b) => a + b, 0) / ys.length;
-  let num = 0;
-  let den = 0;
-  for (let i = 0; i < xs.length; i++) {
-    num += (xs[i] - mx) * (ys[i] - my);
-    den += (xs[i] - mx) ** 2;
-  }
-  return num / den;
+  return logSlope(rows.map((r) => [r.n, r.tSparse]));
 }
 
 const rows = [];

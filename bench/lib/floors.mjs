@@ -1,57 +1,72 @@
-// Floors of the speed benchmarks: bare LU factorisations written here, with
+// Floors of the speed benchmarks, and the growth fit: bare LU factorisations written here, with
 // none of the engine's checks, that one Newton iteration is measured against
 // (bench/run.mjs, bench/sparse-threshold.mjs).
 
 /**
- * A bare dense LU factor and solve (the textbook Doolittle elimination with
- * partial pivoting, Golub and Van Loan, Matrix Computations, 4th ed.,
- * algorithm 3.4.1) on a copy of a matrix `a` (row-major, stride s, the
- * ground row and column 0 skipped) and a right-hand side `b`.
+ * The textbook Doolittle elimination with partial pivoting (Golub and Van
+ * Loan, Matrix Computations, 4th ed., algorithm 3.4.1) in place on `a`
+ * (row-major, stride s, the ground row and column 0 unused), then forward
+ * and back substitution of `b` into `x`: no pivot tolerance, no round-off
+ * bound. Returns 0, or the column with a zero pivot.
  */
-export function bareDense(s) {
+export function bareFactorSolve(a, s, perm, b, x) {
   const n = s - 1;
+  for (let k = 1; k <= n; k++) perm[k] = k;
+  for (let k = 1; k <= n; k++) {
+    let p = k;
+    let best = Math.abs(a[k * s + k]);
+    for (let i = k + 1; i <= n; i++) {
+      const m = Math.abs(a[i * s + k]);
+      if (m > best) {
+        best = m;
+        p = i;
+      }
+    }
+    if (best === 0) return k;
+    const rk = k * s;
+    if (p !== k) {
+      const rp = p * s;
+      for (let j = 1; j <= n; j++) {
+        const t = a[rk + j];
+        a[rk + j] = a[rp + j];
+        a[rp + j] = t;
+      }
+      const t = perm[k];
+      perm[k] = perm[p];
+      perm[p] = t;
+    }
+    const pivot = a[rk + k];
+    for (let i = k + 1; i <= n; i++) {
+      const ri = i * s;
+      const l = a[ri + k] / pivot;
+      if (l === 0) continue;
+      a[ri + k] = l;
+      for (let j = k + 1; j <= n; j++) a[ri + j] -= l * a[rk + j];
+    }
+  }
+  for (let i = 1; i <= n; i++) {
+    const ri = i * s;
+    let sum = b[perm[i]];
+    for (let j = 1; j < i; j++) sum -= a[ri + j] * x[j];
+    x[i] = sum;
+  }
+  for (let i = n; i >= 1; i--) {
+    const ri = i * s;
+    let sum = x[i];
+    for (let j = i + 1; j <= n; j++) sum -= a[ri + j] * x[j];
+    x[i] = sum / a[ri + i];
+  }
+  return 0;
+}
+
+/** A bare dense LU factor and solve of a copy of a matrix `a` (stride s) and right-hand side `b`: {@link bareFactorSolve} on a scratch copy. */
+export function bareDense(s) {
   const m = new Float64Array(s * s);
   const perm = new Int32Array(s);
-  const y = new Float64Array(s);
   const x = new Float64Array(s);
   return (a, b) => {
     m.set(a);
-    for (let k = 1; k <= n; k++) perm[k] = k;
-    for (let k = 1; k <= n; k++) {
-      let p = k;
-      let best = Math.abs(m[k * s + k]);
-      for (let i = k + 1; i <= n; i++) {
-        const v = Math.abs(m[i * s + k]);
-        if (v > best) [best, p] = [v, i];
-      }
-      if (p !== k) {
-        for (let j = 1; j <= n; j++) {
-          const t = m[k * s + j];
-          m[k * s + j] = m[p * s + j];
-          m[p * s + j] = t;
-        }
-        const t = perm[k];
-        perm[k] = perm[p];
-        perm[p] = t;
-      }
-      const pivot = m[k * s + k];
-      for (let i = k + 1; i <= n; i++) {
-        const l = m[i * s + k] / pivot;
-        if (l === 0) continue;
-        m[i * s + k] = l;
-        for (let j = k + 1; j <= n; j++) m[i * s + j] -= l * m[k * s + j];
-      }
-    }
-    for (let i = 1; i <= n; i++) {
-      let sum = b[perm[i]];
-      for (let j = 1; j < i; j++) sum -= m[i * s + j] * y[j];
-      y[i] = sum;
-    }
-    for (let i = n; i >= 1; i--) {
-      let sum = y[i];
-      for (let j = i + 1; j <= n; j++) sum -= m[i * s + j] * x[j];
-      x[i] = sum / m[i * s + i];
-    }
+    bareFactorSolve(m, s, perm, b, x);
     return x;
   };
 }
@@ -148,3 +163,18 @@ export function bareSparse(c) {
   return { run, x, fill: rowPtr[n] };
 }
 
+
+/** Least-squares slope of log(y) on log(x) over points [x, y]: a growth exponent. */
+export function logSlope(points) {
+  const lx = points.map((p) => Math.log(p[0]));
+  const ly = points.map((p) => Math.log(p[1]));
+  const mx = lx.reduce((s, v) => s + v, 0) / lx.length;
+  const my = ly.reduce((s, v) => s + v, 0) / ly.length;
+  let num = 0;
+  let den = 0;
+  for (let i = 0; i < lx.length; i++) {
+    num += (lx[i] - mx) * (ly[i] - my);
+    den += (lx[i] - mx) ** 2;
+  }
+  return num / den;
+}

@@ -50,6 +50,15 @@ export interface LuWorkspace {
   readonly roundoff: Float64Array;
   /** Matrix dimension including the ground row (unknowns + 1). */
   readonly size: number;
+  /**
+   * The last factorisation had a pivot below the plain relative test (it
+   * needed the bound): the next one tracks the bound from the start instead
+   * of factoring twice. A circuit's matrices keep their structure from one
+   * Newton iteration to the next, so a pivot that needed the bound once
+   * mostly needs it again; a bounded factorisation that finds no such pivot
+   * sends the next one back to the plain pass.
+   */
+  boundNeeded: boolean;
 }
 
 /** Allocates a workspace for `unknowns` unknowns (plus the ground row). */
@@ -61,6 +70,7 @@ export function createLuWorkspace(unknowns: number, matrix?: Float64Array): LuWo
     columnScale: new Float64Array(size),
     roundoff: new Float64Array(size * size),
     size,
+    boundNeeded: false,
   };
 }
 
@@ -82,6 +92,7 @@ export function createLuWorkspace(unknowns: number, matrix?: Float64Array): LuWo
 export function luFactor(ws: LuWorkspace): number {
   const { matrix: a, perm, columnScale, roundoff: original, size: s } = ws;
   const n = s - 1;
+  if (ws.boundNeeded) return luFactorBounded(ws);
   startFactor(ws, false);
   for (let k = 1; k <= n; k++) {
     const p = pivotRow(a, s, k);
@@ -125,9 +136,12 @@ export function luFactorBounded(ws: LuWorkspace): number {
   const n = s - 1;
   // Each stamped entry may already carry the rounding of its own sum: its bound starts at its magnitude.
   startFactor(ws, true);
+  ws.boundNeeded = false;
   for (let k = 1; k <= n; k++) {
     const p = pivotRow(a, s, k);
-    if (!pivotAcceptable(Math.abs(a[p * s + k]!), columnScale[k]!, e[p * s + k]!)) return k;
+    const best = Math.abs(a[p * s + k]!);
+    if (!pivotAcceptable(best, columnScale[k]!, e[p * s + k]!)) return k;
+    if (!(best > PIVOT_RELATIVE_TOLERANCE * columnScale[k]!)) ws.boundNeeded = true;
     if (p !== k) {
       swapRows(a, s, k, p);
       swapRows(e, s, k, p);
