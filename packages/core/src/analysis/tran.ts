@@ -55,6 +55,11 @@ export interface TransientRequest {
   readonly keepSteps?: boolean;
 }
 
+/** The value at t on the segment from (t0, v0) to (t1, v1), or v0 when the segment has no length: the one interpolation of sampleTrace and GridSampler. */
+function between(t: number, t0: number, t1: number, v0: number, v1: number): number {
+  return t1 > t0 ? v0 + ((v1 - v0) * (t - t0)) / (t1 - t0) : v0;
+}
+
 /** Linear interpolation of unknown `index` of the trace at the grid times. */
 function sample(trace: TransientTrace, index: number, grid: readonly number[]): number[] {
   const out: number[] = [];
@@ -64,9 +69,7 @@ function sample(trace: TransientTrace, index: number, grid: readonly number[]): 
     while (k < count - 2 && times[k + 1]! < t) k++;
     const t0 = times[k]!;
     const t1 = times[Math.min(k + 1, count - 1)]!;
-    const v0 = values[k * size + index]!;
-    const v1 = values[Math.min(k + 1, count - 1) * size + index]!;
-    out.push(t1 > t0 ? v0 + ((v1 - v0) * (t - t0)) / (t1 - t0) : v0);
+    out.push(between(t, t0, t1, values[k * size + index]!, values[Math.min(k + 1, count - 1) * size + index]!));
   }
   return out;
 }
@@ -130,11 +133,8 @@ export class GridSampler {
     const t1 = this.tLast;
     const p0 = single ? this.last : this.prev;
     const p1 = this.last;
-    this.indices.forEach((index, j) => {
-      const v0 = p0[index]!;
-      const v1 = p1[index]!;
-      this.values[j]![k] = t1 > t0 ? v0 + ((v1 - v0) * (t - t0)) / (t1 - t0) : v0;
-    });
+    const { indices, values } = this;
+    for (let j = 0; j < indices.length; j++) values[j]![k] = between(t, t0, t1, p0[indices[j]!]!, p1[indices[j]!]!);
   }
 }
 
@@ -173,11 +173,8 @@ function outputSignals(c: CompiledCircuit): Array<{ name: string; index: number;
 export function sampleTrace(c: CompiledCircuit, trace: TransientTrace, grid: readonly number[]): { nodes: Record<string, number[]>; branches: Record<string, number[]> } {
   checkTraceArguments(c, trace, grid);
   const nodes: Record<string, number[]> = {};
-  for (const node of c.flat.nodes) nodes[node.name] = sample(trace, c.nodeIndex.get(node.key)!, grid);
   const branches: Record<string, number[]> = {};
-  c.unknowns.forEach((u, i) => {
-    if (u.kind === 'branch') branches[u.name] = sample(trace, i, grid);
-  });
+  for (const s of outputSignals(c)) (s.branch ? branches : nodes)[s.name] = sample(trace, s.index, grid);
   return { nodes, branches };
 }
 

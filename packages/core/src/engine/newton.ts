@@ -76,7 +76,7 @@ export type NewtonResult =
       readonly lastRatio: number;
     };
 
-/** Loads every device at `ws.x` into the matrix and right-hand side; only the stamped entries of the matrix are cleared first. */
+/** Loads every device at `ws.x` into the matrix and right-hand side, both cleared first ({@link clearStamps}: the whole dense matrix, or the sparse path's stamped entries). */
 export function loadAll(c: CompiledCircuit): void {
   const { ws, devices } = c;
   clearStamps(ws);

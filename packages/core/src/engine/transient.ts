@@ -358,7 +358,7 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     const keep = opts.keepTrace ?? true;
     const replay = opts.replayTimes;
     const guide = replay && opts.replayGuide && opts.replayGuide.length === (replay.length + 1) * ws.size ? opts.replayGuide : undefined;
-    const guidedNewton: NewtonOptions = { ...newton, firstUpdateSettles: true };
+    const guidedNewton: NewtonOptions = guide ? { ...newton, firstUpdateSettles: true } : newton;
     // Row of the guide at the present accepted time (0 at the start), or −1 when t is not on the guide.
     let guideRow = guide ? 0 : -1;
     let nextReplay = 0;
