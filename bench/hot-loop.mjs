@@ -22,30 +22,11 @@ import { join } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { parseNetlist, prepare } from '@railcheck/core';
 import { bareFactorSolve } from './lib/floors.mjs';
-import { loadAll, luFactor, luFactorBounded, luSolve, runTransient, DEFAULT_NEWTON, SOLVER_PATH } from '@railcheck/core/internal';
+import { newtonIteration } from './lib/circuits.mjs';
+import { loadAll, luFactorBounded, runTransient, DEFAULT_NEWTON, SOLVER_PATH } from '@railcheck/core/internal';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const samples = Number(process.argv[2] ?? 201);
-
-/** One Newton iteration as engine/newton.ts runs it, without moving the iterate (so every repetition is the same). */
-function newtonIteration(c, opts, factor = luFactor) {
-  const { ws, unknowns } = c;
-  const { x, xNext } = ws;
-  loadAll(c);
-  ws.ctx.initJunctions = false;
-  if (factor(ws.solver.lu) !== 0) throw new Error('singular');
-  luSolve(ws.solver.lu, ws.rhs, xNext);
-  let ratio = 0;
-  for (let i = 1; i <= ws.unknowns; i++) {
-    const next = xNext[i];
-    if (!Number.isFinite(next)) throw new Error('non-finite');
-    const prev = x[i];
-    const tol = opts.reltol * Math.max(Math.abs(next), Math.abs(prev)) + (unknowns[i].kind === 'branch' ? opts.abstol : opts.vntol);
-    const r = Math.abs(next - prev) / tol;
-    if (r > ratio) ratio = r;
-  }
-  return ratio;
-}
 
 function ladder(n) {
   // n unknowns: the source's branch current, its node and n − 2 more, each with a shunt capacitor and a clamp diode.
@@ -126,7 +107,7 @@ function measure(name, c) {
       for (let r = 0; r < reps; r++) sink += newtonIteration(c, opts);
       newton.push((performance.now() - t0) / reps);
       t0 = performance.now();
-      for (let r = 0; r < reps; r++) sink += newtonIteration(c, opts, luFactorBounded);
+      for (let r = 0; r < reps; r++) sink += newtonIteration(c, opts, (ws) => luFactorBounded(ws.solver.lu));
       bounded.push((performance.now() - t0) / reps);
       t0 = performance.now();
       for (let r = 0; r < reps; r++) {

@@ -28,9 +28,9 @@ import { fileURLToPath } from 'node:url';
 import { performance } from 'node:perf_hooks';
 import { Bench } from 'tinybench';
 import { runNetlist } from '@railcheck/core';
-import { ENGINE_COUNTS, SOLVER_PATH, denseOf, factorMatrix, loadAll, resetEngineCounts, solveMatrix } from '@railcheck/core/internal';
+import { ENGINE_COUNTS, SOLVER_PATH, denseOf, factorMatrix, loadAll, resetEngineCounts } from '@railcheck/core/internal';
 import { bareDense, bareSparse, logSlope } from './lib/floors.mjs';
-import { compiled, ladderNetlist, meshNetlist, toTransientMatrix } from './lib/circuits.mjs';
+import { compiled, ladderNetlist, meshNetlist, newtonIteration, toTransientMatrix } from './lib/circuits.mjs';
 
 const rootUrl = new URL('..', import.meta.url);
 const root = fileURLToPath(rootUrl);
@@ -60,29 +60,6 @@ async function median(fn, time = TIME_MS) {
 // ---------------------------------------------------------------------------------------------
 // Floors.
 
-/**
- * One Newton iteration as newtonSolve does it, on the circuit as it stands
- * (its x is left where it is, so every call does the same work): load every
- * device, factor, solve, the update test on every unknown.
- */
-function newtonIteration(c) {
-  const { ws, unknowns } = c;
-  const { x, xNext } = ws;
-  const n = ws.unknowns;
-  return () => {
-    loadAll(c);
-    factorMatrix(ws);
-    solveMatrix(ws, ws.rhs, xNext);
-    let ratio = 0;
-    for (let i = 1; i <= n; i++) {
-      const tol = 1e-6 * Math.max(Math.abs(xNext[i]), Math.abs(x[i])) + (unknowns[i].kind === 'branch' ? 1e-12 : 1e-9);
-      const r = Math.abs(xNext[i] - x[i]) / tol;
-      if (r > ratio) ratio = r;
-    }
-    return ratio;
-  };
-}
-
 /** The matrix and right-hand side the circuit loads at its present state (a copy). */
 function loadedSystem(c) {
   loadAll(c);
@@ -93,7 +70,7 @@ function loadedSystem(c) {
 // 1. One Newton iteration against the dense floor.
 
 async function iterationCase(group, name, c, target) {
-  const iterate = newtonIteration(c);
+  const iterate = () => newtonIteration(c);
   const { a, b } = loadedSystem(c);
   const floor = bareDense(c.ws.size);
   const tIter = await median(iterate);

@@ -4,7 +4,7 @@
 // benchmarks only.
 import { readFileSync } from 'node:fs';
 import { parseNetlist, prepare } from '@railcheck/core';
-import { runTransient } from '@railcheck/core/internal';
+import { DEFAULT_NEWTON, factorMatrix, loadAll, runTransient, solveMatrix } from '@railcheck/core/internal';
 
 /**
  * A diode-clamped RC ladder with `unknowns` unknowns: a 5 V source at node
@@ -70,4 +70,30 @@ export function toTransientMatrix(c, until, h) {
   ctx.coefficients.a1 = -1;
   ctx.time = until + h;
   return c;
+}
+
+/**
+ * One Newton iteration as engine/newton.ts runs it, on the circuit as it
+ * stands and without moving the iterate (so every repetition does the same
+ * work): load every device, factor (`factor`, default the workspace's own
+ * solver), solve, the update test on every unknown. Returns the largest
+ * update relative to its tolerance.
+ */
+export function newtonIteration(c, opts = DEFAULT_NEWTON, factor = factorMatrix) {
+  const { ws, unknowns } = c;
+  const { x, xNext } = ws;
+  loadAll(c);
+  ws.ctx.initJunctions = false;
+  if (factor(ws) !== 0) throw new Error('singular');
+  solveMatrix(ws, ws.rhs, xNext);
+  let ratio = 0;
+  for (let i = 1; i <= ws.unknowns; i++) {
+    const next = xNext[i];
+    if (!Number.isFinite(next)) throw new Error('non-finite');
+    const prev = x[i];
+    const tol = opts.reltol * Math.max(Math.abs(next), Math.abs(prev)) + (unknowns[i].kind === 'branch' ? opts.abstol : opts.vntol);
+    const r = Math.abs(next - prev) / tol;
+    if (r > ratio) ratio = r;
+  }
+  return ratio;
 }
