@@ -56,7 +56,7 @@ const PERTURBATION = 1e-5;
 /**
  * Whether the perturbed period runs of the sensitivity are guided by the
  * unperturbed run's solutions (TransientOptions.replayGuide); switched off
- * only by bench/run.mjs and the tests that compare both ways.
+ * only by the tests that compare both ways.
  */
 export const GUIDED: { on: boolean } = { on: true };
 /** Largest number of step halvings of one Newton correction (backtracking) before taking it anyway. */

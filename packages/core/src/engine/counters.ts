@@ -4,7 +4,7 @@
  * points, sweeps, figure walks) and in transient mode (every step tried,
  * accepted or rejected). Nothing in the engine reads them; a benchmark
  * zeroes them with {@link resetEngineCounts} and reads them after a run.
- * Incrementing four numbers per solve costs nothing measurable.
+ * Two additions per Newton solve (not per iteration).
  */
 
 /** Counts since the last reset. */
