@@ -11,6 +11,7 @@ import fc from 'fast-check';
 import { afterEach, describe, expect, test } from 'vitest';
 import { parseNetlist, prepare } from '@railcheck/core';
 import {
+  ABSURD_CURRENT,
   createSparseLu, eliminationFill, loadAll, denseOf, factorMatrix, solveMatrix, DEFAULT_NEWTON, minimumDegreeOrder, sparseLuFactor, sparseLuSolve, solveOperatingPoint, SOLVER_PATH, REUSE_PIVOT_THRESHOLD,
   type CompiledCircuit, type SparseLu,
 } from '@railcheck/core/internal';
@@ -318,6 +319,12 @@ describe('sparse against dense on random circuits', () => {
         const os = solveOperatingPoint(sparse);
         if (od.ok !== os.ok) mismatch++;
         if (!od.ok || !os.ok) return;
+        // A Zener with no series resistance across a source above its BV converges to an absurd current
+        // (1.7e34 A through DX0 on FC seed 1020078843), which the run's sanity note reports; beside it the
+        // other branch currents are rounding of that sum on either path, so such a point is not compared.
+        // ABSURD_CURRENT is the project's own threshold for that note (common practice, no source).
+        const absurd = (x: Float64Array): boolean => dense.unknowns.some((u, i) => u.kind === 'branch' && Math.abs(x[i]!) > ABSURD_CURRENT);
+        if (absurd(dense.ws.x) || absurd(sparse.ws.x)) return;
         both++;
         for (let i = 1; i < dense.unknowns.length; i++) {
           const a = dense.ws.x[i]!;
