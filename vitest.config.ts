@@ -20,8 +20,8 @@ export default defineConfig({
     pool: 'threads',
     projects: [
       { extends: true, test: { name: 'main', include: ['test/**/*.test.ts'] } },
-      // The transient tests again without the step predictor (test/helpers/predictor-off.ts).
-      { extends: true, test: { name: 'predictor-off', include: ['test/core/transient/**/*.test.ts', 'test/core/ac/tran-vs-ac.test.ts'], setupFiles: ['test/helpers/predictor-off.ts'] } },
+      // The transient tests again without the step predictor and the contraction test (test/helpers/aids-off.ts).
+      { extends: true, test: { name: 'aids-off', include: ['test/core/transient/**/*.test.ts', 'test/core/ac/tran-vs-ac.test.ts'], setupFiles: ['test/helpers/aids-off.ts'] } },
     ],
   },
 });

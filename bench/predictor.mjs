@@ -1,5 +1,7 @@
-// Newton iterations per accepted transient step with and without the
-// predictor of each step's first iterate (engine/history.ts, predict), on
+// Newton iterations per accepted transient step without the stepper's aids
+// to Newton, with the predictor of each step's first iterate
+// (engine/history.ts, predict), and with the predictor and the contraction
+// test (engine/newton.ts, NewtonOptions.contractionSettles), on
 // the mains-fed examples run for 1 s of 50 Hz (their figures, limits and own
 // .tran lines left out), and the time of each run, as ratios within one run.
 // Not part of the tests (no timed tests). Run: node bench/predictor.mjs [REPEATS]
@@ -9,7 +11,7 @@ import { fileURLToPath } from 'node:url';
 import { join } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { runNetlist } from '@railcheck/core';
-import { PREDICTOR } from '@railcheck/core/internal';
+import { CONTRACTION, PREDICTOR } from '@railcheck/core/internal';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const repeats = Number(process.argv[2] ?? 3);
@@ -18,8 +20,9 @@ const rows = [];
 for (const f of files) {
   const text = readFileSync(join(root, 'examples', f), 'utf8').replace(/^\.(figure|limit|tran)\b.*$/gm, '').replace(/^\.end\b/im, '.tran 0.1m 1\n.end');
   const result = {};
-  for (const on of [false, true]) {
-    PREDICTOR.on = on;
+  for (const [key, predictor, contraction] of [['off', false, false], ['predictor', true, false], ['both', true, true]]) {
+    PREDICTOR.on = predictor;
+    CONTRACTION.on = contraction;
     const times = [];
     let stats;
     for (let k = 0; k < repeats; k++) {
@@ -30,12 +33,13 @@ for (const f of files) {
       stats = r.report.transients[0].stats;
     }
     times.sort((a, b) => a - b);
-    result[on ? 'on' : 'off'] = { ms: times[Math.floor(times.length / 2)], perStep: stats.newtonIterations / stats.accepted, accepted: stats.accepted, rejected: stats.rejectedLte + stats.rejectedNewton };
+    result[key] = { ms: times[Math.floor(times.length / 2)], perStep: stats.newtonIterations / stats.accepted, accepted: stats.accepted, rejected: stats.rejectedLte + stats.rejectedNewton };
   }
   rows.push({ f, ...result });
 }
 PREDICTOR.on = true;
-console.log('example (1 s at 50 Hz)                 iterations/step  off → on   accepted  rejected (on)   time on/off');
+CONTRACTION.on = true;
+console.log('example (1 s at 50 Hz)                 iterations/step: none → predictor → both   accepted  rejected (both)   time both/none');
 for (const r of rows) {
-  console.log(`${r.f.padEnd(40)} ${r.off.perStep.toFixed(2).padStart(8)} → ${r.on.perStep.toFixed(2).padEnd(8)} ${String(r.on.accepted).padStart(8)} ${String(r.on.rejected).padStart(9)}        ${(r.on.ms / r.off.ms).toFixed(2)}`);
+  console.log(`${r.f.padEnd(40)} ${r.off.perStep.toFixed(2).padStart(8)} → ${r.predictor.perStep.toFixed(2).padStart(5)} → ${r.both.perStep.toFixed(2).padEnd(8)} ${String(r.both.accepted).padStart(8)} ${String(r.both.rejected).padStart(9)}        ${(r.both.ms / r.off.ms).toFixed(2)}`);
 }

@@ -57,8 +57,11 @@ export function seriesDiode(vs: number, r: number, is: number, nVt: number, gp =
   const logArg = Math.log((is * rth) / nVt) + (vth + is * rth) / nVt;
   const w = lambertWOfLog(logArg);
   const junction = (nVt / rth) * w - is;
-  // V = nVt·ln((I + IS)/IS) = nVt·(ln(nVt/(Rth·IS)) + ln W): no cancellation at large Vs.
-  const vd = nVt * (Math.log(nVt / (rth * is)) + Math.log(w));
+  // V = nVt·ln((I + IS)/IS) = nVt·(ln(nVt/(Rth·IS)) + ln W): no cancellation at large Vs. Below ln x = 0,
+  // ln W = ln x − W (from W·e^W = x; both terms of one sign there) keeps it exact in deep reverse bias,
+  // where W itself is subnormal or zero.
+  const logW = logArg >= 0 ? Math.log(w) : logArg - w;
+  const vd = nVt * (Math.log(nVt / (rth * is)) + logW);
   return { junction, vd, source: junction + gp * vd };
 }
 

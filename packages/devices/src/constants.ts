@@ -24,9 +24,11 @@ export function thermalVoltage(kelvin: number): number {
  * Minimum junction capacitance in farads (1 pF), placed in transient analysis
  * only across a diode junction whose model has CJO = 0. Without it a floating
  * node between switched-off junctions is held only by gmin (1e-12 S) and
- * Newton cannot follow the switching. A small capacitance across every
- * junction is the usual remedy (Kundert, The Designer's Guide to SPICE and
- * Spectre, 1995, ch. on transient convergence — from memory; the value is
- * common practice, no source). Its effect is quantified in docs/transient.md.
+ * Newton on the update test alone cannot follow the switching (with the
+ * transient's contraction test it can, in the bridge of docs/transient.md;
+ * the capacitance stays). A small capacitance across every junction is the
+ * usual remedy (K. S. Kundert's 1995 book on circuit simulators in practice,
+ * ch. on transient convergence — from memory; the value is common practice,
+ * no source). Its effect is quantified in docs/transient.md.
  */
 export const JUNCTION_CMIN = 1e-12;

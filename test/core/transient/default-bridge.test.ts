@@ -16,7 +16,7 @@
  */
 import { expect, it } from 'vitest';
 import { JUNCTION_CMIN } from '@railcheck/devices';
-import { runTransient } from '@railcheck/core/internal';
+import { CONTRACTION, runTransient } from '@railcheck/core/internal';
 import { runNetlist } from '@railcheck/core';
 import { compile } from './support.js';
 import { CAP, FREQ, RLOAD, VPEAK, VT, clip, compareWithOdex, vs } from './rectifier-model.js';
@@ -56,10 +56,26 @@ it('default-diode bridge ripple is below the handbook estimate I/(2fC), by at mo
   }
 });
 
-it('without the minimum capacitance the same bridge fails (guards the remedy)', () => {
-  const r = runTransient(compile(NETLIST), { tstep: 1e-4, tstop: 40e-3, junctionCmin: 0 });
-  expect(r.ok).toBe(false);
-  expect(r.ok ? '' : r.reason).toBe('step-too-small');
+it('without the minimum capacitance the same bridge fails on the update test alone, and follows the reference with the contraction test', () => {
+  if (!CONTRACTION.on) {
+    // The aids-off project: Newton stops on the update test alone. With all four diodes off the secondary is
+    // held only by gmin, and its time points do not pass that test in 50 iterations (docs/transient.md).
+    const r = runTransient(compile(NETLIST), { tstep: 1e-4, tstop: 40e-3, junctionCmin: 0 });
+    expect(r.ok).toBe(false);
+    expect(r.ok ? '' : r.reason).toBe('step-too-small');
+    return;
+  }
+  // With the contraction test (engine/newton.ts) those time points converge: the same 1 s run without the 1 pF,
+  // against the same ODEX reference and bounds as the run with it above. Observed 6.43 mV, ripple 0.29 % off.
+  const r = compareWithOdex(
+    NETLIST,
+    (t, y) => [(clip(bridge(vs(t), y[0]!)) - y[0]! / RLOAD) / CAP],
+    (t, v) => bridge(vs(t), v),
+    [{ label: 'trap, no minimum capacitance', opts: { method: 'trap', junctionCmin: 0 } }],
+  ).results[0]!;
+  console.log(`default bridge, ${r.label}: ${r.stats.accepted} steps; max |error| ${(r.err * 1e3).toFixed(2)} mV; ripple ${r.ripple.toFixed(4)} V (reference ${data.refRipple.toFixed(4)} V)`);
+  expect(r.err).toBeLessThan(15e-3);
+  expect(Math.abs(r.ripple - data.refRipple)).toBeLessThan(0.007 * data.refRipple);
 });
 
 it('the figures of the same bridge are measured: ripple.out_pp at periodic steady state against the ODEX reference', () => {

@@ -42,6 +42,24 @@ export interface NewtonOptions {
    * residual test at the new iterate still decides.
    */
   readonly firstUpdateSettles?: boolean;
+  /**
+   * Also take an iterate as converged when its update failed the update
+   * test but the contraction of the last two updates says the iterate itself
+   * is within the tolerances (default false). With r_k the largest update
+   * of iteration k relative to each unknown's tolerance and Θ = r_k / r_(k−1)
+   * < 1, the error left in the new iterate is estimated as Θ/(1 − Θ)·r_k
+   * tolerances (Deuflhard, Newton Methods for Nonlinear Problems, 2004,
+   * §1.1 and §2.1; Hairer and Wanner, Solving ODE II, §IV.8, the stopping
+   * rule η_k·‖Δ_k‖ ≤ κ·Tol with η_k = Θ_k/(1 − Θ_k); both from memory);
+   * it is accepted when that is at most 1. For quadratic convergence the
+   * error is about Θ²·r_k, so the estimate is on the safe side. Only from
+   * the second update on, only when neither of the two loads was limited,
+   * and the residual test at the new iterate still decides. The transient
+   * stepper sets it (its Newton tolerance is 1e-3 of the truncation-error
+   * tolerance, so κ = 1 here is κ = 1e-3 against the integration's; the
+   * reference recommends 1e-1 to 1e-2); DC solves do not.
+   */
+  readonly contractionSettles?: boolean;
 }
 
 /**
@@ -118,8 +136,9 @@ export function residualSettled(c: CompiledCircuit, opts: NewtonOptions): boolea
 
 /**
  * Iterates from the present `ws.x` until every unknown changes by less than
- * reltol·|x| + (vntol or abstol) and the equations hold at the new iterate
- * ({@link residualSettled}). On success `ws.x` holds the solution and the
+ * reltol·|x| + (vntol or abstol), or with {@link NewtonOptions.contractionSettles}
+ * the contraction estimate puts the new iterate within those tolerances,
+ * and the equations hold at the new iterate ({@link residualSettled}). On success `ws.x` holds the solution and the
  * devices' state was last loaded at it.
  */
 export function newtonSolve(c: CompiledCircuit, opts: NewtonOptions = DEFAULT_NEWTON): NewtonResult {
@@ -140,8 +159,10 @@ function newtonIterate(c: CompiledCircuit, opts: NewtonOptions): NewtonResult {
   const n = ws.unknowns;
   let worst = 0;
   let lastRatio = Number.POSITIVE_INFINITY;
-  // The last update passed the update test: the load at the new iterate decides.
+  // The last update passed the update test (or the contraction test): the load at the new iterate decides.
   let settled = false;
+  // Whether the load of the last iteration was limited (its update is then no Newton update).
+  let lastLimited = true;
   for (let iter = 1; iter <= opts.maxIterations + 1; iter++) {
     loadAll(c);
     ctx.initJunctions = false;
@@ -164,8 +185,12 @@ function newtonIterate(c: CompiledCircuit, opts: NewtonOptions): NewtonResult {
       }
     }
     x.set(xNext);
+    // Contraction of the last two updates; only between two updates from unlimited loads.
+    const theta = lastLimited ? 1 : ratio / lastRatio;
+    const contracted = opts.contractionSettles === true && iter > 1 && theta < 1 && (theta / (1 - theta)) * ratio <= 1;
     lastRatio = ratio;
-    settled = ratio <= 1 && !ctx.limited && (iter > 1 || opts.firstUpdateSettles === true);
+    lastLimited = ctx.limited;
+    settled = (ratio <= 1 || contracted) && !ctx.limited && (iter > 1 || opts.firstUpdateSettles === true);
   }
   return { converged: false, reason: 'iterations', iterations: opts.maxIterations, worst, lastRatio };
 }

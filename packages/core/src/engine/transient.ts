@@ -17,8 +17,11 @@ import { FINAL_GMIN, solveOperatingPoint, stragglers, type Straggler } from './d
 import { match } from 'ts-pattern';
 import { MAX_BREAKPOINTS, MAX_TRACE_VALUES, MAX_TRAN_STEPS } from '../budgets.js';
 
-/** Whether each step's first Newton iterate is predicted (history.ts, predict); a switch for the benchmark's comparison, on by default. */
+/** Whether each step's first Newton iterate is predicted (history.ts, predict); a switch for the benchmark's comparison and the `aids-off` test project, on by default. */
 export const PREDICTOR = { on: true };
+
+/** Whether a time point's Newton may stop on the contraction test ({@link NewtonOptions.contractionSettles}); a switch for the benchmark's comparison and the `aids-off` test project, on by default. */
+export const CONTRACTION = { on: true };
 
 /** Integration method. */
 export type IntegrationMethod = 'be' | 'trap';
@@ -47,7 +50,7 @@ export interface TransientOptions {
   readonly lteVntol?: number;
   /** Least number of steps per period of any sine source (default 100 for trap, 400 for be; docs/transient.md). */
   readonly stepsPerCycle?: number;
-  /** Newton tolerances per time point; `maxIterations` is not taken from here: a time point gets at most 50 iterations before its step is cut. */
+  /** Newton tolerances per time point; `maxIterations` is not taken from here: a time point gets at most 50 iterations before its step is cut. `contractionSettles` defaults to on ({@link CONTRACTION}) for the time points, off for a `fromIc`/`discharged` initial point. */
   readonly newton?: NewtonOptions;
   /**
    * A fixed step, s: no truncation-error control, every step this long
@@ -264,7 +267,7 @@ function smallestSinePeriod(sources: ReadonlyMap<string, IndependentSource>): { 
  */
 export function runTransient(c: CompiledCircuit, opts: TransientOptions): TransientOutcome {
   const method = opts.method ?? 'trap';
-  const newton = { ...(opts.newton ?? DEFAULT_NEWTON), maxIterations: TRAN_ITERATIONS };
+  const newton: NewtonOptions = { ...(opts.newton ?? DEFAULT_NEWTON), maxIterations: TRAN_ITERATIONS, contractionSettles: opts.newton?.contractionSettles ?? CONTRACTION.on };
   const reltol = opts.lteReltol ?? 1e-3;
   const vntol = opts.lteVntol ?? 1e-6;
   const stepsPerCycle = opts.stepsPerCycle ?? (method === 'trap' ? 100 : 400);
@@ -315,7 +318,8 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
       ctx.coefficients.a0 = 1 / (hMin * 1e-3);
       ctx.coefficients.a1 = 0;
       ctx.initJunctions = true;
-      const r = newtonSolve(c, { ...newton, maxIterations: DEFAULT_NEWTON.maxIterations });
+      // The initial point, like an operating point, on the update test alone.
+      const r = newtonSolve(c, { ...newton, maxIterations: DEFAULT_NEWTON.maxIterations, contractionSettles: false });
       stats.newtonIterations += r.iterations;
       if (!r.converged) return fail('initial-point', 0);
       state.set(statePrev);
