@@ -20,7 +20,7 @@ export default defineConfig({
     pool: 'threads',
     projects: [
       { extends: true, test: { name: 'main', include: ['test/**/*.test.ts'] } },
-      // The transient tests again without the step predictor and the contraction test (test/helpers/aids-off.ts).
+      // The transient tests again without the step predictor, the contraction test and the predictive step control (test/helpers/aids-off.ts).
       { extends: true, test: { name: 'aids-off', include: ['test/core/transient/**/*.test.ts', 'test/core/ac/tran-vs-ac.test.ts'], setupFiles: ['test/helpers/aids-off.ts'] } },
     ],
   },

@@ -43,7 +43,7 @@ export { transient, outputGrid, sampleTrace, acceptedTimes, GridSampler } from '
 export type { TransientResult, TransientRequest } from './analysis/tran.js';
 export { acSweep, phasorDb, phasorDeg, acFrequencies } from './analysis/ac.js';
 export type { AcResult } from './analysis/ac.js';
-export { runTransient, describeTransientFailure, transientFailureCode, PREDICTOR, CONTRACTION } from './engine/transient.js';
+export { runTransient, describeTransientFailure, transientFailureCode, PREDICTOR, CONTRACTION, PREDICTIVE_CONTROL } from './engine/transient.js';
 export type { TransientOptions, TransientOutcome, TransientStats, TransientTrace, IntegrationMethod, TransientBudgetExcess, SharedStepBudget } from './engine/transient.js';
 export { linearise, solveAt } from './engine/ac.js';
 export type { SmallSignalSystem } from './engine/ac.js';
