@@ -409,10 +409,9 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
     const fixed = opts.fixedStep;
     let h = replay ? replay[0]! - t0 : (fixed ?? Math.min(hMax, opts.tstep, (breakpoints[0] ?? tstop) - t0) / 100);
     let firstAfterBreak = true;
-    // The last accepted step (s), its error ratio and order, for the predictive controller (stepGrowth); 0 when there is none.
+    // The last accepted step (s) and its error ratio, for the predictive controller (stepGrowth); 0 when there is none.
     let hAccepted = 0;
     let ratioAccepted = 0;
-    let orderAccepted = 0;
     // Every step tried, accepted or rejected, counts against MAX_TRAN_STEPS: no input keeps the loop going.
     let tried = 0;
     const shared = opts.shared;
@@ -476,12 +475,12 @@ export function runTransient(c: CompiledCircuit, opts: TransientOptions): Transi
         if (!keep && t < tstop && !pushPoint(trace, t, x)) return traceFull();
         break;
       }
-      // The predictive controller for backward Euler only: with the trapezoidal rule it moved the errors against the references both ways (docs/transient.md, "Step size").
-      const predictive = PREDICTIVE_CONTROL.on && method === 'be' && orderAccepted === order;
+      // The predictive controller for backward Euler only (every step of order 1, so the step before is always of the
+      // same order): with the trapezoidal rule it moved the errors against the references both ways (docs/transient.md, "Step size").
+      const predictive = PREDICTIVE_CONTROL.on && method === 'be';
       const grow = stepGrowth(ratio, order, hStep, predictive ? hAccepted : 0, ratioAccepted);
       hAccepted = hStep;
       ratioAccepted = ratio;
-      orderAccepted = order;
       h = fixed ?? Math.min(hMax, hStep * grow);
       if (landing && fixed === undefined) {
         nextBreak++;
