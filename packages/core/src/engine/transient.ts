@@ -197,7 +197,7 @@ const MIN_STEP_FRACTION = 1e-13;
 const GROW_LIMIT = 2;
 const SHRINK_LIMIT = 0.2;
 const SAFETY = 0.9;
-/** Floor of an accepted step's error ratio in the predictive controller, as in RADAU5 (Hairer & Wanner, from memory). */
+/** Floor of an accepted step's error ratio in the predictive controller, as in the implicit Runge–Kutta code published with Hairer & Wanner, Solving ODEs II (from memory). */
 const RATIO_FLOOR = 1e-2;
 
 /**
@@ -215,7 +215,7 @@ export const PREDICTIVE_CONTROL = { on: true };
  * ratio, Gustafsson's predictive controller also extrapolates how the
  * error constant changed between the two steps,
  * (h/hBefore)·SAFETY·ratio^(−1/(p+1))·(ratioBefore/ratio)^(1/(p+1)), and
- * the smaller of the two is taken, as RADAU5 does (K. Gustafsson,
+ * the smaller of the two is taken, as Hairer and Wanner's implicit Runge–Kutta code does (K. Gustafsson,
  * "Control-theoretic techniques for stepsize selection in implicit
  * Runge-Kutta methods", ACM TOMS 20 (1994) 496–517; Hairer & Wanner,
  * Solving Ordinary Differential Equations II, 2nd ed., §IV.8; the form
